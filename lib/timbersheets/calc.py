@@ -1,0 +1,203 @@
+"""Design equations written once: they compute, and they render themselves.
+
+A design equation is a plain Python function of floats whose body is a list of
+assignments ending in ``return locals()``. Every variable is declared with the
+unit it is computed in (the consistent system N, mm, MPa, N·mm), so
+
+* the sizing search calls it directly on floats (fast, no rendering), and
+* the sheet renders the *same source*, with the values it computed, through
+  handcalcs' pure ``latex()`` function: symbolic, then substituted, then result.
+
+The function body is read with ``ast`` (never by substring), so no line is lost:
+handcalcs' own decorator drops any line containing ``def``, ``return`` or ``@``.
+Only straight assignments are allowed in a body, so what is rendered is exactly
+what was computed; piecewise rules are chosen by the caller, which then renders
+the branch that applies.
+"""
+
+from __future__ import annotations
+
+import ast
+import inspect
+import math
+import textwrap
+from collections.abc import Callable, Mapping
+from functools import cached_property
+from typing import Any
+
+from .units import display_unit, to_display
+
+#: Names the equations may use from math; they are rendered as symbols.
+MATH_NAMES = {"pi": math.pi, "sqrt": math.sqrt, "log10": math.log10}
+
+
+class Calc:
+    """One design equation group, e.g. the factored tensile resistance.
+
+    `units` maps every variable of the function (arguments and assigned names)
+    to the unit it is computed in; "" is dimensionless.
+    """
+
+    def __init__(self, func: Callable[..., dict], units: Mapping[str, str], clause: str = "") -> None:
+        self.func = func
+        self.units = dict(units)
+        self.clause = clause
+        self.name = func.__name__
+
+    def __repr__(self) -> str:
+        return f"Calc({self.name})"
+
+    def __call__(self, **inputs: float) -> dict[str, float]:
+        """Evaluate on floats in compute units; returns every variable."""
+        values = self.func(**inputs)
+        return {k: v for k, v in values.items() if k in self.units}
+
+    @cached_property
+    def statements(self) -> list[ast.Assign]:
+        """The assignments of the function body, checked to be the only statements."""
+        tree = ast.parse(textwrap.dedent(inspect.getsource(self.func)))
+        func = tree.body[0]
+        assert isinstance(func, ast.FunctionDef)
+        body = list(func.body)
+        if body and isinstance(body[0], ast.Expr) and isinstance(body[0].value, ast.Constant):
+            body = body[1:]  # docstring
+        if not body or not isinstance(body[-1], ast.Return):
+            raise TypeError(f"{self.name}: the body must end with 'return locals()'")
+        assigns = body[:-1]
+        for stmt in assigns:
+            if not (isinstance(stmt, ast.Assign) and len(stmt.targets) == 1 and isinstance(stmt.targets[0], ast.Name)):
+                raise TypeError(f"{self.name}: line {stmt.lineno} is not a single assignment")
+        return assigns  # type: ignore[return-value]
+
+    @cached_property
+    def outputs(self) -> tuple[str, ...]:
+        """Names assigned in the body, in order."""
+        return tuple(s.targets[0].id for s in self.statements)  # type: ignore[union-attr]
+
+    @cached_property
+    def source(self) -> str:
+        """The body as handcalcs cell source, one statement per line."""
+        return "\n".join(ast.unparse(s) for s in self.statements)
+
+    def latex(self, values: Mapping[str, float], precision: int = 3) -> str:
+        """Render the equations with `values` (as returned by ``__call__``)."""
+        from handcalcs import global_config
+        from handcalcs.handcalcs import latex
+
+        shown: dict[str, Any] = {name: Shown(r"\pi") for name in ("pi",)}
+        for name, value in values.items():
+            shown[name] = Shown(format_value(value, self.units.get(name, ""), precision))
+        config = dict(global_config._config)
+        return latex(self.source, shown, "", config, precision, False)
+
+
+def calc(units: Mapping[str, str], clause: str = "") -> Callable[[Callable[..., dict]], Calc]:
+    """Decorator: turn an equation function into a :class:`Calc`."""
+
+    def wrap(func: Callable[..., dict]) -> Calc:
+        return Calc(func, units, clause)
+
+    return wrap
+
+
+class Shown:
+    """A value already formatted as LaTeX; handcalcs prints it as it is."""
+
+    __slots__ = ("text",)
+
+    def __init__(self, text: str) -> None:
+        self.text = text
+
+    def __format__(self, spec: str) -> str:
+        return self.text
+
+    def __str__(self) -> str:
+        return self.text
+
+    __repr__ = __str__
+
+
+_UNIT_LATEX = {
+    "kN": r"\mathrm{kN}",
+    "kN*m": r"\mathrm{kN{\cdot}m}",
+    "kN/m": r"\mathrm{kN/m}",
+    "MPa": r"\mathrm{MPa}",
+    "mm": r"\mathrm{mm}",
+    "m": r"\mathrm{m}",
+    "mm**2": r"\mathrm{mm}^{2}",
+    "mm**3": r"\mathrm{mm}^{3}",
+    "mm**4": r"\mathrm{mm}^{4}",
+    "m**3": r"\mathrm{m}^{3}",
+    "N": r"\mathrm{N}",
+    "N*mm": r"\mathrm{N{\cdot}mm}",
+    "N/mm": r"\mathrm{N/mm}",
+}
+
+_UNIT_TEXT = {"kN*m": "kN·m", "mm**2": "mm²", "mm**3": "mm³", "mm**4": "mm⁴", "m**3": "m³"}
+
+
+def unit_latex(u: str) -> str:
+    """LaTeX for a display unit."""
+    return _UNIT_LATEX[u] if u in _UNIT_LATEX else rf"\mathrm{{{u}}}"
+
+
+def unit_text(u: str) -> str:
+    """Plain-text symbol for a display unit (kN·m, mm²)."""
+    return _UNIT_TEXT.get(u, u)
+
+
+FORCE_UNITS = ("kN", "kN*m", "kN/m")
+
+
+def _decimals(value: float, unit: str, sig: int) -> int:
+    """Decimal places for `sig` significant figures; forces and moments to at least 0.1."""
+    digits = sig - 1 - math.floor(math.log10(abs(value)))
+    return max(digits, 1) if unit in FORCE_UNITS else digits
+
+
+def round_sig(value: float, unit: str = "", sig: int = 3) -> float:
+    """Round for display: three significant figures, forces and moments to at least 0.1.
+
+    The same rounding is used on the sheet and in results.json, so the two agree.
+    """
+    if value == 0 or not math.isfinite(value):
+        return value
+    return round(value, max(_decimals(value, unit, sig), 0))
+
+
+def format_number(value: float, unit: str = "", sig: int = 3) -> str:
+    """A number as text: `sig` significant figures without trailing zeros.
+
+    Forces and moments keep 0.1 (``185.0`` kN); plain factors keep one decimal
+    (``1.0``, ``0.9``); very large or small values use powers of ten.
+    """
+    if value == 0:
+        return "0"
+    if not math.isfinite(value):
+        return r"\infty" if value > 0 else r"-\infty"
+    if abs(value) >= 1e6 or abs(value) < 1e-3:
+        mantissa, exponent = f"{value:.{sig - 1}e}".split("e")
+        return rf"{mantissa} \times 10^{{{int(exponent)}}}"
+    decimals = max(_decimals(value, unit, sig), 0)
+    text = f"{round(value, decimals):.{decimals}f}"
+    if "." in text:
+        keep = 1 if unit in FORCE_UNITS or unit == "" else 0
+        whole, frac = text.split(".")
+        frac = frac.rstrip("0")
+        frac = frac if len(frac) >= keep else frac.ljust(keep, "0")
+        text = f"{whole}.{frac}" if frac else whole
+    elif unit == "":
+        text += ".0"
+    return text
+
+
+def format_value(value: float, compute_unit: str, sig: int = 3) -> str:
+    """LaTeX for a compute-unit value in its display unit: ``52.6\\ \\mathrm{kN}``."""
+    shown_value, shown_unit = to_display(value, compute_unit)
+    number = format_number(shown_value, shown_unit, sig)
+    return f"{number}\\ {unit_latex(shown_unit)}" if shown_unit else number
+
+
+def shown_unit(compute_unit: str) -> str:
+    """Display unit for a compute unit (re-exported for sheets)."""
+    return display_unit(compute_unit)

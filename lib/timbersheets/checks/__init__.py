@@ -1,0 +1,70 @@
+"""Engineering checks: pure functions of the member and a load case.
+
+Each check returns a frozen :class:`CheckResult` holding the demand, the
+resistance, the utilization, the clause and every factor used, plus the
+equation steps (a :class:`~timbersheets.calc.Calc` with its values) so the
+sheet renders exactly the arithmetic that produced the verdict.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from ..calc import Calc
+from ..units import to_display
+
+
+@dataclass(frozen=True)
+class Step:
+    """One rendered equation group: which calc, with which values."""
+
+    calc: Calc
+    values: dict[str, float]
+    caption: str = ""
+
+    def latex(self) -> str:
+        return self.calc.latex(self.values)
+
+
+@dataclass(frozen=True)
+class CheckResult:
+    """One check under one load combination."""
+
+    check: str  # tension, compression, bending, shear, bearing, interaction, deflection-*
+    combination: str
+    K_D: float
+    demand: float  # display unit
+    resistance: float  # display unit
+    unit: str  # display unit ("kN", "kN*m", "mm", "")
+    clause: str
+    factors: dict[str, float]
+    steps: tuple[Step, ...] = field(default=(), compare=False, repr=False)
+    demand_symbol: str = ""
+    resistance_symbol: str = ""
+
+    @property
+    def utilization(self) -> float:
+        if self.resistance <= 0:
+            return float("inf")
+        return abs(self.demand) / self.resistance
+
+
+def factors_of(steps: tuple[Step, ...], leave_out: tuple[str, ...] = ()) -> dict[str, float]:
+    """Every input and intermediate value of the steps, in display units."""
+    out: dict[str, float] = {}
+    for step in steps:
+        for name, value in step.values.items():
+            if name in leave_out:
+                continue
+            out[name] = to_display(value, step.calc.units.get(name, ""))[0]
+    return out
+
+
+def result(check: str, case, demand: float, resistance: float, compute_unit: str, clause: str,
+           steps: tuple[Step, ...], demand_symbol: str, resistance_symbol: str) -> CheckResult:
+    """Build a CheckResult, converting demand and resistance to display units."""
+    shown_demand, unit = to_display(demand, compute_unit)
+    shown_resistance, _ = to_display(resistance, compute_unit)
+    factors = {"K_D": case.K_D, **factors_of(steps, (resistance_symbol,))}
+    return CheckResult(check, case.label, case.K_D, shown_demand, shown_resistance, unit, clause,
+                       factors, steps, demand_symbol, resistance_symbol)

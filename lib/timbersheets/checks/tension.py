@@ -1,0 +1,52 @@
+"""Tension parallel to grain (CSA O86:19 6.5.9 sawn, 7.5.11 glulam).
+
+Clause numbers follow the O86-14 numbering, believed unchanged in O86:19
+(memory, unverified).
+"""
+
+from __future__ import annotations
+
+from ..calc import calc
+from . import Step, result
+
+SAWN_CLAUSE = "O86:19 6.5.9"
+GLULAM_CLAUSE = "O86:19 7.5.11"
+
+
+@calc(units={"f_t": "MPa", "K_D": "", "K_H": "", "K_St": "", "K_T": "", "F_t": "MPa",
+             "phi": "", "A_n": "mm**2", "K_Zt": "", "T_r": "N"}, clause=SAWN_CLAUSE)
+def sawn_tension(f_t, K_D, K_H, K_St, K_T, phi, A_n, K_Zt):
+    F_t = f_t * (K_D * K_H * K_St * K_T)
+    T_r = phi * F_t * A_n * K_Zt
+    return locals()
+
+
+@calc(units={"f_tn": "MPa", "f_tg": "MPa", "K_D": "", "K_H": "", "K_St": "", "K_T": "",
+             "F_tn": "MPa", "F_tg": "MPa", "phi": "", "A_n": "mm**2", "A_g": "mm**2",
+             "T_rn": "N", "T_rg": "N", "T_r": "N"}, clause=GLULAM_CLAUSE)
+def glulam_tension(f_tn, f_tg, K_D, K_H, K_St, K_T, phi, A_n, A_g):
+    F_tn = f_tn * (K_D * K_H * K_St * K_T)
+    F_tg = f_tg * (K_D * K_H * K_St * K_T)
+    T_rn = phi * F_tn * A_n
+    T_rg = phi * F_tg * A_g
+    T_r = min(T_rn, T_rg)
+    return locals()
+
+
+def check_tension(m, case, T_f: float):
+    """Factored tensile resistance T_r against T_f (N) under one load case.
+
+    `m` is the member context (:class:`timbersheets.design.Context`): strengths,
+    service factors and section. Sawn: T_r = φ F_t A_n K_Zt. Glulam: the lesser
+    of φ F_tn A_n (net section) and φ F_tg A_g (gross section).
+    """
+    common = dict(K_D=case.K_D, K_H=m.K_H, K_St=m.K_S["K_St"], K_T=m.K_T, phi=m.phi["tension"],
+                  A_n=m.A_n)
+    if m.glulam:
+        values = glulam_tension(f_tn=m.f["f_tn"], f_tg=m.f["f_tg"], A_g=m.section.A, **common)
+        calc_, clause = glulam_tension, GLULAM_CLAUSE
+    else:
+        values = sawn_tension(f_t=m.f["f_t"], K_Zt=m.K_Zt, **common)
+        calc_, clause = sawn_tension, SAWN_CLAUSE
+    steps = (Step(calc_, values),)
+    return result("tension", case, T_f, values["T_r"], "N", clause, steps, "T_f", "T_r")

@@ -1,0 +1,267 @@
+"""Data tables with provenance: strengths, factors, combinations, sizes.
+
+Each value is a :class:`Datum` that knows the file and table it came from and
+whether it has been verified against the standard. A firm may point a job at its
+own verified strengths file (``[data] materials`` in project.toml); its rows win
+over the built-in ones. Every value a member uses is recorded, so the sheet and
+results.json can list the unverified ones.
+"""
+
+from __future__ import annotations
+
+import csv
+import hashlib
+from collections.abc import Iterator, Mapping
+from dataclasses import dataclass
+from functools import cached_property
+from importlib import resources
+from pathlib import Path
+
+from .errors import DataError
+
+UNVERIFIED = "memory-unverified"
+
+BUILTIN_FILES = (
+    "sawn_strengths.csv",
+    "glulam_strengths.csv",
+    "glulam_factors.csv",
+    "service_factors.csv",
+    "size_factors_sawn.csv",
+    "bearing_factors.csv",
+    "resistance_factors.csv",
+    "duration_factors.csv",
+    "nbc2020_uls_combinations.csv",
+    "sizes_sawn.csv",
+    "sizes_glulam.csv",
+    "glulam_laminations.csv",
+)
+
+
+@dataclass(frozen=True)
+class Datum:
+    """One data value and where it came from."""
+
+    value: float
+    label: str  # e.g. "f_t S-P-F No.1/No.2 dimension"
+    table: str  # e.g. "O86-14 Table 6.3.1A"
+    source: str
+    status: str
+    file: str
+
+    @property
+    def verified(self) -> bool:
+        return self.status != UNVERIFIED
+
+    @property
+    def warning(self) -> str:
+        return f"{self.label}: memory, unverified ({self.table}; {self.file})"
+
+    @property
+    def status_text(self) -> str:
+        return "unverified" if not self.verified else self.status
+
+
+class Recorded(Mapping[str, float]):
+    """Values by name; reading one records its Datum as used by the member."""
+
+    def __init__(self, datums: Mapping[str, Datum], used: list[Datum]) -> None:
+        self._datums = dict(datums)
+        self._used = used
+
+    def __getitem__(self, key: str) -> float:
+        datum = self._datums[key]
+        self._used.append(datum)
+        return datum.value
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(self._datums)
+
+    def __len__(self) -> int:
+        return len(self._datums)
+
+    def datum(self, key: str) -> Datum:
+        """The Datum behind `key`, without recording it."""
+        return self._datums[key]
+
+
+def combined_status(*datums: Datum) -> str:
+    """A derived value is only as verified as the least verified of its inputs."""
+    return UNVERIFIED if any(not d.verified for d in datums) else "sourced"
+
+
+@dataclass(frozen=True)
+class DataFile:
+    name: str
+    path: Path
+    sha256: str
+    rows: tuple[dict[str, str], ...]
+
+
+def _read(path: Path, name: str) -> DataFile:
+    try:
+        raw = path.read_bytes()
+    except OSError as exc:
+        raise DataError(str(path), f"cannot be read ({exc.strerror})") from None
+    text = raw.decode("utf-8-sig")
+    rows = tuple(csv.DictReader(text.splitlines()))
+    return DataFile(name, path, hashlib.sha256(raw).hexdigest(), rows)
+
+
+def _table(row: dict[str, str]) -> str:
+    """'O86-14 Table 6.3.1A' or 'O86-14 Cl. 5.1.4': where in the standard a row comes from."""
+    edition = row.get("edition", "").strip()
+    if row.get("table", "").strip():
+        ref = row["table"].strip()
+        ref = f"Table {ref}" if ref[0].isdigit() else ref
+    elif row.get("clause", "").strip():
+        ref = f"Cl. {row['clause'].strip()}"
+    else:
+        ref = ""
+    return " ".join(p for p in (edition, ref) if p)
+
+
+class DataSet:
+    """All data tables of one run: built-in files plus an optional firm file."""
+
+    def __init__(self, materials: Path | None = None) -> None:
+        base = resources.files("timbersheets") / "data"
+        self.files: dict[str, DataFile] = {}
+        for name in BUILTIN_FILES:
+            self.files[name] = _read(Path(str(base / name)), name)
+        self.firm: DataFile | None = _read(materials, materials.name) if materials else None
+
+    # -- provenance -----------------------------------------------------------
+    @cached_property
+    def hash(self) -> str:
+        """One hash over every data file in use (order-independent names)."""
+        digest = hashlib.sha256()
+        for name in sorted(self.files):
+            digest.update(f"{name}:{self.files[name].sha256}\n".encode())
+        if self.firm:
+            digest.update(f"firm:{self.firm.sha256}\n".encode())
+        return "sha256:" + digest.hexdigest()
+
+    def manifest(self) -> list[dict[str, str]]:
+        """Which data files were used, with their hashes (for results.json)."""
+        items = [{"file": f"timbersheets/data/{f.name}", "sha256": f.sha256} for f in self.files.values()]
+        if self.firm:
+            items.append({"file": str(self.firm.path), "sha256": self.firm.sha256, "role": "firm materials (wins)"})
+        return items
+
+    def _datum(self, file: DataFile, row: dict[str, str], label: str, column: str = "value") -> Datum:
+        try:
+            value = float(row[column])
+        except (KeyError, ValueError):
+            raise DataError(file.name, f"{label}: '{row.get(column)}' is not a number") from None
+        return Datum(value, label, _table(row), row.get("source", "").strip(), row.get("status", "").strip(), file.name)
+
+    def _find(self, file_name: str, label: str, column: str = "value", **key: str) -> Datum:
+        candidates = []
+        if self.firm and file_name in ("sawn_strengths.csv", "glulam_strengths.csv"):
+            material = "sawn" if file_name.startswith("sawn") else "glulam"
+            candidates.append((self.firm, {**key, "material": material}))
+        candidates.append((self.files[file_name], key))
+        for file, wanted in candidates:
+            for row in file.rows:
+                if all(row.get(k, "").strip() == v for k, v in wanted.items() if k in row or k != "material"):
+                    return self._datum(file, row, label, column)
+        raise DataError(file_name, f"no value for {label}")
+
+    # -- strengths ------------------------------------------------------------
+    def sawn_strength(self, species: str, grade: str, category: str, prop: str) -> Datum:
+        label = f"{prop} {species} {grade} {category}"
+        return self._find("sawn_strengths.csv", label, species=species, grade=grade, category=category, property=prop)
+
+    def glulam_strength(self, species: str, grade: str, prop: str) -> Datum:
+        label = f"{prop} {species} {grade} glulam"
+        return self._find("glulam_strengths.csv", label, species=species, grade=grade, property=prop)
+
+    def glulam_factor(self, name: str) -> Datum:
+        return self._find("glulam_factors.csv", f"glulam {name}", name=name)
+
+    def sawn_grades(self) -> dict[tuple[str, str], set[str]]:
+        """{(species, category): {grades}} from the built-in and firm tables."""
+        out: dict[tuple[str, str], set[str]] = {}
+        for row in self.files["sawn_strengths.csv"].rows:
+            out.setdefault((row["species"], row["category"]), set()).add(row["grade"])
+        for row in self.firm.rows if self.firm else ():
+            if row.get("material", "sawn") == "sawn":
+                out.setdefault((row["species"], row["category"]), set()).add(row["grade"])
+        return out
+
+    def glulam_grades(self) -> dict[str, set[str]]:
+        out: dict[str, set[str]] = {}
+        for row in self.files["glulam_strengths.csv"].rows:
+            out.setdefault(row["species"], set()).add(row["grade"])
+        for row in self.firm.rows if self.firm else ():
+            if row.get("material") == "glulam":
+                out.setdefault(row["species"], set()).add(row["grade"])
+        return out
+
+    # -- factors --------------------------------------------------------------
+    def service_factor(self, material: str, category: str, prop: str, service: str) -> Datum:
+        label = f"{prop} {material} {category} {service} service"
+        return self._find("service_factors.csv", label, material=material, category=category, property=prop, service=service)
+
+    def resistance_factor(self, action: str) -> Datum:
+        return self._find("resistance_factors.csv", f"phi {action}", "phi", action=action)
+
+    def duration_factor(self, cls: str) -> Datum:
+        return self._find("duration_factors.csv", f"K_D {cls} term", "K_D", **{"class": cls})
+
+    def size_factor_sawn(self, factor: str, thickness: float, larger: float) -> Datum:
+        """K_Zb or K_Zt of dimension lumber: the row whose bound covers `larger` (mm)."""
+        file = self.files["size_factors_sawn.csv"]
+        rows = [
+            r for r in file.rows
+            if r["factor"] == factor and float(r["thickness_min"]) <= thickness <= float(r["thickness_max"])
+        ]
+        rows.sort(key=lambda r: float(r["larger_dim_max"]))
+        for row in rows:
+            if larger <= float(row["larger_dim_max"]):
+                label = f"{factor} {thickness:g} mm thick, {larger:g} mm"
+                return self._datum(file, row, label)
+        raise DataError(file.name, f"no {factor} row for {thickness:g} mm thick, {larger:g} mm wide")
+
+    def bearing_table(self) -> list[tuple[float, Datum]]:
+        file = self.files["bearing_factors.csv"]
+        out = [(float(r["bearing_length"]), self._datum(file, r, f"K_B {r['bearing_length']} mm")) for r in file.rows]
+        return sorted(out, key=lambda item: item[0])
+
+    # -- combinations and sizes ----------------------------------------------
+    @cached_property
+    def combination_rows(self) -> tuple[dict[str, str], ...]:
+        return self.files["nbc2020_uls_combinations.csv"].rows
+
+    @cached_property
+    def sawn_sizes(self) -> tuple[tuple[str, int, int], ...]:
+        return tuple((r["category"], int(r["b"]), int(r["d"])) for r in self.files["sizes_sawn.csv"].rows)
+
+    @cached_property
+    def glulam_widths(self) -> tuple[int, ...]:
+        return tuple(sorted(int(r["width"]) for r in self.files["sizes_glulam.csv"].rows))
+
+    @cached_property
+    def lamination(self) -> tuple[float, float]:
+        row = self.files["glulam_laminations.csv"].rows[0]
+        return float(row["thickness"]), float(row["min_depth"])
+
+    # -- recording -------------------------------------------------------------
+    @staticmethod
+    def warnings_for(used: list[Datum]) -> list[str]:
+        seen: dict[str, None] = {}
+        for d in used:
+            if not d.verified:
+                seen[d.warning] = None
+        return list(seen)
+
+
+_DEFAULT: DataSet | None = None
+
+
+def default_data() -> DataSet:
+    """The built-in data set, read once per process (used for validation)."""
+    global _DEFAULT
+    if _DEFAULT is None:
+        _DEFAULT = DataSet()
+    return _DEFAULT

@@ -1,0 +1,212 @@
+"""Designing one member: context (strengths, factors, section), load cases, checks.
+
+The member types are a small registry filled in :func:`member_types`; each
+type is a function from a :class:`Context` to its list of check results.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass, field
+
+from .checks import CheckResult
+from .checks.compression import check_compression
+from .checks.tension import check_tension
+from .data import DataSet, Datum, Recorded
+from .errors import DesignError, TimbersheetsError
+from .loads import EFFECTS, LOAD_TYPES, Effects, LoadCase, apply_combinations
+from .materials import Strengths, strengths
+from .schedule import Member, RowError
+from .sections import Section, service_category
+
+SERVICE_PROPERTIES = ("K_Sb", "K_Sv", "K_Sc", "K_Scp", "K_St", "K_SE")
+EPS = 1e-9
+
+
+@dataclass
+class Context:
+    """Everything a check needs about one member, as floats in compute units."""
+
+    member: Member
+    section: Section
+    strengths: Strengths
+    f: Recorded  # specified strengths (MPa) by symbol
+    K_S: Recorded
+    phi: Recorded
+    used: list[Datum] = field(default_factory=list)
+    K_Zt: float = 1.0
+
+    @property
+    def mark(self) -> str:
+        return self.member.mark
+
+    @property
+    def glulam(self) -> bool:
+        return self.member.material == "glulam"
+
+    @property
+    def K_H(self) -> float:
+        return self.member.K_H
+
+    @property
+    def K_T(self) -> float:
+        return self.member.K_T
+
+    @property
+    def K_e(self) -> float:
+        return self.member.Ke
+
+    @property
+    def length(self) -> float:
+        return self.member.length
+
+    @property
+    def L_x(self) -> float:
+        return self.member.Lx
+
+    @property
+    def L_y(self) -> float:
+        return self.member.Ly
+
+    @property
+    def A_n(self) -> float:
+        return self.section.A * self.member.net_area
+
+
+def effects_of(member: Member) -> Effects:
+    """Specified effects by type from the row's P_*, M_*, V_*, w_* columns."""
+    return Effects({e: {t: member.values[f"{e}_{t}"] for t in LOAD_TYPES} for e in EFFECTS})
+
+
+def build_context(member: Member, data: DataSet, section: Section | None = None) -> Context:
+    """Look up strengths and factors for `member` (or for `section` while sizing)."""
+    section = section or member.section
+    used: list[Datum] = []
+    f = strengths(data, member.material, member.species, member.grade, section)
+    category = "all" if member.material == "glulam" else service_category(section)
+    K_S = {p: data.service_factor(member.material, category, p, member.service) for p in SERVICE_PROPERTIES}
+    phi = {a: data.resistance_factor(a) for a in ("tension", "compression", "bending", "shear", "bearing")}
+    ctx = Context(member, section, f, Recorded(f.values, used), Recorded(K_S, used), Recorded(phi, used), used)
+    if member.material == "sawn":
+        kzt = data.size_factor_sawn("K_Zt", section.smaller, section.larger)
+        ctx.K_Zt = kzt.value
+        used.append(kzt)
+    return ctx
+
+
+def _axial(sense: str) -> Callable[[Context, list[LoadCase]], list[CheckResult]]:
+    """Design function for an axial member; `sense` is 'tension' or 'compression'."""
+    check = check_tension if sense == "tension" else check_compression
+
+    def design(ctx: Context, cases: list[LoadCase]) -> list[CheckResult]:
+        if ctx.member.plies > 1 and sense == "compression":
+            raise DesignError(ctx.mark, "built-up (multi-ply) columns need the rules for nailed or bolted "
+                              "built-up columns, which this version does not implement", "O86:19 6.5.6.4",
+                              "Design it as a solid section or by hand")
+        worst = min(cases, key=lambda c: c.factored["P"], default=None)
+        if worst is not None and worst.factored["P"] < -EPS:
+            other = "compression" if sense == "tension" else "tension"
+            raise DesignError(ctx.mark, f"is in {other} ({-worst.factored['P'] / 1000:.1f} kN) under {worst.label}",
+                              "", f"A {sense} member must stay in {sense}; design the reversal as its own member")
+        out = [check(ctx, case, case.factored["P"]) for case in cases if case.factored["P"] > EPS]
+        if not out:
+            raise DesignError(ctx.mark, "carries no axial force", "", "Give the axial loads P_D … P_E")
+        return out
+
+    return design
+
+
+@dataclass(frozen=True)
+class MemberType:
+    name: str
+    design: Callable[[Context, list[LoadCase]], list[CheckResult]]
+    template: str
+    description: str
+
+
+def member_types() -> dict[str, MemberType]:
+    """The member types this version designs (the one place they are registered)."""
+    return {
+        "tension": MemberType("tension", _axial("tension"), "axial.ipynb", "tension member"),
+        "compression": MemberType("compression", _axial("compression"), "axial.ipynb", "compression member"),
+    }
+
+
+@dataclass
+class MemberDesign:
+    """The outcome for one schedule row."""
+
+    mark: str
+    row: int
+    member: Member | None
+    context: Context | None = None
+    cases: list[LoadCase] = field(default_factory=list)
+    checks: list[CheckResult] = field(default_factory=list)
+    errors: list[str] = field(default_factory=list)
+    warnings: list[str] = field(default_factory=list)
+    data_used: list[Datum] = field(default_factory=list)
+
+    @property
+    def status(self) -> str:
+        if self.errors:
+            return "error"
+        return "fail" if any(c.utilization > 1.0 for c in self.checks) else "pass"
+
+    @property
+    def governing(self) -> CheckResult | None:
+        return max(self.checks, key=lambda c: c.utilization) if self.checks else None
+
+    def governing_by_check(self) -> dict[str, CheckResult]:
+        """The highest-utilization result of each check name, in first-seen order."""
+        out: dict[str, CheckResult] = {}
+        for c in self.checks:
+            if c.check not in out or c.utilization > out[c.check].utilization:
+                out[c.check] = c
+        return out
+
+    @property
+    def data_warnings(self) -> list[str]:
+        return DataSet.warnings_for(self.data_used)
+
+    @property
+    def size(self) -> str:
+        if self.context:
+            return self.context.section.label
+        if self.member and self.member.size != "auto":
+            return Section(self.member.size[0], self.member.size[1], self.member.plies).label
+        return ""
+
+
+def design_member(member: Member, data: DataSet) -> MemberDesign:
+    """Design one validated member. Engineering limits become errors, not crashes."""
+    outcome = MemberDesign(member.mark, member.row, member, warnings=list(member.warnings))
+    kind = member_types().get(member.type)
+    if kind is None:
+        outcome.errors.append(f"type '{member.type}' is not designed by this version "
+                              f"(available: {', '.join(member_types())})")
+        return outcome
+    if member.size == "auto":
+        outcome.errors.append("size 'auto' (automatic sizing) is not available in this version; give a size")
+        return outcome
+    try:
+        ctx = build_context(member, data)
+        cases = apply_combinations(effects_of(member), data, ctx.used, member.K_D)
+        outcome.context, outcome.cases = ctx, cases
+        outcome.checks = kind.design(ctx, cases)
+    except TimbersheetsError as exc:
+        outcome.errors.append(str(exc))
+    except Exception as exc:  # a defect must not stop the other members  # noqa: BLE001
+        outcome.errors.append(f"internal error while designing ({type(exc).__name__}: {exc}); please report it")
+    if outcome.context:
+        outcome.data_used = list(outcome.context.used)
+    return outcome
+
+
+def rejected(entry: RowError) -> MemberDesign:
+    """The outcome of a row that failed validation."""
+    return MemberDesign(entry.mark, entry.row, None, errors=[str(e) for e in entry.errors], warnings=entry.warnings)
+
+
+def design_all(entries: list[Member | RowError], data: DataSet) -> list[MemberDesign]:
+    return [design_member(e, data) if isinstance(e, Member) else rejected(e) for e in entries]
+

@@ -1,0 +1,87 @@
+"""One exception family. The library raises; the CLI decides how to show it.
+
+Every error carries structured context and builds its message in ``__str__``,
+so it can be logged, pickled across worker processes and shown the same way.
+"""
+
+from __future__ import annotations
+
+
+class TimbersheetsError(Exception):
+    """Base of every error the program raises on purpose."""
+
+
+class JobError(TimbersheetsError):
+    """The job as a whole is unusable (no schedule, bad project.toml): exit 2."""
+
+    def __init__(self, path: str, problem: str, fix: str = "") -> None:
+        super().__init__(path, problem, fix)
+        self.path, self.problem, self.fix = path, problem, fix
+
+    def __str__(self) -> str:
+        text = f"{self.path}: {self.problem}"
+        return f"{text}. {self.fix}" if self.fix else text
+
+
+class ScheduleError(TimbersheetsError):
+    """One bad cell (or row) of the schedule.
+
+    `row` is the row number as a spreadsheet shows it (the header is row 1).
+    """
+
+    def __init__(
+        self,
+        file: str,
+        row: int | None,
+        column: str | None,
+        value: str | None,
+        problem: str,
+        allowed: str = "",
+    ) -> None:
+        super().__init__(file, row, column, value, problem, allowed)
+        self.file, self.row, self.column = file, row, column
+        self.value, self.problem, self.allowed = value, problem, allowed
+
+    def __str__(self) -> str:
+        where = self.file
+        if self.row is not None:
+            where += f", row {self.row}"
+        if self.column:
+            where += f", column '{self.column}'"
+        text = f"{where}: "
+        if self.value is not None:
+            text += f"value '{self.value}' "
+        text += self.problem
+        if self.allowed:
+            text += f"; allowed: {self.allowed}"
+        return text
+
+
+class DataError(TimbersheetsError):
+    """A data file (strengths, factors, sizes) is missing, malformed or lacks a value."""
+
+    def __init__(self, file: str, problem: str) -> None:
+        super().__init__(file, problem)
+        self.file, self.problem = file, problem
+
+    def __str__(self) -> str:
+        return f"{self.file}: {self.problem}"
+
+
+class DesignError(TimbersheetsError):
+    """The member cannot be designed as described (e.g. slenderness C_c > 50).
+
+    These are engineering limits of the standard, reported instead of a number.
+    """
+
+    def __init__(self, mark: str, problem: str, clause: str = "", fix: str = "") -> None:
+        super().__init__(mark, problem, clause, fix)
+        self.mark, self.problem, self.clause, self.fix = mark, problem, clause, fix
+
+    def __str__(self) -> str:
+        text = f"{self.mark}: {self.problem}"
+        if self.clause:
+            text += f" ({self.clause})"
+        if self.fix:
+            text += f". {self.fix}"
+        return text

@@ -1,0 +1,165 @@
+"""NBC Part 4 ULS load combinations and the CSA O86 load-duration factor K_D.
+
+The combinations are data (``nbc2020_uls_combinations.csv``, NBC 2020 Table
+4.1.3.2.-A). They are applied to every force effect a member has: axial force P,
+moment M, shear V and line load w, each given per load type D, L, S, W, E.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from math import log10
+
+from .calc import calc
+from .data import DataSet, Datum
+
+LOAD_TYPES = ("D", "L", "S", "W", "E")
+EFFECTS = ("P", "M", "V", "w")
+EFFECT_UNITS = {"P": "N", "M": "N*mm", "V": "N", "w": "N/mm"}
+#: Duration class of each load type (CSA O86 5.3.2; Table 5.1 examples).
+DURATION_CLASS = {"D": "long", "L": "standard", "S": "standard", "W": "short", "E": "short"}
+STANDARD_TERM = ("L", "S")
+KD_FLOOR = 0.65
+
+
+@dataclass(frozen=True)
+class Combination:
+    """One row of the NBC combination table."""
+
+    id: str
+    case: int
+    factors: dict[str, float]
+    principal: str
+    note: str
+    datum: Datum
+
+    @property
+    def label(self) -> str:
+        """E.g. ``1.25D + 1.5S + 1.0L``: dead load, the principal load, then companions."""
+        order = list(dict.fromkeys(["D", self.principal, *LOAD_TYPES]))
+        parts = []
+        for t in order:
+            factor = self.factors[t]
+            if factor:
+                text = f"{factor:.2f}".rstrip("0")
+                parts.append(f"{text}0{t}" if text.endswith(".") else f"{text}{t}")
+        return " + ".join(parts)
+
+    @property
+    def reduced_dead(self) -> bool:
+        """True for the 0.9D alternative (dead load resisting)."""
+        return 0 < self.factors["D"] < 1.0
+
+
+def combinations(data: DataSet) -> list[Combination]:
+    """All ULS combinations of the data file, in its order."""
+    out = []
+    file = data.files["nbc2020_uls_combinations.csv"]
+    for row in data.combination_rows:
+        factors = {t: float(row[t] or 0) for t in LOAD_TYPES}
+        datum = data._datum(file, row, f"NBC combination {row['id']}", "case")
+        out.append(Combination(row["id"], int(row["case"]), factors, row["principal"], row.get("note", ""), datum))
+    return out
+
+
+@dataclass(frozen=True)
+class Effects:
+    """Specified (unfactored) effects by effect and load type, in compute units."""
+
+    values: dict[str, dict[str, float]]
+
+    def get(self, effect: str, load: str) -> float:
+        return self.values.get(effect, {}).get(load, 0.0)
+
+    def present(self) -> list[str]:
+        return [e for e in EFFECTS if any(self.get(e, t) for t in LOAD_TYPES)]
+
+    def dead_resists(self) -> bool:
+        """Some other load acts against the dead load (NBC 4.1.3.2.(5): use 0.9D)."""
+        return any(self.get(e, "D") * self.get(e, t) < 0 for e in EFFECTS for t in LOAD_TYPES[1:])
+
+
+@calc(units={"P_L": "N", "P_S": "N", "K_D": ""}, clause="O86:19 5.3.2.3")
+def kd_permanent(P_L, P_S):
+    K_D = max(1.0 - 0.50 * log10(P_L / P_S), 0.65)
+    return locals()
+
+
+@dataclass(frozen=True)
+class LoadCase:
+    """A combination applied to one member: factored effects and K_D."""
+
+    combination: Combination
+    factored: dict[str, float]
+    K_D: float
+    basis: str  # why this K_D, in words, for the sheet
+    kd_values: dict[str, float] = field(default_factory=dict)  # P_L, P_S, K_D when the formula was used
+    kd_effect: str = ""
+
+    @property
+    def label(self) -> str:
+        return self.combination.label
+
+
+def load_duration(comb: Combination, effects: Effects, data: DataSet, used: list[Datum],
+                  override: float | None) -> tuple[float, str, dict[str, float], str]:
+    """K_D for one combination (CSA O86:19 5.3.2, Table 5.1).
+
+    The class of the principal load sets K_D: long term (dead only) 0.65,
+    standard term (L or S principal) 1.0, short term (W or E principal) 1.15.
+    For a standard-term combination where the specified long-term (dead) effect
+    P_L exceeds the specified standard-term effect P_S of that combination,
+    K_D = 1.0 − 0.50 log10(P_L/P_S) ≥ 0.65 (5.3.2.3). Where the member has
+    several effects (P, M, V, w), the lowest K_D of them is used. The schedule's
+    K_D column overrides all of this.
+    """
+    if override is not None:
+        return override, "schedule K_D override", {}, ""
+    cls = DURATION_CLASS[comb.principal]
+    table = data.duration_factor(cls)
+    used.append(table)
+    if cls != "standard":
+        return table.value, f"{cls}-term ({comb.principal} principal), Table 5.1", {}, ""
+    best: tuple[float, dict[str, float], str] = (table.value, {}, "")
+    for effect in effects.present():
+        p_l = abs(effects.get(effect, "D"))
+        p_s = abs(sum(effects.get(effect, t) for t in STANDARD_TERM if comb.factors[t]))
+        if p_s > 0 and p_l > p_s:
+            values = kd_permanent(P_L=p_l, P_S=p_s)
+            if values["K_D"] < best[0]:
+                best = (values["K_D"], values, effect)
+    kd, values, effect = best
+    if values:
+        return kd, f"standard-term, long-term part P_L > P_S (5.3.2.3, on {effect})", values, effect
+    return kd, f"standard-term ({comb.principal} principal), Table 5.1", {}, ""
+
+
+def apply_combinations(effects: Effects, data: DataSet, used: list[Datum],
+                       override: float | None = None) -> list[LoadCase]:
+    """Every combination that matters for the member, with factored effects and K_D.
+
+    Skipped: combinations whose principal load the member does not carry, the
+    0.9D alternatives unless some load acts against the dead load, combinations
+    whose factored effects are all zero, and duplicates (same effects and K_D)
+    of a combination listed before.
+    """
+    cases: list[LoadCase] = []
+    seen: set[tuple] = set()
+    resists = effects.dead_resists()
+    for comb in combinations(data):
+        if comb.principal != "D" and not any(effects.get(e, comb.principal) for e in EFFECTS):
+            continue
+        if comb.reduced_dead and not resists:
+            continue
+        factored = {e: sum(comb.factors[t] * effects.get(e, t) for t in LOAD_TYPES) for e in EFFECTS}
+        if all(abs(v) < 1e-9 for v in factored.values()):
+            continue
+        kd, basis, values, effect = load_duration(comb, effects, data, used, override)
+        key = tuple(round(factored[e], 6) for e in EFFECTS) + (round(kd, 6),)
+        if key in seen:
+            continue
+        seen.add(key)
+        used.append(comb.datum)
+        cases.append(LoadCase(comb, factored, kd, basis, values, effect))
+    return cases
+

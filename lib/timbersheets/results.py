@@ -1,0 +1,101 @@
+"""results.json and summary.csv: the machine-readable outcome of a run.
+
+The numbers are rounded by the same rule the sheets use (three significant
+figures, forces to 0.1 kN; utilization rounded *up* to three decimals), so a
+sheet and results.json never disagree.
+"""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+from typing import Any
+
+from . import __version__
+from .calc import round_sig
+from .checks import CheckResult
+from .design import MemberDesign
+from .fileio import write_csv, write_json
+
+
+def round_utilization(u: float) -> float:
+    """Utilization rounded up to 0.001, so 1.0004 shows as 1.001 (a fail reads as one)."""
+    if not math.isfinite(u):
+        return u
+    return math.ceil(round(u * 1000, 6)) / 1000
+
+
+def _num(value: float, unit: str) -> float:
+    return round_sig(value, unit, 4)
+
+
+def check_json(c: CheckResult) -> dict[str, Any]:
+    unit = {"kN*m": "kN·m"}.get(c.unit, c.unit)
+    return {
+        "check": c.check,
+        "combination": c.combination,
+        "K_D": round(c.K_D, 3),
+        "demand": _num(c.demand, c.unit),
+        "resistance": _num(c.resistance, c.unit),
+        "unit": unit,
+        "utilization": round_utilization(c.utilization),
+        "clause": c.clause,
+        "factors": {k: round_sig(v, "", 4) for k, v in c.factors.items()},
+    }
+
+
+def member_json(d: MemberDesign, extra: dict[str, Any] | None = None) -> dict[str, Any]:
+    gov = d.governing
+    doc: dict[str, Any] = {
+        "mark": d.mark,
+        "row": d.row,
+        "type": d.member.type if d.member else None,
+        "material": d.member.material if d.member else None,
+        "status": d.status,
+        "size": d.size,
+        "inputs_hash": d.member.inputs_hash if d.member else None,
+        "utilization": round_utilization(gov.utilization) if gov and not d.errors else None,
+        "governing": ({"check": gov.check, "combination": gov.combination, "K_D": round(gov.K_D, 3)}
+                      if gov and not d.errors else None),
+        "checks": [check_json(c) for c in d.checks] if not d.errors else [],
+        "data_warnings": d.data_warnings,
+        "warnings": d.warnings,
+        "changed_since": None,
+        "review": {"status": "not-checked"},
+        "errors": d.errors,
+    }
+    if extra:
+        doc.update(extra)
+    return doc
+
+
+def results_doc(job: str, revision: str, codes: dict[str, str], designs: list[MemberDesign],
+                data_manifest: list[dict[str, str]], data_hash: str, warnings: list[str],
+                extra: dict[str, dict[str, Any]] | None = None) -> dict[str, Any]:
+    extra = extra or {}
+    return {
+        "job": job,
+        "revision": revision,
+        "tool_version": __version__,
+        "codes": codes,
+        "data": {"hash": data_hash, "files": data_manifest},
+        "schedule_warnings": warnings,
+        "members": [member_json(d, extra.get(d.mark)) for d in designs],
+    }
+
+
+SUMMARY_HEADER = ["mark", "type", "material", "size", "status", "utilization", "governing_check",
+                  "governing_combination", "K_D", "data_warnings", "errors"]
+
+
+def write_results(outdir: Path, doc: dict[str, Any]) -> None:
+    """results.json and summary.csv, each written atomically."""
+    write_json(outdir / "results.json", doc)
+    rows = []
+    for m in doc["members"]:
+        gov = m["governing"] or {}
+        rows.append([m["mark"], m["type"] or "", m["material"] or "", m["size"], m["status"],
+                     "" if m["utilization"] is None else f"{m['utilization']:.3f}", gov.get("check", ""),
+                     gov.get("combination", ""), "" if not gov else f"{gov['K_D']:.3f}",
+                     len(m["data_warnings"]), " | ".join(m["errors"])])
+    write_csv(outdir / "summary.csv", SUMMARY_HEADER, rows)

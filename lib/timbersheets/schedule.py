@@ -1,0 +1,443 @@
+"""Reading and validating the member schedule (CSV or .xlsx).
+
+Every row is validated before anything is computed. A bad cell becomes a
+:class:`~timbersheets.errors.ScheduleError` naming the file, the row as a
+spreadsheet shows it (header = row 1), the column, the value and what is
+allowed. A bad row is kept as an error entry; the other rows go on.
+"""
+
+from __future__ import annotations
+
+import csv
+import difflib
+import hashlib
+import json
+import math
+import re
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from .errors import JobError, ScheduleError
+from .materials import GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, sawn_table_grade
+from .sections import Section, parse_size, sawn_category
+from .units import UnitParseError, convert, parse_quantity
+
+LOAD_TYPES = ("D", "L", "S", "W", "E")
+MEMBER_TYPES = ("tension", "compression", "bending", "beam-column", "tension-bending")
+MARK = re.compile(r"^[A-Za-z0-9._-]+$")
+EXTRA = "\x00extra"  # key marking a row with more cells than the header
+
+
+@dataclass(frozen=True)
+class Column:
+    """One schedule column: how to read it and what it defaults to."""
+
+    name: str
+    kind: str  # text | choice | quantity | number | count | size
+    unit: str = ""  # unit a bare number is in (quantity)
+    compute: str = ""  # unit the library works in (quantity)
+    default: Any = None
+    required: bool = False
+    choices: tuple[str, ...] = ()
+    minimum: float | None = None  # values must be >= minimum (or > when strict)
+    strict: bool = False
+
+
+def _columns() -> tuple[Column, ...]:
+    cols = [
+        Column("mark", "text", required=True),
+        Column("type", "choice", required=True, choices=MEMBER_TYPES),
+        Column("material", "choice", required=True, choices=("sawn", "glulam")),
+        Column("species", "text", required=True),
+        Column("grade", "text", required=True),
+        Column("size", "size", required=True),
+        Column("plies", "count", default=1, minimum=1),
+        Column("service", "choice", default="dry", choices=("dry", "wet")),
+        Column("K_T", "number", default=1.0, minimum=0, strict=True),
+        Column("K_H", "number", default=1.0, minimum=0, strict=True),
+        Column("length", "quantity", "m", "mm", required=True, minimum=0, strict=True),
+        Column("Ke", "number", default=1.0, minimum=0, strict=True),
+        Column("Lx", "quantity", "m", "mm", minimum=0),  # 0 = braced about x over the length
+        Column("Ly", "quantity", "m", "mm", minimum=0),  # 0 = braced about y (e.g. sheathing)
+        Column("Lu", "quantity", "m", "mm", default=0.0, minimum=0),
+        Column("net_area", "number", default=1.0, minimum=0, strict=True),
+        Column("bearing", "quantity", "mm", "mm", minimum=0, strict=True),
+    ]
+    for prefix, unit, compute in (("P", "kN", "N"), ("w", "kN/m", "N/mm"), ("M", "kN*m", "N*mm"), ("V", "kN", "N")):
+        cols += [Column(f"{prefix}_{t}", "quantity", unit, compute, default=0.0) for t in LOAD_TYPES]
+    cols += [
+        Column("defl_L", "number", default=360.0, minimum=0, strict=True),
+        Column("defl_total", "number", default=240.0, minimum=0, strict=True),
+        Column("K_D", "number", minimum=0, strict=True),
+        Column("width", "quantity", "mm", "mm", minimum=0, strict=True),
+        Column("max_depth", "quantity", "mm", "mm", minimum=0, strict=True),
+        Column("prefer", "choice", choices=("deep", "square")),
+        Column("note", "text", default=""),
+    ]
+    return tuple(cols)
+
+
+COLUMNS = {c.name: c for c in _columns()}
+REQUIRED = tuple(c.name for c in COLUMNS.values() if c.required)
+
+
+@dataclass
+class Member:
+    """A validated schedule row. Quantities are floats in compute units (N, mm)."""
+
+    mark: str
+    row: int
+    values: dict[str, Any]
+    given: frozenset[str]  # columns the row gave (not defaulted)
+    warnings: list[str] = field(default_factory=list)
+
+    def __getattr__(self, name: str) -> Any:
+        try:
+            return self.__dict__["values"][name]
+        except KeyError:
+            raise AttributeError(name) from None
+
+    @property
+    def section(self) -> Section:
+        b, d = self.values["size"]
+        return Section(b, d, self.values["plies"])
+
+    def params(self) -> dict[str, Any]:
+        """The inputs as JSON primitives, quantities as {"value", "unit"} in entry units.
+
+        This is what crosses into a notebook, and what the inputs hash covers.
+        """
+        out: dict[str, Any] = {"mark": self.mark, "row": self.row}
+        for name, value in self.values.items():
+            col = COLUMNS[name]
+            if col.kind == "quantity" and value is not None:
+                out[name] = {"value": round(convert(value, col.compute, col.unit), 9), "unit": col.unit}
+            elif col.kind == "size":
+                out[name] = f"{value[0]:g}x{value[1]:g}"
+            else:
+                out[name] = value
+        out["given"] = sorted(self.given)
+        return out
+
+    @classmethod
+    def from_params(cls, params: dict[str, Any]) -> "Member":
+        """Rebuild a member from :meth:`params` (inside a notebook)."""
+        values: dict[str, Any] = {}
+        for name, col in COLUMNS.items():
+            if name == "mark":
+                continue
+            raw = params[name]
+            if col.kind == "quantity" and raw is not None:
+                values[name] = convert(float(raw["value"]), raw["unit"], col.compute)
+            elif col.kind == "size":
+                values[name] = parse_size(raw)
+            else:
+                values[name] = raw
+        return cls(params["mark"], int(params["row"]), values, frozenset(params.get("given", ())))
+
+    @property
+    def inputs_hash(self) -> str:
+        text = json.dumps(self.params(), sort_keys=True, separators=(",", ":"))
+        return "sha256:" + hashlib.sha256(text.encode()).hexdigest()
+
+
+@dataclass
+class RowError:
+    """A row that could not be made into a member."""
+
+    mark: str
+    row: int
+    errors: list[ScheduleError]
+    warnings: list[str] = field(default_factory=list)
+
+
+@dataclass
+class Schedule:
+    path: Path
+    members: list[Member]
+    rejected: list[RowError]
+    warnings: list[str]
+
+    @property
+    def entries(self) -> list[Member | RowError]:
+        """Members and rejected rows in schedule order."""
+        return sorted([*self.members, *self.rejected], key=lambda e: e.row)
+
+
+# --------------------------------------------------------------------------- reading
+def read_rows(path: Path) -> tuple[list[str], list[tuple[int, dict[str, str]]], list[str]]:
+    """Header, rows as (spreadsheet row number, {column: text}), and notes."""
+    if not path.exists():
+        raise JobError(str(path), "no schedule file", "Create schedule.csv (timbersheets new DIR makes one)")
+    if path.suffix.lower() == ".xlsx":
+        return _read_xlsx(path)
+    raw = path.read_bytes()
+    try:
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        raise JobError(str(path), f"is not UTF-8 text (byte {exc.start})", "Save it as CSV UTF-8") from None
+    lines = text.splitlines()
+    notes: list[str] = []
+    first = next((ln for ln in lines if ln.strip()), "")
+    delimiter = ","
+    if first.count(";") > first.count(","):
+        delimiter = ";"
+        notes.append(f"{path.name}: read as semicolon-separated (decimal commas accepted)")
+    reader = csv.reader(lines, delimiter=delimiter)
+    table = list(reader)
+    if not table:
+        raise JobError(str(path), "is empty", "The first row must name the columns (mark, type, ...)")
+    header = [h.strip() for h in table[0]]
+    rows = []
+    for number, cells in enumerate(table[1:], start=2):
+        if not any(c.strip() for c in cells):
+            continue
+        if delimiter == ";":
+            cells = [re.sub(r"^(\s*[-+]?\d+),(\d+)", r"\1.\2", c) for c in cells]
+        row = {h: (cells[i].strip() if i < len(cells) else "") for i, h in enumerate(header)}
+        if any(c.strip() for c in cells[len(header):]):
+            row[EXTRA] = "yes"
+        rows.append((number, row))
+    return header, rows, notes
+
+
+def _read_xlsx(path: Path) -> tuple[list[str], list[tuple[int, dict[str, str]]], list[str]]:
+    import openpyxl
+
+    try:
+        book = openpyxl.load_workbook(path, read_only=True, data_only=True)
+    except Exception as exc:  # openpyxl raises many kinds for a bad file
+        raise JobError(str(path), f"cannot be read as .xlsx ({exc})") from None
+    sheet = book.worksheets[0]
+    table = [["" if v is None else (f"{v:g}" if isinstance(v, float) else str(v)) for v in row]
+             for row in sheet.iter_rows(values_only=True)]
+    book.close()
+    if not table:
+        raise JobError(str(path), "is empty")
+    header = [h.strip() for h in table[0]]
+    rows = [(n, {h: (cells[i].strip() if i < len(cells) else "") for i, h in enumerate(header) if h})
+            for n, cells in enumerate(table[1:], start=2) if any(c.strip() for c in cells)]
+    return header, rows, []
+
+
+# --------------------------------------------------------------------------- validating
+def load_schedule(path: Path) -> Schedule:
+    """Read and validate every row of the schedule at `path`."""
+    header, rows, notes = read_rows(path)
+    name = path.name
+    warnings = list(notes)
+    missing = [c for c in REQUIRED if c not in header]
+    if missing:
+        raise JobError(f"{name}, row 1", f"required column(s) missing: {', '.join(missing)}",
+                       f"The header must name at least: {', '.join(REQUIRED)}")
+    for col in header:
+        if col and col not in COLUMNS:
+            close = difflib.get_close_matches(col, COLUMNS, n=1, cutoff=0.6)
+            hint = f"; did you mean '{close[0]}'?" if close else ""
+            warnings.append(f"{name}, row 1, column '{col}': unknown column, ignored{hint}")
+    members: list[Member] = []
+    rejected: list[RowError] = []
+    first_row: dict[str, int] = {}
+    for number, cells in rows:
+        mark = cells.get("mark", "")
+        errors, values, given = _validate_row(name, number, cells)
+        if mark and MARK.match(mark):
+            if mark in first_row:
+                errors.insert(0, ScheduleError(name, number, "mark", mark,
+                                               f"is a duplicate of the mark in row {first_row[mark]}",
+                                               "a mark unique in the job"))
+            else:
+                first_row[mark] = number
+        if errors:
+            rejected.append(RowError(mark or f"row-{number}", number, errors))
+        else:
+            member = Member(mark, number, values, frozenset(given))
+            member.warnings.extend(_row_warnings(name, number, member))
+            members.append(member)
+    return Schedule(path, members, rejected, warnings)
+
+
+def _validate_row(file: str, row: int, cells: dict[str, str]) -> tuple[list[ScheduleError], dict[str, Any], set[str]]:
+    errors: list[ScheduleError] = []
+    values: dict[str, Any] = {}
+    given: set[str] = set()
+    if EXTRA in cells:
+        errors.append(ScheduleError(file, row, None, None, "has more cells than the header has columns",
+                                    "one cell per header column (quote text that contains commas)"))
+    for name, col in COLUMNS.items():
+        text = cells.get(name, "")
+        if not text:
+            if col.required:
+                errors.append(ScheduleError(file, row, name, "", "is blank, but the column is required", _allowed(col)))
+            values[name] = col.default
+            continue
+        given.add(name)
+        try:
+            values[name] = _read_cell(col, text)
+        except ValueError as exc:
+            errors.append(ScheduleError(file, row, name, text, str(exc), _allowed(col)))
+    if not errors:
+        errors += _cross_checks(file, row, values, given)
+    return errors, values, given
+
+
+def _allowed(col: Column) -> str:
+    if col.name == "mark":
+        return "letters, digits, '-', '_' and '.'"
+    if col.kind == "choice":
+        return ", ".join(col.choices)
+    if col.kind == "size":
+        return "b x d in mm, e.g. 38x235 or 130x228"
+    if col.kind == "count":
+        return "a whole number of at least 1"
+    if col.kind == "quantity":
+        bound = "greater than 0" if col.strict else "0 or more" if col.minimum is not None else "any sign"
+        return f"a number in {col.unit} ({bound}), or with its own unit, e.g. '12 ft'"
+    if col.kind == "number":
+        bound = "greater than 0" if col.strict else "0 or more"
+        return f"a plain number ({bound})"
+    return ""
+
+
+def _read_cell(col: Column, text: str) -> Any:
+    if col.kind == "text":
+        if col.name == "mark" and not MARK.match(text):
+            raise ValueError("has characters a mark may not have")
+        return text
+    if col.kind == "choice":
+        folded = {c.casefold(): c for c in col.choices}
+        if text.casefold() not in folded:
+            raise ValueError("is not one of the allowed values")
+        return folded[text.casefold()]
+    if col.kind == "size":
+        if text.casefold() == "auto":
+            return "auto"
+        try:
+            return parse_size(text)
+        except ValueError:
+            raise ValueError("is not a size") from None
+    if col.kind == "count":
+        if not re.fullmatch(r"\d+", text) or int(text) < 1:
+            raise ValueError("is not a whole number of at least 1")
+        return int(text)
+    if col.kind == "quantity":
+        try:
+            value = parse_quantity(text, col.unit)
+        except UnitParseError as exc:
+            raise ValueError(str(exc)) from None
+        _check_bound(col, value)
+        return convert(value, col.unit, col.compute)
+    try:
+        value = float(text)
+    except ValueError:
+        raise ValueError("is not a number") from None
+    if not math.isfinite(value):
+        raise ValueError("is not a finite number")
+    _check_bound(col, value)
+    return value
+
+
+def _check_bound(col: Column, value: float) -> None:
+    if col.minimum is None:
+        return
+    if col.strict and value <= col.minimum:
+        raise ValueError("must be greater than 0" if col.minimum == 0 else f"must exceed {col.minimum:g}")
+    if value < col.minimum:
+        raise ValueError("must not be negative" if col.minimum == 0 else f"must be at least {col.minimum:g}")
+
+
+def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> list[ScheduleError]:
+    """Rules that involve more than one cell: species/grade/size against the material."""
+    errs: list[ScheduleError] = []
+    material = v["material"]
+    table = GLULAM_SPECIES if material == "glulam" else SAWN_SPECIES
+    species = canonical(v["species"], table)
+    if species is None:
+        names = sorted(set(table.values()))
+        shorts = sorted(k for k in table if k not in names)
+        errs.append(ScheduleError(file, row, "species", v["species"], f"is not a {material} species",
+                                  f"{', '.join(names)} (or {', '.join(shorts)})"))
+    else:
+        v["species"] = species
+    from .data import default_data
+
+    data = default_data()
+    if material == "glulam":
+        grades = sorted(data.glulam_grades().get(species or "", ()))
+        grade = canonical_grade(v["grade"], tuple(grades))
+        if species and grade is None:
+            errs.append(ScheduleError(file, row, "grade", v["grade"], f"is not a glulam stress grade of {species}",
+                                      ", ".join(grades)))
+        elif grade:
+            v["grade"] = grade
+        if v["plies"] != 1:
+            errs.append(ScheduleError(file, row, "plies", str(v["plies"]), "applies to built-up sawn members only", "1 for glulam"))
+    else:
+        grade = canonical_grade(v["grade"], SAWN_GRADES)
+        if grade is None:
+            errs.append(ScheduleError(file, row, "grade", v["grade"], "is not a sawn lumber grade", ", ".join(SAWN_GRADES)))
+        else:
+            v["grade"] = grade
+    if v["size"] != "auto":
+        errs += _size_checks(file, row, v, data)
+    if v["net_area"] is not None and v["net_area"] > 1.0:
+        errs.append(ScheduleError(file, row, "net_area", f"{v['net_area']:g}", "is a ratio A_n/A_g and cannot exceed 1",
+                                  "a ratio from 0.75 to 1.0"))
+    elif v["net_area"] is not None and v["net_area"] < 0.75:
+        errs.append(ScheduleError(file, row, "net_area", f"{v['net_area']:g}",
+                                  "leaves less than 75 % of the gross area; O86 does not allow designing on it",
+                                  "a ratio from 0.75 to 1.0; reduce the holes or notches"))
+    for name in ("Lx", "Ly", "Lu"):
+        if v[name] is not None and v[name] > v["length"] * (1 + 1e-9) and name in given:
+            errs.append(ScheduleError(file, row, name, f"{v[name] / 1000:g} m", f"is longer than the member (length {v['length'] / 1000:g} m)",
+                                      f"at most the length, {v['length'] / 1000:g} m"))
+    for name in ("Lx", "Ly"):
+        if v[name] is None:
+            v[name] = v["length"]
+    return errs
+
+
+def _size_checks(file: str, row: int, v: dict[str, Any], data) -> list[ScheduleError]:
+    b, d = v["size"]
+    text = f"{b:g}x{d:g}"
+    if v["material"] == "glulam":
+        widths = data.glulam_widths
+        lam, min_depth = data.lamination
+        if b not in widths:
+            return [ScheduleError(file, row, "size", text, f"has a width that is not a standard glulam width",
+                                  f"widths {', '.join(f'{w:g}' for w in widths)} mm")]
+        if d < min_depth:
+            return [ScheduleError(file, row, "size", text, f"is shallower than the least glulam depth ({min_depth:g} mm)",
+                                  f"depths from {min_depth:g} mm in {lam:g} mm laminations")]
+        return []
+    pairs = {(min(pb, pd), max(pb, pd)) for _cat, pb, pd in data.sawn_sizes}
+    if (min(b, d), max(b, d)) not in pairs:
+        thick = sorted({p[0] for p in pairs if p[0] < 140})
+        timbers = sorted({p[0] for p in pairs if p[0] >= 140})
+        return [ScheduleError(file, row, "size", text, "is not a standard dressed sawn size",
+                              f"dimension lumber {'/'.join(f'{t:g}' for t in thick)} × 38…286 mm, "
+                              f"timbers {'/'.join(f'{t:g}' for t in timbers)} mm")]
+    section = Section(b, d, v["plies"])
+    category = sawn_category(section)
+    if sawn_table_grade(v["grade"], category) is None:
+        return [ScheduleError(file, row, "grade", v["grade"], f"is not a grade of {category.replace('-', ' and ')} sizes",
+                              "SS, No.1, No.2 for timbers; SS, No.1, No.2, No.1/No.2, No.3, Stud for dimension lumber")]
+    return []
+
+
+def _row_warnings(file: str, row: int, m: Member) -> list[str]:
+    out = []
+    if m.material == "glulam" and m.size != "auto":
+        lam, _ = default_lamination()
+        depth = m.size[1]
+        if abs(depth / lam - round(depth / lam)) > 1e-6:
+            out.append(f"{file}, row {row}, column 'size': glulam depth {depth:g} mm is not a multiple of "
+                       f"{lam:g} mm laminations")
+    return out
+
+
+def default_lamination() -> tuple[float, float]:
+    from .data import default_data
+
+    return default_data().lamination

@@ -1,0 +1,58 @@
+"""Shared helpers: build schedules from rows, design one member."""
+
+from __future__ import annotations
+
+import csv
+import io
+from pathlib import Path
+
+import pytest
+
+from timbersheets.data import DataSet
+from timbersheets.design import design_member
+from timbersheets.schedule import load_schedule
+
+REPO = Path(__file__).resolve().parent.parent
+DEMO = REPO / "calcsheets" / "kestrel-cove-boathouse"
+
+
+@pytest.fixture(scope="session")
+def data() -> DataSet:
+    return DataSet()
+
+
+def write_schedule(folder: Path, rows: list[dict[str, str]], name: str = "schedule.csv") -> Path:
+    header: list[str] = []
+    for row in rows:
+        header += [k for k in row if k not in header]
+    buffer = io.StringIO()
+    writer = csv.DictWriter(buffer, fieldnames=header, lineterminator="\n")
+    writer.writeheader()
+    writer.writerows(rows)
+    path = folder / name
+    path.write_text(buffer.getvalue(), encoding="utf-8")
+    return path
+
+
+def write_job(folder: Path, rows: list[dict[str, str]], revision: str = "A", extra: str = "") -> Path:
+    folder.mkdir(parents=True, exist_ok=True)
+    (folder / "project.toml").write_text(
+        f'[project]\ntitle = "Test job"\nnumber = "T-01"\nrevision = "{revision}"\ndate = "2026-12-01"\n'
+        f'designer = "MT"\nchecker = "RD"\n{extra}', encoding="utf-8")
+    write_schedule(folder, rows)
+    return folder
+
+
+BASE = {"type": "compression", "material": "sawn", "species": "S-P-F", "grade": "No.1/No.2",
+        "size": "38x140", "length": "3.0", "P_D": "5"}
+
+
+def member_row(mark: str = "M-1", **cells: str) -> dict[str, str]:
+    return {"mark": mark, **BASE, **cells}
+
+
+def design_row(tmp_path: Path, data: DataSet, **cells: str):
+    """Validate one row through the real schedule reader and design it."""
+    schedule = load_schedule(write_schedule(tmp_path, [member_row(**cells)]))
+    assert not schedule.rejected, [str(e) for r in schedule.rejected for e in r.errors]
+    return design_member(schedule.members[0], data)
