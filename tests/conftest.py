@@ -44,7 +44,8 @@ def write_job(folder: Path, rows: list[dict[str, str]], revision: str = "A", ext
 
 
 BASE = {"type": "compression", "material": "sawn", "species": "S-P-F", "grade": "No.1/No.2",
-        "size": "38x140", "length": "3.0", "P_D": "5"}
+        "size": "38x140", "length": "3.0", "Ly": "0", "P_D": "5"}
+
 
 
 def member_row(mark: str = "M-1", **cells: str) -> dict[str, str]:

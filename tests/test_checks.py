@@ -90,7 +90,7 @@ def test_glulam_tension_net_and_gross(tmp_path, data):
 def test_slenderness_over_50_is_an_error(tmp_path, data):
     # CSA O86 6.5.6.2: C_c shall not exceed 50. 38x140 stud, 2.75 m unbraced about the weak
     # axis: C_c = 2750/38 = 72.4 → an error, not a number.
-    d = design_row(tmp_path, data, size="38x140", length="2.75", P_D="2", P_L="4")
+    d = design_row(tmp_path, data, size="38x140", length="2.75", Ly="", P_D="2", P_L="4")
     assert d.status == "error"
     assert "C_c = 72.4" in d.errors[0] and "exceeds 50" in d.errors[0]
     assert not d.checks

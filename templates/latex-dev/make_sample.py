@@ -232,7 +232,7 @@ Bearing, $Q_f \le Q_r$ & O86 7.5.9 & --- & --- & --- & not run \\
 VERDICT = r"""
 \begin{verdictbox}
 \begin{tabularx}{\linewidth}{@{}lL@{}}
-{\large PASSES} & \\[2pt]
+\multicolumn{2}{@{}l}{\Large PASSES} \\[3pt]
 Governing check & Shear at the support, O86 cl.~7.5.7.2 \\
 Combination & 3: $1.25D + 1.5S + 0.4W$, $K_D = 1.00$ \\
 Utilization & $V_f / V_r = 71.1 / 83.0 = 0.857$ \\
