@@ -27,10 +27,6 @@ from typing import Any
 
 from .units import display_unit, to_display
 
-#: Names the equations may use from math; they are rendered as symbols.
-MATH_NAMES = {"pi": math.pi, "sqrt": math.sqrt, "log10": math.log10}
-
-
 class Calc:
     """One design equation group, e.g. the factored tensile resistance.
 
@@ -79,16 +75,25 @@ class Calc:
         """The body as handcalcs cell source, one statement per line."""
         return "\n".join(ast.unparse(s) for s in self.statements)
 
-    def latex(self, values: Mapping[str, float], precision: int = 3) -> str:
-        """Render the equations with `values` (as returned by ``__call__``)."""
+    def latex(self, values: Mapping[str, float], precision: int = 3,
+              units: Mapping[str, str] | None = None, source: str | None = None) -> str:
+        """Render the equations with `values` (as returned by ``__call__``).
+
+        `units` overrides the declared compute units (e.g. K_D on moments).
+        """
+        declared = {**self.units, **(units or {})}
         from handcalcs import global_config
         from handcalcs.handcalcs import latex
 
         shown: dict[str, Any] = {name: Shown(r"\pi") for name in ("pi",)}
         for name, value in values.items():
-            shown[name] = Shown(format_value(value, self.units.get(name, ""), precision))
+            shown[name] = Shown(format_value(value, declared.get(name, ""), precision))
         config = dict(global_config._config)
-        return latex(self.source, shown, "", config, precision, False)
+        return latex(source if source is not None else self.source, shown, "", config, precision, False)
+
+    def latex_lines(self, values: Mapping[str, float], units: Mapping[str, str] | None = None) -> str:
+        """Like :meth:`latex`, one display block per statement."""
+        return "\n".join(self.latex(values, units=units, source=ast.unparse(s)) for s in self.statements)
 
 
 def calc(units: Mapping[str, str], clause: str = "") -> Callable[[Callable[..., dict]], Calc]:

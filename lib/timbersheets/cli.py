@@ -39,6 +39,10 @@ def _parser() -> argparse.ArgumentParser:
     run.add_argument("--no-pdf", action="store_true", help="write results only; no notebooks or PDFs")
     run.add_argument("--out", type=Path, help="put the revision folder in OUTDIR/rev-<R>/ instead of outputs/<job>/")
     run.add_argument("--only", metavar="MARKS", help="comma-separated member marks to run (others are left out)")
+    run.add_argument("--jobs", type=int, metavar="N", help="members executed at once (default: number of CPUs)")
+    run.add_argument("--force", action="store_true", help="re-execute every member, ignoring the cache")
+    run.add_argument("--format", choices=("pdf", "html"), default="pdf",
+                     help="sheet format: pdf (xelatex) or html (needs no TeX); default pdf")
     return p
 
 
@@ -61,7 +65,11 @@ def cmd_run(args: argparse.Namespace) -> int:
     from .runner import run_job
 
     only = [m.strip() for m in args.only.split(",") if m.strip()] if args.only else None
-    report = run_job(args.dir, out=args.out, only=only)
+    from .runner import RunOptions
+
+    opts = RunOptions(out=args.out, only=only, sheets=not args.no_pdf, fmt=args.format, jobs=args.jobs,
+                      force=args.force)
+    report = run_job(args.dir, opts)
     for line in report.schedule_warnings:
         print(f"warning: {line}", file=sys.stderr)
     for d in report.designs:

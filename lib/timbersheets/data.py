@@ -47,6 +47,7 @@ class Datum:
     source: str
     status: str
     file: str
+    symbol: str = ""  # the O86 symbol the value stands for (f_t, K_Sc, phi …)
 
     @property
     def verified(self) -> bool:
@@ -148,12 +149,14 @@ class DataSet:
             items.append({"file": str(self.firm.path), "sha256": self.firm.sha256, "role": "firm materials (wins)"})
         return items
 
-    def _datum(self, file: DataFile, row: dict[str, str], label: str, column: str = "value") -> Datum:
+    def _datum(self, file: DataFile, row: dict[str, str], label: str, column: str = "value",
+               symbol: str = "") -> Datum:
         try:
             value = float(row[column])
         except (KeyError, ValueError):
             raise DataError(file.name, f"{label}: '{row.get(column)}' is not a number") from None
-        return Datum(value, label, _table(row), row.get("source", "").strip(), row.get("status", "").strip(), file.name)
+        return Datum(value, label, _table(row), row.get("source", "").strip(), row.get("status", "").strip(),
+                     file.name, symbol or label.split(" ")[0])
 
     def _find(self, file_name: str, label: str, column: str = "value", **key: str) -> Datum:
         candidates = []

@@ -85,3 +85,19 @@ class DesignError(TimbersheetsError):
         if self.fix:
             text += f". {self.fix}"
         return text
+
+
+class ParameterError(TimbersheetsError):
+    """Parameters for a template that it does not declare, or that are missing."""
+
+    def __init__(self, unknown: list[str], missing: list[str], where: str = "member") -> None:
+        super().__init__(unknown, missing, where)
+        self.unknown, self.missing, self.where = unknown, missing, where
+
+    def __str__(self) -> str:
+        parts = []
+        if self.unknown:
+            parts.append(f"unknown {self.where} parameter(s): {', '.join(self.unknown)}")
+        if self.missing:
+            parts.append(f"missing {self.where} parameter(s): {', '.join(self.missing)}")
+        return "; ".join(parts) + " (refused before execution)"

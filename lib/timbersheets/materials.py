@@ -68,7 +68,7 @@ def strengths(data: DataSet, material: str, species: str, grade: str, section: S
         e = out.values["E"]
         out.values["E05"] = Datum(e05, f"E05 = {ratio.value:g} E of {species} {grade} glulam",
                                   f"{e.table}; {ratio.table}", f"{e.source}; {ratio.source}",
-                                  combined_status(e, ratio), ratio.file)
+                                  combined_status(e, ratio), ratio.file, "E05")
         return out
     category = sawn_category(section)
     table_grade = sawn_table_grade(grade, category)

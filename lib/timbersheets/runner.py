@@ -1,22 +1,44 @@
 """A run: validate the schedule, design every member, write the outputs.
 
 Per-member failures are collected and the run goes on with the other members.
+Sheets are executed and converted in worker processes (``jobs``); everything is
+written to a temporary name and renamed into place.
 """
 
 from __future__ import annotations
 
+import multiprocessing
+import os
 import time
+from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from . import __version__
 from .data import DataSet
-from .design import MemberDesign, design_all
+from .design import MemberDesign, design_all, member_types
 from .fileio import write_atomic
+from .pipeline import templates_dir
+from .progress import Progress
 from .project import Project, load_project
-from .results import results_doc, write_results
+from .results import member_json, results_doc, write_results
 from .schedule import Schedule, load_schedule
+from .sheetjobs import SheetOutcome, SheetTask, run_sheet
+from .sheets import CAUTION
+from .tex import escape
 
 EXIT_PASS, EXIT_MEMBERS, EXIT_JOB = 0, 1, 2
+
+
+@dataclass
+class RunOptions:
+    out: Path | None = None
+    only: list[str] | None = None
+    sheets: bool = True  # False with --no-pdf
+    fmt: str = "pdf"  # pdf | html
+    jobs: int | None = None
+    force: bool = False
+    progress: bool = True
 
 
 @dataclass
@@ -25,7 +47,9 @@ class RunReport:
     outdir: Path
     designs: list[MemberDesign]
     schedule_warnings: list[str]
+    sheets: dict[str, SheetOutcome] = field(default_factory=dict)
     log: list[str] = field(default_factory=list)
+    package: Path | None = None
 
     @property
     def exit_code(self) -> int:
@@ -37,6 +61,14 @@ class RunReport:
             out[d.status] += 1
         return out
 
+    @property
+    def executed(self) -> list[str]:
+        return [m for m, s in self.sheets.items() if s.executed]
+
+    @property
+    def converted(self) -> list[str]:
+        return [m for m, s in self.sheets.items() if s.converted]
+
 
 def default_outputs(folder: Path) -> Path:
     """``outputs/`` beside ``calcsheets/`` for a job kept there, else ./outputs."""
@@ -46,9 +78,12 @@ def default_outputs(folder: Path) -> Path:
     return Path.cwd() / "outputs"
 
 
+def job_dir(project: Project, out: Path | None) -> Path:
+    return out if out is not None else default_outputs(project.folder) / project.name
+
+
 def revision_dir(project: Project, out: Path | None) -> Path:
-    base = out if out is not None else default_outputs(project.folder) / project.name
-    return base / f"rev-{project.revision}"
+    return job_dir(project, out) / f"rev-{project.revision}"
 
 
 def select(schedule: Schedule, only: list[str] | None) -> list:
@@ -59,24 +94,120 @@ def select(schedule: Schedule, only: list[str] | None) -> list:
     return entries
 
 
-def run_job(folder: Path, out: Path | None = None, only: list[str] | None = None) -> RunReport:
-    """Design every member of the job in `folder` and write results.json and summary.csv."""
+def titleblock(project: Project, design: MemberDesign, data: DataSet, checked: str = "not checked") -> dict[str, str]:
+    """Title block fields for one sheet, escaped for LaTeX."""
+    f = project.fields
+    m = design.member
+    description = (m.note if m and m.note else f"{m.type} member" if m else "")
+    short = description if len(description) <= 90 else description[:87].rstrip() + "..."
+    raw = {
+        "project": f["title"], "number": f["number"], "location": f["location"], "client": f["client"],
+        "mark": design.mark, "description": short, "revision": f["revision"], "date": f["date"],
+        "designed": f["designer"], "checked": checked, "engineer": f["engineer"],
+        "tool_version": f"timbersheets {__version__}",
+        "inputs_hash": (m.inputs_hash.split(":")[1][:12] if m else ""),
+        "data_hash": data.hash.split(":")[1][:12],
+        "caution": "Review and seal by a licensed professional engineer required; the codes adopted by the "
+                   "authority having jurisdiction govern.",
+    }
+    return {k: escape(v) for k, v in raw.items()}
+
+
+def sheet_tasks(project: Project, designs: list[MemberDesign], data: DataSet, outdir: Path,
+                opts: RunOptions) -> list[SheetTask]:
+    types = member_types()
+    cache = job_dir(project, opts.out) / ".cache"
+    tasks = []
+    for d in designs:
+        if d.member is None or d.member.type not in types:
+            continue
+        template = templates_dir() / types[d.member.type].template
+        params = {"member": d.member.params(), "codes": project.codes,
+                  "materials": str(project.materials) if project.materials else ""}
+        sheet = outdir / "sheets" / f"{d.mark}.{opts.fmt}" if opts.sheets else None
+        tasks.append(SheetTask(d.mark, template, params, titleblock(project, d, data), data.hash, cache,
+                               outdir / "notebooks" / f"{d.mark}.ipynb", sheet, opts.fmt, opts.force,
+                               project.folder.resolve()))
+    return tasks
+
+
+def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool) -> dict[str, SheetOutcome]:
+    """Execute and convert every task, `jobs` at a time; a failure stays with its member."""
+    jobs = max(1, jobs or os.cpu_count() or 1)
+    bar = Progress(len(tasks), "sheets") if progress else None
+    outcomes: dict[str, SheetOutcome] = {}
+
+    def done(task: SheetTask, outcome: SheetOutcome) -> None:
+        outcomes[task.mark] = outcome
+        if bar:
+            bar.step(task.mark)
+
+    if jobs == 1 or len(tasks) <= 1:
+        for task in tasks:
+            done(task, _safe_run(task))
+    else:
+        context = multiprocessing.get_context("spawn")
+        with ProcessPoolExecutor(max_workers=min(jobs, len(tasks)), mp_context=context) as pool:
+            futures = {pool.submit(_safe_run, t): t for t in tasks}
+            for future, task in futures.items():
+                done(task, future.result())
+    if bar:
+        bar.close()
+    return outcomes
+
+
+def _safe_run(task: SheetTask) -> SheetOutcome:
+    try:
+        return run_sheet(task)
+    except Exception as exc:  # a worker failure belongs to its member, not the run  # noqa: BLE001
+        return SheetOutcome(task.mark, error=f"{type(exc).__name__}: {exc}")
+
+
+def cross_check(design: MemberDesign, outcome: SheetOutcome) -> None:
+    """The sheet's own result record must equal the run's: else the member is an error."""
+    if outcome.error:
+        design.errors.append(f"sheet: {outcome.error}")
+        return
+    mine = member_json(design)
+    theirs = outcome.record or {}
+    keys = ("status", "utilization", "governing", "checks")
+    if any(mine.get(k) != theirs.get(k) for k in keys):
+        design.errors.append("sheet: the notebook's result differs from the run's own calculation")
+
+
+def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
+    """Design every member of the job in `folder` and write its revision folder."""
+    opts = opts or RunOptions(**kw)
     started = time.monotonic()
     project = load_project(folder)
     schedule = load_schedule(project.schedule_path)
     data = DataSet(project.materials)
-    designs = design_all(select(schedule, only), data)
-    outdir = revision_dir(project, out)
+    designs = design_all(select(schedule, opts.only), data)
+    outdir = revision_dir(project, opts.out)
+    report = RunReport(project, outdir, designs, schedule.warnings)
+    tasks = sheet_tasks(project, designs, data, outdir, opts)
+    if tasks and opts.sheets:
+        report.sheets = run_sheets(tasks, opts.jobs, opts.progress)
+        for d in designs:
+            if d.mark in report.sheets:
+                cross_check(d, report.sheets[d.mark])
+    if opts.sheets and opts.fmt == "pdf":
+        from .package import build_package
+
+        report.package = build_package(project, designs, data, outdir, report.sheets)
     doc = results_doc(project.name, project.revision, project.codes, designs, data.manifest(), data.hash,
                       schedule.warnings)
     write_results(outdir, doc)
-    report = RunReport(project, outdir, designs, schedule.warnings)
     counts = report.counts()
     report.log.append(f"{project.name} rev {project.revision}: {len(designs)} members, "
-                      f"{counts['pass']} pass, {counts['fail']} fail, {counts['error']} error "
+                      f"{counts['pass']} pass, {counts['fail']} fail, {counts['error']} error; "
+                      f"{len(report.executed)} executed, {len(report.converted)} converted "
                       f"({time.monotonic() - started:.1f} s)")
     report.log += schedule.warnings
     for d in designs:
         report.log += [f"{d.mark}: {e}" for e in d.errors]
     write_atomic(outdir / "run.log", "\n".join(report.log) + "\n")
     return report
+
+
+__all__ = ["RunOptions", "RunReport", "run_job", "CAUTION"]

@@ -18,7 +18,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from .errors import JobError, ScheduleError
+from .errors import JobError, ParameterError, ScheduleError
 from .materials import GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, sawn_table_grade
 from .sections import Section, parse_size, sawn_category
 from .units import UnitParseError, convert, parse_quantity
@@ -122,7 +122,15 @@ class Member:
 
     @classmethod
     def from_params(cls, params: dict[str, Any]) -> "Member":
-        """Rebuild a member from :meth:`params` (inside a notebook)."""
+        """Rebuild a member from :meth:`params` (inside a notebook).
+
+        Refuses unknown or missing keys: papermill itself only warns about them,
+        and a typo in a load name would otherwise silently use a default.
+        """
+        expected = set(COLUMNS) | {"row", "given"}
+        unknown, missing = set(params) - expected, expected - set(params)
+        if unknown or missing:
+            raise ParameterError(sorted(unknown), sorted(missing))
         values: dict[str, Any] = {}
         for name, col in COLUMNS.items():
             if name == "mark":

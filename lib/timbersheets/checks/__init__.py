@@ -23,7 +23,8 @@ class Step:
     caption: str = ""
 
     def latex(self) -> str:
-        return self.calc.latex(self.values)
+        """One display block per equation, so a page may break between them."""
+        return self.calc.latex_lines(self.values)
 
 
 @dataclass(frozen=True)
@@ -43,10 +44,23 @@ class CheckResult:
     resistance_symbol: str = ""
 
     @property
+    def demand_symbol_latex(self) -> str:
+        return _sym(self.demand_symbol)
+
+    @property
+    def resistance_symbol_latex(self) -> str:
+        return _sym(self.resistance_symbol)
+
+    @property
     def utilization(self) -> float:
         if self.resistance <= 0:
             return float("inf")
         return abs(self.demand) / self.resistance
+
+
+def _sym(name: str) -> str:
+    head, _, tail = name.partition("_")
+    return f"{head}_{{{tail}}}" if tail else head
 
 
 def factors_of(steps: tuple[Step, ...], leave_out: tuple[str, ...] = ()) -> dict[str, float]:

@@ -1,0 +1,313 @@
+"""The calc sheet's content, section by section, for one member.
+
+A template notebook calls these in order; each returns a :class:`Block` that
+shows as Markdown in JupyterLab and as LaTeX in the PDF. Every number comes from
+the member's :class:`~timbersheets.design.MemberDesign`, the same objects that
+write results.json, so a sheet cannot disagree with the verdict.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from .calc import format_number, format_value, unit_latex
+from .checks import CheckResult
+from .data import DataSet
+from .design import MemberDesign, design_member
+from .loads import EFFECT_UNITS, EFFECTS, LOAD_TYPES, kd_permanent
+from .schedule import Member
+from .symbols import ACTION_WORDS, meaning, symbol_latex
+from .tex import Cell, Table, escape, md_escape
+from .units import to_display
+
+CAUTION = ("This calculation must be reviewed and sealed by a licensed professional engineer before it is "
+           "used. The codes and editions adopted by the authority having jurisdiction govern.")
+LOAD_NAMES = {"D": "Dead", "L": "Live (use and occupancy)", "S": "Snow (with rain)", "W": "Wind", "E": "Earthquake"}
+EFFECT_NAMES = {"P": "P", "w": "w", "M": "M", "V": "V"}
+RESULT_MIME = "application/vnd.timbersheets.result+json"
+
+
+@dataclass
+class Block:
+    """One output of a sheet cell."""
+
+    latex: str
+    markdown: str
+
+    def _repr_latex_(self) -> str:
+        return self.latex
+
+    def _repr_markdown_(self) -> str:
+        return self.markdown
+
+    def __add__(self, other: "Block") -> "Block":
+        return Block(self.latex + "\n" + other.latex, self.markdown + "\n" + other.markdown)
+
+
+def heading(title: str, level: int = 1) -> Block:
+    cmd = "section" if level == 1 else "subsection"
+    return Block(f"\\{cmd}{{{escape(title)}}}\n", f"{'#' * (level + 1)} {md_escape(title)}\n")
+
+
+def para(text_latex: str, text_md: str | None = None) -> Block:
+    return Block(text_latex + "\n\n", (text_md if text_md is not None else text_latex) + "\n\n")
+
+
+def table(t: Table) -> Block:
+    return Block(t.latex(), t.markdown())
+
+
+def math_block(latex: str) -> Block:
+    return Block(latex + "\n", latex + "\n")
+
+
+def q(value: float, compute_unit: str) -> Cell:
+    """A number in its display unit, as a right-aligned table cell (unit in the header)."""
+    shown, unit = to_display(value, compute_unit)
+    text = format_number(shown, unit)
+    return Cell(f"${text}$", text)
+
+
+class Sheet:
+    """The sections of one member's calc sheet."""
+
+    def __init__(self, design: MemberDesign, data: DataSet, codes: dict[str, str]) -> None:
+        self.design = design
+        self.data = data
+        self.codes = codes
+
+    @classmethod
+    def from_params(cls, member: dict[str, Any], codes: dict[str, str], materials: str = "") -> "Sheet":
+        """Rebuild the member from notebook parameters and design it."""
+        data = DataSet(Path(materials) if materials else None)
+        design = design_member(Member.from_params(member), data)
+        return cls(design, data, codes)
+
+    @property
+    def m(self) -> Member:
+        assert self.design.member is not None
+        return self.design.member
+
+    # 1 -------------------------------------------------------------------------
+    def member_section(self) -> Block:
+        m, d = self.m, self.design
+        section = d.context.section if d.context else m.section
+        rows: list[list[object]] = [
+            ["Type", f"{m.type} member"],
+            ["Material", d.context.strengths.description if d.context else f"{m.species} {m.grade} {m.material}"],
+            ["Size", Cell(self._size_latex(section), self._size_text(section))],
+            ["Service condition", Cell(f"{m.service}; $K_T = {format_number(m.K_T)}$, $K_H = {format_number(m.K_H)}$ "
+                                       "from the schedule", f"{m.service}; K_T = {m.K_T:g}, K_H = {m.K_H:g}")],
+            ["Length", Cell(f"$L = {format_value(m.length, 'mm')}$; $K_e = {format_number(m.Ke)}$; "
+                            f"$L_x = {format_value(m.Lx, 'mm')}$, $L_y = {format_value(m.Ly, 'mm')}$",
+                            f"L = {m.length:g} mm; Ke = {m.Ke:g}; Lx = {m.Lx:g} mm, Ly = {m.Ly:g} mm")],
+            ["Net area", Cell(f"$A_n = {format_number(m.net_area)}\\,A_g = {format_value(section.A * m.net_area, 'mm**2')}$",
+                              f"A_n = {m.net_area:g} A_g")],
+        ]
+        if m.note:
+            rows.append(["Note", m.note])
+        rows.append(["Schedule", f"row {m.row}"])
+        return heading("Member") + table(Table(["Item", "Value"], rows, "lX"))
+
+    @staticmethod
+    def _size_latex(s) -> str:
+        plies = f"{s.plies} plies of " if s.plies > 1 else ""
+        return (f"{plies}${format_number(s.ply_b, 'mm')} \\times {format_number(s.d, 'mm')}$ mm; "
+                f"$b = {format_value(s.b, 'mm')}$, $d = {format_value(s.d, 'mm')}$, "
+                f"$A_g = {format_value(s.A, 'mm**2')}$, $S_x = {format_value(s.S_x, 'mm**3')}$, "
+                f"$I_x = {format_value(s.I_x, 'mm**4')}$")
+
+    @staticmethod
+    def _size_text(s) -> str:
+        return f"{s.label} mm; b = {s.b:g} mm, d = {s.d:g} mm, A = {s.A:g} mm²"
+
+    # 2 -------------------------------------------------------------------------
+    def present_effects(self) -> list[str]:
+        m = self.m
+        return [e for e in EFFECTS if any(m.values[f"{e}_{t}"] for t in LOAD_TYPES)]
+
+    def loads_section(self) -> Block:
+        m = self.m
+        effects = self.present_effects()
+        header = ["Load", "Symbol", *[Cell.math(EFFECT_NAMES[e]) for e in effects], "Duration class"]
+        units = ["", "", *[unit_text_of(e) for e in effects], ""]
+        rows = []
+        from .loads import DURATION_CLASS
+
+        for t in LOAD_TYPES:
+            if not any(m.values[f"{e}_{t}"] for e in effects):
+                continue
+            rows.append([LOAD_NAMES[t], Cell.math(t), *[q(m.values[f"{e}_{t}"], EFFECT_UNITS[e]) for e in effects],
+                         DURATION_CLASS[t] + " term"])
+        intro = para("Specified loads from the schedule, including importance factors, by load type (NBC "
+                     f"{escape(self.codes.get('nbc', '2020'))} Part 4). Positive axial force acts in the member's own "
+                     "sense (tension for a tension member, compression otherwise).")
+        return heading("Specified loads") + intro + table(Table(header, rows, "ll" + "r" * len(effects) + "l", units))
+
+    # 3 -------------------------------------------------------------------------
+    def combinations_section(self) -> Block:
+        d = self.design
+        effects = self.present_effects()
+        header = ["No.", "Combination", *[Cell.math(f"{EFFECT_NAMES[e]}_f") for e in effects], Cell.math("K_D"),
+                  Cell("Basis of $K_D$", "Basis of K_D")]
+        units = ["", "", *[unit_text_of(e) for e in effects], "", ""]
+        rows = []
+        for i, case in enumerate(d.cases, 1):
+            rows.append([str(i), case.label, *[q(case.factored[e], EFFECT_UNITS[e]) for e in effects],
+                         Cell(f"${format_number(case.K_D)}$", format_number(case.K_D)), basis_cell(case.basis)])
+        intro = para(f"ULS load combinations of NBC {escape(self.codes.get('nbc', '2020'))} Table 4.1.3.2.-A, "
+                     "each principal load with and without its companion loads; 0.9D only where a load acts "
+                     "against the dead load; combinations that repeat another are left out. "
+                     "$K_D$ by the duration class of the principal load (CSA O86:19 5.3.2, Table 5.1).",
+                     "ULS load combinations of NBC Table 4.1.3.2.-A; K_D by the principal load (CSA O86 5.3.2).")
+        out = heading("Load combinations") + intro + table(
+            Table(header, rows, "rl" + "r" * len(effects) + "rX", units))
+        for case in d.cases:
+            if case.kd_values:
+                unit = EFFECT_UNITS[case.kd_effect]
+                latex = kd_permanent.latex(case.kd_values, units={"P_L": unit, "P_S": unit})
+                out += para(f"For {escape(case.label)} the long-term (dead) part exceeds the standard-term part, "
+                            f"so (CSA O86:19 5.3.2.3, on ${case.kd_effect}$):")
+                out += math_block(latex)
+        return out
+
+    # 4 -------------------------------------------------------------------------
+    def factors_section(self) -> Block:
+        d = self.design
+        rows = []
+        seen: set[str] = set()
+        for datum in d.data_used:
+            if datum.symbol in seen or datum.label.startswith("NBC combination") or datum.symbol == "K_D":
+                continue
+            seen.add(datum.symbol)
+            unit = "MPa" if datum.symbol.startswith(("f_", "E")) else ""
+            value = format_number(datum.value, unit) + (f"\\ \\mathrm{{{unit}}}" if unit else "")
+            rows.append([Cell.math(symbol_latex(datum.symbol)), Cell(f"${value}$", value),
+                         meaning(datum.symbol) or datum.label, f"{datum.table}", datum.status_text])
+        m = self.m
+        for name, value in (("K_H", m.K_H), ("K_T", m.K_T), ("K_e", m.Ke)):
+            rows.append([Cell.math(symbol_latex(name)), Cell(f"${format_number(value)}$", format_number(value)),
+                         meaning(name), "schedule", "as given"])
+        intro = para(f"Specified strengths for {escape(d.context.strengths.description) if d.context else ''}, "
+                     "modification factors and resistance factors used by the checks below, with the table "
+                     "each comes from. Values marked unverified are from the team's reference notes and await "
+                     "checking against a licensed copy of the standard.")
+        return heading("Material and modification factors") + intro + table(
+            Table(["Symbol", "Value", "Meaning", "Source", "Data status"], rows, "lrXXl"))
+
+    # 5 -------------------------------------------------------------------------
+    def checks_section(self) -> Block:
+        d = self.design
+        out = heading("Checks")
+        if d.errors:
+            items = "".join(f"\\item {escape(e)}\n" for e in d.errors)
+            return out + Block(f"\\begin{{itemize}}\n{items}\\end{{itemize}}\n",
+                               "".join(f"- {md_escape(e)}\n" for e in d.errors))
+        for name, gov in d.governing_by_check().items():
+            out += self._check_block(name, gov, [c for c in d.checks if c.check == name])
+        return out
+
+    def _check_block(self, name: str, gov: CheckResult, all_cases: list[CheckResult]) -> Block:
+        out = heading(f"{ACTION_WORDS.get(name, name)} ({gov.clause})", 2)
+        out += para(f"Shown in full for the governing combination {escape(gov.combination)} "
+                    f"($K_D = {format_number(gov.K_D)}$); every combination is listed after.")
+        for step in gov.steps:
+            if step.caption:
+                out += para(f"\\emph{{{escape(step.caption)}}}", f"*{md_escape(step.caption)}*")
+            out += math_block(step.latex())
+        out += math_block(self._utilization_latex(gov))
+        unit = gov.unit
+        header = ["Combination", Cell.math("K_D"), Cell.math(gov.demand_symbol_latex),
+                  Cell.math(gov.resistance_symbol_latex), "Utilization"]
+        units = ["", "", unit_text(unit), unit_text(unit), ""]
+        rows = [[c.combination, Cell(f"${format_number(c.K_D)}$", format_number(c.K_D)),
+                 num(c.demand, unit), num(c.resistance, unit), util_cell(c.utilization)] for c in all_cases]
+        return out + table(Table(header, rows, "lrrrr", units))
+
+    @staticmethod
+    def _utilization_latex(c: CheckResult) -> str:
+        from .results import round_utilization
+
+        u = round_utilization(c.utilization)
+        relation = r"\le 1.0\ \text{(passes)}" if c.utilization <= 1.0 else r"> 1.0\ \text{(does not pass)}"
+        demand = f"{format_number(c.demand, c.unit)}\\ {unit_latex(c.unit)}"
+        resistance = f"{format_number(c.resistance, c.unit)}\\ {unit_latex(c.unit)}"
+        return (f"$$\\frac{{{c.demand_symbol_latex}}}{{{c.resistance_symbol_latex}}} = "
+                f"\\frac{{{demand}}}{{{resistance}}} = {u:.3f} {relation}$$")
+
+    # 6 -------------------------------------------------------------------------
+    def summary_section(self) -> Block:
+        d = self.design
+        out = heading("Summary")
+        if d.errors:
+            verdict = "NOT DESIGNED"
+            lines = ["The member could not be designed as described; see section 5."]
+        else:
+            from .results import round_utilization
+
+            rows = [[ACTION_WORDS.get(c.check, c.check), c.combination,
+                     Cell(f"${format_number(c.K_D)}$", format_number(c.K_D)),
+                     util_cell(c.utilization)] for c in d.governing_by_check().values()]
+            out += table(Table(["Check", "Governing combination", Cell.math("K_D"), "Utilization"], rows, "llrr"))
+            gov = d.governing
+            verdict = "PASSES" if d.status == "pass" else "DOES NOT PASS"
+            lines = [f"Governing check: {ACTION_WORDS.get(gov.check, gov.check).lower()}",
+                     f"Combination: {gov.combination}",
+                     f"Utilization: {round_utilization(gov.utilization):.3f}"]
+        body = "\\\\\n".join(escape(x) for x in lines)
+        return out + Block(
+            f"\\begin{{verdictbox}}\n{{\\Large {verdict}}}\\\\[2pt]\n{body}\n\\end{{verdictbox}}\n",
+            f"> **{verdict}**  \n> " + "  \n> ".join(md_escape(x) for x in lines) + "\n")
+
+    def cautions(self) -> Block:
+        warnings = self.design.data_warnings
+        listing = ""
+        md = ""
+        if warnings:
+            items = "".join(f"\\item {escape(w)}\n" for w in warnings)
+            listing = ("\\par\\smallskip Data values used here that are not yet verified against the standard:\n"
+                       f"\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n")
+            md = "\n\nUnverified data values used:\n" + "".join(f"- {md_escape(w)}\n" for w in warnings)
+        codes = (f" Designed to CSA O86:{escape(self.codes.get('o86', '2019'))[-2:]} with loads combined per "
+                 f"NBC {escape(self.codes.get('nbc', '2020'))} Part 4.")
+        return Block(f"\\begin{{cautionbox}}\n{escape(CAUTION)}{codes}\n{listing}\\end{{cautionbox}}\n",
+                     f"**Caution.** {md_escape(CAUTION)}{md}\n")
+
+    def record(self) -> dict[str, Any]:
+        """The member's results.json entry, as a display bundle the runner cross-checks."""
+        from .results import member_json
+
+        return {RESULT_MIME: member_json(self.design), "text/plain": f"result record for {self.design.mark}"}
+
+
+def basis_cell(basis: str) -> Cell:
+    """The K_D basis with its symbols set as maths."""
+    latex = escape(basis).replace(r"P\_L \textgreater{} P\_S", "$P_L > P_S$")
+    return Cell(latex, md_escape(basis))
+
+
+def unit_text_of(effect: str) -> str:
+    from .calc import unit_text
+
+    return unit_text(to_display(1.0, EFFECT_UNITS[effect])[1])
+
+
+def unit_text(unit: str) -> str:
+    from .calc import unit_text as text
+
+    return text(unit)
+
+
+def num(value: float, unit: str) -> Cell:
+    text = format_number(value, unit)
+    return Cell(f"${text}$", text)
+
+
+def util_cell(u: float) -> Cell:
+    from .results import round_utilization
+
+    shown = f"{round_utilization(u):.3f}"
+    flag = "" if u <= 1.0 else " > 1"
+    return Cell(f"${shown}${flag}", f"{shown}{flag}")
