@@ -62,6 +62,7 @@ def cmd_new(args: argparse.Namespace) -> int:
 
 
 def cmd_run(args: argparse.Namespace) -> int:
+    from .results import round_utilization
     from .runner import run_job
 
     only = [m.strip() for m in args.only.split(",") if m.strip()] if args.only else None
@@ -73,11 +74,13 @@ def cmd_run(args: argparse.Namespace) -> int:
     for line in report.schedule_warnings:
         print(f"warning: {line}", file=sys.stderr)
     for d in report.designs:
-        util = f"{d.governing.utilization:6.3f}" if d.governing and not d.errors else "     -"
+        util = f"{round_utilization(d.governing.utilization):6.3f}" if d.governing and not d.errors else "     -"
         gov = f"{d.governing.check} under {d.governing.combination}" if d.governing and not d.errors else ""
         print(f"  {d.mark:<12} {d.size:<12} {d.status:<6} {util}  {gov}")
         for e in d.errors:
             print(f"      error: {e}")
+    if report.package_error:
+        print(f"error: package.pdf was not written: {report.package_error}", file=sys.stderr)
     c = report.counts()
     print(f"{c['pass']} pass, {c['fail']} fail, {c['error']} error -> {report.outdir}")
     return report.exit_code

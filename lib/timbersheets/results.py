@@ -19,10 +19,11 @@ from .fileio import write_csv, write_json
 
 
 def round_utilization(u: float) -> float:
-    """Utilization rounded up to 0.001, so 1.0004 shows as 1.001 (a fail reads as one)."""
+    """Utilization to 0.001; a value over 1.0 never shows as 1.000 (1.0004 → 1.001)."""
     if not math.isfinite(u):
         return u
-    return math.ceil(round(u * 1000, 6)) / 1000
+    shown = round(u, 3)
+    return 1.001 if u > 1.0 and shown <= 1.0 else shown
 
 
 def _num(value: float, unit: str) -> float:

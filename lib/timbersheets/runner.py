@@ -50,10 +50,12 @@ class RunReport:
     sheets: dict[str, SheetOutcome] = field(default_factory=dict)
     log: list[str] = field(default_factory=list)
     package: Path | None = None
+    package_error: str | None = None
 
     @property
     def exit_code(self) -> int:
-        return EXIT_PASS if all(d.status == "pass" for d in self.designs) else EXIT_MEMBERS
+        ok = all(d.status == "pass" for d in self.designs) and not self.package_error
+        return EXIT_PASS if ok else EXIT_MEMBERS
 
     def counts(self) -> dict[str, int]:
         out = {"pass": 0, "fail": 0, "error": 0}
@@ -193,8 +195,13 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                 cross_check(d, report.sheets[d.mark])
     if opts.sheets and opts.fmt == "pdf":
         from .package import build_package
+        from .pipeline import ConversionError
 
-        report.package = build_package(project, designs, data, outdir, report.sheets)
+        try:
+            report.package = build_package(project, designs, data, outdir, report.sheets)
+        except ConversionError as exc:
+            report.package_error = str(exc)
+            report.log.append(f"package.pdf was not written: {exc}")
     doc = results_doc(project.name, project.revision, project.codes, designs, data.manifest(), data.hash,
                       schedule.warnings)
     write_results(outdir, doc)

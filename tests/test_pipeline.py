@@ -1,0 +1,167 @@
+"""The real pipeline (papermill, nbconvert, xelatex) on the demo job; the PDFs are
+read back with pdftotext and compared with results.json."""
+
+from __future__ import annotations
+
+import json
+import shutil
+import subprocess
+from pathlib import Path
+
+import pytest
+from pypdf import PdfReader
+
+from conftest import DEMO, member_row, write_job
+from timbersheets.errors import ParameterError
+from timbersheets.runner import RunOptions, run_job
+
+pytestmark = pytest.mark.pipeline
+
+
+def pdf_text(path: Path) -> str:
+    return subprocess.run(["pdftotext", "-layout", str(path), "-"], capture_output=True, text=True, check=True).stdout
+
+
+@pytest.fixture(scope="module")
+def demo_run(tmp_path_factory):
+    root = tmp_path_factory.mktemp("demo")
+    job = root / "kestrel-cove-boathouse"
+    shutil.copytree(DEMO, job)
+    report = run_job(job, RunOptions(out=root / "out", progress=False))
+    return report, json.loads((report.outdir / "results.json").read_text())
+
+
+def test_every_member_has_a_sheet_and_notebook(demo_run):
+    report, results = demo_run
+    marks = [m["mark"] for m in results["members"]]
+    assert len(marks) == 13
+    for mark in marks:
+        assert (report.outdir / "sheets" / f"{mark}.pdf").stat().st_size > 10_000
+        assert (report.outdir / "notebooks" / f"{mark}.ipynb").exists()
+    assert {m["status"] for m in results["members"]} == {"pass", "fail"}
+
+
+def test_sheet_shows_title_block_equations_and_numbers(demo_run):
+    report, results = demo_run
+    member = next(m for m in results["members"] if m["mark"] == "C-1")
+    text = pdf_text(report.outdir / "sheets" / "C-1.pdf")
+    for field in ("Kestrel Cove Community", "2026-118", "Kestrel Cove, BC", "A. Okafor, P.Eng.", "2026-12-01", "SEAL",
+                  "not checked", "1 of 4"):
+        assert field in text, field
+    gov = member["governing"]
+    governing = next(c for c in member["checks"] if c["combination"] == gov["combination"])
+    assert f"{governing['resistance']:.1f} kN" in text  # P_r as substituted and as a result
+    assert f"{governing['demand']:.1f} kN" in text
+    assert f"{member['utilization']:.3f}" in text
+    assert "PASSES" in text and gov["combination"] in text
+    assert "K Zcg" in text or "KZcg" in text  # the symbolic line is there
+    assert "licensed professional engineer" in text and "authority having jurisdiction" in text
+    assert "megapascal" not in text.lower() and "millimeter" not in text.lower()
+    assert "memory, unverified" in text  # the unverified values are listed on the sheet
+
+
+def test_every_check_value_in_results_is_on_the_sheet(demo_run):
+    report, results = demo_run
+    for member in results["members"]:
+        text = pdf_text(report.outdir / "sheets" / f"{member['mark']}.pdf")
+        for check in member["checks"]:
+            assert f"{check['resistance']:.1f}" in text, (member["mark"], check["combination"])
+            assert f"{check['utilization']:.3f}" in text, (member["mark"], check["combination"])
+        verdict = "DOES NOT PASS" if member["status"] == "fail" else "PASSES"
+        assert verdict in text
+
+
+def test_package_pages_bookmarks_and_index(demo_run):
+    report, results = demo_run
+    package = report.outdir / "package.pdf"
+    reader = PdfReader(str(package))
+    sheet_pages = sum(len(PdfReader(str(report.outdir / "sheets" / f"{m['mark']}.pdf")).pages)
+                      for m in results["members"])
+    assert len(reader.pages) == 2 + sheet_pages  # cover, index, every sheet page
+    titles = [item.title for item in reader.outline if not isinstance(item, list)]
+    assert titles[:3] == ["Cover", "Index of members", "Member sheets"]
+    nested = next(item for item in reader.outline if isinstance(item, list))
+    assert [b.title.split(" ")[0] for b in nested] == [m["mark"] for m in results["members"]]
+    text = pdf_text(package)
+    assert f"package page {len(reader.pages)} of {len(reader.pages)}" in text
+    assert "DOES NOT PASS" in text and "Index of members" in text
+    assert "licensed professional engineer" in text
+
+
+def test_latex_in_user_text_prints_literally(tmp_path):
+    note = r"\input{/etc/passwd} 100% & #1_a $x$ ~^"
+    job = write_job(tmp_path / "esc", [member_row("E-1", note=note)],
+                    extra='[data]\n')
+    (job / "project.toml").write_text((job / "project.toml").read_text().replace('title = "Test job"',
+                                      'title = "Hall #2 & 100% \\\\ {x}"'), encoding="utf-8")
+    report = run_job(job, RunOptions(out=tmp_path / "out", progress=False))
+    text = pdf_text(report.outdir / "sheets" / "E-1.pdf")
+    assert r"\input{/etc/passwd} 100% & #1_a $x$" in text
+    assert "root:" not in text
+    assert "Hall #2 & 100%" in text
+    assert "Hall #2 & 100%" in pdf_text(report.outdir / "package.pdf")
+
+
+def test_cache_reexecutes_only_what_changed(tmp_path):
+    rows = [member_row("A-1"), member_row("A-2", P_D="6"), member_row("A-3", type="tension")]
+    job = write_job(tmp_path / "cache", rows)
+    opts = RunOptions(out=tmp_path / "out", progress=False)
+    first = run_job(job, opts)
+    assert sorted(first.executed) == ["A-1", "A-2", "A-3"]
+    second = run_job(job, opts)
+    assert second.executed == [] and second.converted == []
+    assert (second.outdir / "package.pdf").exists()
+    rows[1]["P_D"] = "7.5"
+    write_job(tmp_path / "cache", rows)
+    third = run_job(job, opts)
+    assert third.executed == ["A-2"]
+    assert "7.5" in pdf_text(third.outdir / "sheets" / "A-2.pdf")
+    forced = run_job(job, RunOptions(out=tmp_path / "out", progress=False, force=True))
+    assert sorted(forced.executed) == ["A-1", "A-2", "A-3"]
+
+
+def test_a_failing_template_affects_only_its_member(tmp_path, monkeypatch):
+    import nbformat
+
+    from timbersheets.pipeline import templates_dir
+
+    templates = tmp_path / "templates"
+    shutil.copytree(templates_dir(), templates)
+    nb = nbformat.read(templates / "axial.ipynb", 4)
+    nb.cells.insert(5, nbformat.v4.new_code_cell(
+        'if member["mark"] == "BAD-1":\n    raise RuntimeError("deliberate failure for the test")'))
+    nbformat.write(nb, templates / "axial.ipynb")
+    monkeypatch.setenv("TIMBERSHEETS_TEMPLATES", str(templates))
+    job = write_job(tmp_path / "fail", [member_row("OK-1"), member_row("BAD-1"), member_row("OK-2")])
+    report = run_job(job, RunOptions(out=tmp_path / "out", progress=False))
+    results = {m["mark"]: m for m in json.loads((report.outdir / "results.json").read_text())["members"]}
+    assert results["OK-1"]["status"] == "pass" and results["OK-2"]["status"] == "pass"
+    assert results["BAD-1"]["status"] == "error"
+    assert "deliberate failure" in " ".join(results["BAD-1"]["errors"])
+    kept = json.loads((report.outdir / "notebooks" / "BAD-1.ipynb").read_text())
+    assert any(o.get("output_type") == "error" for c in kept["cells"] for o in c.get("outputs", []))
+    sheet_text = pdf_text(report.outdir / "sheets" / "BAD-1.pdf")
+    assert "INCOMPLETE" in sheet_text
+    assert "NOT DESIGNED" in pdf_text(report.outdir / "package.pdf")
+
+
+def test_unknown_or_missing_parameters_are_refused(tmp_path):
+    from timbersheets.pipeline import check_parameters, templates_dir
+    from timbersheets.schedule import Member
+
+    template = templates_dir() / "axial.ipynb"
+    with pytest.raises(ParameterError, match="unknown .*membr"):
+        check_parameters(template, {"membr": {}, "codes": {}, "materials": ""})
+    params = run_job(write_job(tmp_path / "p", [member_row("P-1")]), RunOptions(out=tmp_path / "o", sheets=False))
+    member = params.designs[0].member.params()
+    member["P_Dead"] = {"value": 1.0, "unit": "kN"}
+    with pytest.raises(ParameterError, match="P_Dead"):
+        Member.from_params(member)
+
+
+def test_html_sheets_need_no_tex(tmp_path):
+    job = write_job(tmp_path / "html", [member_row("H-1")])
+    report = run_job(job, RunOptions(out=tmp_path / "out", fmt="html", progress=False))
+    html = (report.outdir / "sheets" / "H-1.html").read_text()
+    assert "H-1" in html and "PASSES" in html
+    assert not (report.outdir / "package.pdf").exists()
