@@ -43,6 +43,33 @@ def _parser() -> argparse.ArgumentParser:
     run.add_argument("--force", action="store_true", help="re-execute every member, ignoring the cache")
     run.add_argument("--format", choices=("pdf", "html"), default="pdf",
                      help="sheet format: pdf (xelatex) or html (needs no TeX); default pdf")
+    run.add_argument("--scale", action="append", metavar="TYPE=FACTOR", default=[],
+                     help="what-if: scale a load type (D, L, S, W, E), e.g. S=1.2; repeatable. Reports which "
+                          "members would fail or change governing case, and writes nothing")
+
+    diff = sub.add_parser("diff", help="what changed between two revisions",
+                          description="Compare outputs/<job>/rev-R1 and rev-R2: members added and removed, changed "
+                                      "inputs (old -> new), changed results, flipped verdicts. Prints the changes "
+                                      "and writes them to rev-R2/diff.csv.", epilog=EPILOG)
+    diff.add_argument("dir", type=Path, help="the job folder")
+    diff.add_argument("--from", dest="r1", required=True, metavar="R1", help="the earlier revision, e.g. A")
+    diff.add_argument("--to", dest="r2", required=True, metavar="R2", help="the later revision, e.g. B")
+    diff.add_argument("--out", type=Path, help="the folder holding rev-<R>/ (as given to run --out)")
+
+    review = sub.add_parser("review", help="record a checker's verdict on members, or list what needs checking",
+                            description="Append the checker's verdict to DIR/review.csv, tied to the inputs hash of "
+                                        "the member as last run. A member whose inputs change afterwards shows as "
+                                        "changed since check. With --status, list what is not checked, stale or to "
+                                        "revise; the exit status is 1 while anything is.", epilog=EPILOG)
+    review.add_argument("dir", type=Path, help="the job folder")
+    which = review.add_mutually_exclusive_group(required=True)
+    which.add_argument("--mark", action="append", metavar="M", help="member mark (repeatable)")
+    which.add_argument("--all", action="store_true", help="every member of the current revision")
+    which.add_argument("--status", action="store_true", help="list what still needs checking")
+    review.add_argument("--by", metavar="INITIALS", help="the checker's initials or name")
+    review.add_argument("--verdict", choices=("ok", "revise"), help="ok, or revise (needs changes)")
+    review.add_argument("--comment", default="", help="a note for the designer")
+    review.add_argument("--out", type=Path, help="the folder holding rev-<R>/ (as given to run --out)")
     return p
 
 
@@ -65,6 +92,8 @@ def cmd_run(args: argparse.Namespace) -> int:
     from .results import round_utilization
     from .runner import run_job
 
+    if args.scale:
+        return cmd_what_if(args)
     only = [m.strip() for m in args.only.split(",") if m.strip()] if args.only else None
     from .runner import RunOptions
 
@@ -86,7 +115,90 @@ def cmd_run(args: argparse.Namespace) -> int:
     return report.exit_code
 
 
-COMMANDS = {"new": cmd_new, "run": cmd_run}
+def cmd_what_if(args: argparse.Namespace) -> int:
+    from .results import round_utilization
+    from .whatif import parse_scales, what_if
+
+    try:
+        scales = parse_scales(args.scale)
+    except ValueError as exc:
+        print(f"timbersheets: {exc}", file=sys.stderr)
+        return 2
+    rows = what_if(args.dir, scales)
+    label = ", ".join(f"{k} x {v:g}" for k, v in scales.items())
+    print(f"what-if ({label}); nothing is written")
+    changed = [r for r in rows if r.flipped or r.governing_changed]
+    for r in rows:
+        b, a = r.before.governing, r.after.governing
+        if not (b and a) or r.before.errors or r.after.errors:
+            continue
+        note = "VERDICT FLIPS" if r.flipped else "governing case changes" if r.governing_changed else ""
+        print(f"  {r.mark:<12} {round_utilization(b.utilization):6.3f} -> {round_utilization(a.utilization):6.3f}  "
+              f"{r.before.status:>4} -> {r.after.status:<4} {a.check} under {a.combination}  {note}")
+    print(f"{sum(r.flipped for r in rows)} verdict(s) flip, {len(changed)} member(s) change")
+    return 1 if any(r.after.status != "pass" for r in rows) else 0
+
+
+def cmd_diff(args: argparse.Namespace) -> int:
+    from .fileio import write_csv
+    from .project import load_project
+    from .revisions import DIFF_HEADER, diff, diff_rows, format_diff, load_results
+    from .runner import job_dir
+
+    project = load_project(args.dir)
+    base = job_dir(project, args.out)
+    old, new = load_results(base / f"rev-{args.r1}"), load_results(base / f"rev-{args.r2}")
+    changes = diff(old, new)
+    print(format_diff(changes, args.r1, args.r2))
+    write_csv(base / f"rev-{args.r2}" / "diff.csv", DIFF_HEADER, diff_rows(changes))
+    print(f"written: {base / f'rev-{args.r2}' / 'diff.csv'}")
+    return 0
+
+
+def cmd_review(args: argparse.Namespace) -> int:
+    from .project import load_project
+    from .review import Review, append_reviews, latest, read_reviews, status, today
+    from .revisions import load_results
+    from .runner import job_dir
+    from .schedule import load_schedule
+
+    project = load_project(args.dir)
+    results = load_results(job_dir(project, args.out) / f"rev-{project.revision}")
+    members = {m["mark"]: m for m in results["members"]}
+    if args.status:
+        reviews = latest(read_reviews(project.folder))
+        pending = []
+        for mark, m in members.items():
+            state = status(reviews.get(mark), m.get("inputs_hash"))
+            if state["status"] != "checked" or state.get("verdict") == "revise":
+                word = "revise" if state.get("verdict") == "revise" and state["status"] == "checked" else state["status"]
+                pending.append(f"  {mark:<12} {word}")
+        print(f"rev {project.revision}: {len(members) - len(pending)} of {len(members)} members checked")
+        print("\n".join(pending) if pending else "  nothing left to check")
+        return 1 if pending else 0
+    if not args.by or not args.verdict:
+        print("timbersheets: review needs --by INITIALS and --verdict ok|revise (or --status)", file=sys.stderr)
+        return 2
+    marks = list(members) if args.all else args.mark
+    unknown = [m for m in marks if m not in members]
+    if unknown:
+        print(f"timbersheets: not in rev {project.revision}: {', '.join(unknown)}", file=sys.stderr)
+        return 2
+    current = {m.mark: m.inputs_hash for m in load_schedule(project.schedule_path).members}
+    stale = [m for m in marks if current.get(m) != members[m].get("inputs_hash")]
+    if stale:
+        print(f"timbersheets: the schedule changed after the last run for {', '.join(stale)}; "
+              f"run it again so the sheets show what you check", file=sys.stderr)
+        return 2
+    records = [Review(m, args.by, today(), args.verdict, args.comment, members[m]["inputs_hash"], project.revision)
+               for m in marks]
+    append_reviews(project.folder, records)
+    print(f"recorded {args.verdict} by {args.by} for {len(records)} member(s) in {project.folder / 'review.csv'}")
+    print(f"next: timbersheets run {args.dir}  (prints the check on the sheets; nothing is re-executed)")
+    return 0
+
+
+COMMANDS = {"new": cmd_new, "run": cmd_run, "diff": cmd_diff, "review": cmd_review}
 
 
 def main(argv: list[str] | None = None) -> int:

@@ -1,15 +1,15 @@
-"""The combined package PDF: cover, index of members, every sheet.
+"""The combined package PDF: cover, index of members (with the utilization
+chart), the changes since the previous revision, then every sheet.
 
 Each member's sheet is included as typeset on its own (pdfpages), stamped with
 a continuous package page number, with a PDF bookmark per member. The layout is
-the Jinja template ``templates/latex/package/package.tex.j2``.
+the Jinja template ``templates/latex/package/package.tex.j2``. Everything comes
+from the run's results document, so the package and results.json agree.
 """
 
 from __future__ import annotations
 
-import hashlib
 import os
-import re
 import shutil
 import subprocess
 import tempfile
@@ -18,15 +18,18 @@ from typing import Any
 
 from . import __version__
 from .data import DataSet
-from .design import MemberDesign
 from .pipeline import XELATEX, ConversionError, templates_dir
 from .project import Project
-from .results import round_utilization
+from .review import titleblock_text
+from .revisions import MemberChange
 from .sheets import CAUTION
 from .symbols import ACTION_WORDS
 from .tex import escape
 
 VERDICT = {"pass": "passes", "fail": "does not pass", "error": "not designed"}
+VERDICT_TEX = {"pass": "PASSES", "fail": r"\textbf{DOES NOT PASS}", "error": r"\textbf{NOT DESIGNED}"}
+SHORT_CAUTION = ("Review and seal by a licensed professional engineer required; the codes adopted by the "
+                 "authority having jurisdiction govern.")
 
 
 def _environment():
@@ -45,55 +48,80 @@ def page_count(pdf: Path) -> int:
     return len(PdfReader(str(pdf)).pages)
 
 
-def member_rows(designs: list[MemberDesign], outdir: Path, flags: dict[str, str]) -> tuple[list[dict], list[str]]:
+def _governing(m: dict[str, Any]) -> str:
+    gov = m.get("governing")
+    if not gov or m["status"] == "error":
+        return "--"
+    return escape(ACTION_WORDS.get(gov["check"], gov["check"]).split(" (")[0].lower())
+
+
+def member_rows(members: list[dict[str, Any]], outdir: Path) -> tuple[list[dict], list[str]]:
     rows, notes = [], []
-    for i, d in enumerate(designs):
-        sheet = outdir / "sheets" / f"{d.mark}.pdf"
-        gov = d.governing
-        description = d.member.note if d.member and d.member.note else (d.member.type if d.member else "")
+    for i, m in enumerate(members):
+        sheet = outdir / "sheets" / f"{m['mark']}.pdf"
+        note = (m.get("inputs") or {}).get("note") or m.get("type") or ""
+        review = m.get("review") or {"status": "not-checked"}
+        flags = []
+        if m.get("changed_since"):
+            flags.append(f"changed since {m['changed_since']}")
         rows.append({
-            "mark": escape(d.mark),
-            "anchor": f"m{i}",
-            "description": escape(description[:110] + ("..." if len(description) > 110 else "")),
-            "size": escape(d.size),
-            "governing": escape(ACTION_WORDS.get(gov.check, gov.check).split(" (")[0].lower()) if gov and not d.errors else "--",
-            "utilization": f"{round_utilization(gov.utilization):.3f}" if gov and not d.errors else "--",
-            "verdict": {"pass": "PASSES", "fail": "\\textbf{DOES NOT PASS}", "error": "\\textbf{NOT DESIGNED}"}[d.status],
-            "verdict_word": VERDICT[d.status],
-            "flag": escape(flags.get(d.mark, "")),
-            "sheet": sheet.as_posix() if sheet.exists() else "",
+            "mark": escape(m["mark"]), "anchor": f"m{i}",
+            "description": escape(note[:110] + ("..." if len(note) > 110 else "")),
+            "size": escape(m.get("size") or ""),
+            "governing": _governing(m),
+            "utilization": "--" if m.get("utilization") is None or m["status"] == "error" else f"{m['utilization']:.3f}",
+            "verdict": VERDICT_TEX[m["status"]], "verdict_word": VERDICT[m["status"]],
+            "checked": escape(titleblock_text(review)),
+            "flag": escape("; ".join(flags)),
+            "sheet": sheet.resolve().as_posix() if sheet.exists() else "",
             "pages": page_count(sheet) if sheet.exists() else 0,
         })
-        if d.errors:
-            notes.append(f"{escape(d.mark)}: {escape(d.errors[0])}")
+        if m["errors"]:
+            notes.append(f"{escape(m['mark'])}: {escape(m['errors'][0])}")
     return rows, notes
 
 
-def package_tex(project: Project, designs: list[MemberDesign], data: DataSet, outdir: Path,
-                flags: dict[str, str] | None = None) -> str:
-    rows, notes = member_rows(designs, outdir, flags or {})
-    counts = {"total": len(designs), "pass": 0, "fail": 0, "error": 0}
-    for d in designs:
-        counts[d.status] += 1
-    unverified = len({w for d in designs for w in d.data_warnings})
+def change_rows(changes: list[MemberChange]) -> list[dict[str, str]]:
+    out = []
+    for c in changes:
+        if c.kind != "changed":
+            out.append({"mark": escape(c.mark), "what": escape(c.kind), "item": "", "old": "", "new": ""})
+            continue
+        items = [("input", k, a, b) for k, a, b in c.inputs] + [("result", k, a, b) for k, a, b in c.results]
+        if c.verdict_flip:
+            items.append(("verdict flipped", "status", *c.verdict_flip))
+        for j, (what, k, a, b) in enumerate(items):
+            out.append({"mark": escape(c.mark) if j == 0 else "", "what": escape(what), "item": escape(k),
+                        "old": escape(a), "new": escape(b)})
+    return out
+
+
+def package_tex(project: Project, doc: dict[str, Any], data: DataSet, outdir: Path,
+                changes: list[MemberChange], chart: str) -> str:
+    members = doc["members"]
+    rows, notes = member_rows(members, outdir)
+    counts = {"total": len(members), "pass": 0, "fail": 0, "error": 0}
+    for m in members:
+        counts[m["status"]] += 1
     context: dict[str, Any] = {
         "project": {k: escape(v) for k, v in project.fields.items()},
         "codes": {k: escape(v) for k, v in project.codes.items()},
-        "counts": counts, "members": rows, "notes": notes, "unverified": unverified,
-        "caution": escape("Review and seal by a licensed professional engineer required; the codes adopted by "
-                          "the authority having jurisdiction govern."),
-        "caution_long": escape(CAUTION),
-        "tool_version": f"timbersheets {__version__}",
-        "data_hash": data.hash.split(":")[1][:12],
+        "counts": counts, "members": rows, "notes": notes,
+        "unverified": len({w for m in members for w in m["data_warnings"]}),
+        "unchecked": sum(1 for m in members if (m.get("review") or {}).get("status") != "checked"),
+        "previous": escape(doc.get("previous_revision") or ""), "changes": change_rows(changes),
+        "chart": chart, "caution": escape(SHORT_CAUTION), "caution_long": escape(CAUTION),
+        "tool_version": f"timbersheets {__version__}", "data_hash": data.hash.split(":")[1][:12],
     }
     return _environment().get_template("package.tex.j2").render(**context)
 
 
-def build_package(project: Project, designs: list[MemberDesign], data: DataSet, outdir: Path,
-                  sheets: dict | None = None, flags: dict[str, str] | None = None) -> Path:
+def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: Path,
+                  changes: list[MemberChange]) -> Path:
     """Typeset package.pdf in `outdir` (two xelatex passes), written atomically."""
-    tex = package_tex(project, designs, data, outdir, flags)
     target = outdir / "package.pdf"
+    chart = outdir / "summary.png"
+    tex = package_tex(project, doc, data, outdir, changes, chart.resolve().as_posix() if chart.exists() else "")
     with tempfile.TemporaryDirectory(prefix="ts-pkg-") as tmp:
         work = Path(tmp)
         (work / "package.tex").write_text(tex, encoding="utf-8")
@@ -107,7 +135,3 @@ def build_package(project: Project, designs: list[MemberDesign], data: DataSet, 
         shutil.copyfile(work / "package.pdf", staged)
         os.replace(staged, target)
     return target
-
-
-def tex_hash(text: str) -> str:
-    return hashlib.sha256(re.sub(r"\s+", " ", text).encode()).hexdigest()

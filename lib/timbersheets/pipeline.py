@@ -70,11 +70,85 @@ def check_parameters(template: Path, parameters: dict[str, Any]) -> None:
         raise ParameterError(unknown, missing, where=f"template {template.name}")
 
 
-def execute(template: Path, out: Path, parameters: dict[str, Any], cwd: Path) -> str | None:
-    """Run `template` with `parameters` into `out`. Returns None, or the error text.
+KERNEL_ARGS = ["--IPKernelApp.log_level=ERROR"]
+ENGINE = "timbersheets"
+
+
+class _Kernel:
+    """The one kernel of a worker process, started on first use and reused.
+
+    Starting a kernel (and waiting for a client to be ready) costs about a
+    second, several times more than running a sheet, so a worker keeps its
+    kernel and one started client, and clears the namespace between members.
+    """
+
+    km = None
+    kc = None
+    cwd: str | None = None
+
+    @classmethod
+    def get(cls, kernel_name: str, cwd: str):
+        from jupyter_client import KernelManager
+
+        if cls.km is not None and (cls.cwd != cwd or not cls.km.is_alive()):
+            cls.shutdown()
+        if cls.km is None:
+            cls.km = KernelManager(kernel_name=kernel_name)
+            cls.km.start_kernel(cwd=cwd, extra_arguments=KERNEL_ARGS)
+            cls.kc = cls.km.client()
+            cls.kc.start_channels()
+            cls.kc.wait_for_ready(timeout=60)
+            cls.cwd = cwd
+            import atexit
+
+            atexit.register(cls.shutdown)
+        else:
+            reply = cls.kc.execute_interactive("get_ipython().run_line_magic('reset', '-f')", timeout=60,
+                                               output_hook=lambda msg: None)
+            if reply["content"].get("status") != "ok":
+                cls.shutdown()
+                return cls.get(kernel_name, cwd)
+        return cls.km, cls.kc
+
+    @classmethod
+    def shutdown(cls) -> None:
+        if cls.kc is not None:
+            cls.kc.stop_channels()
+            cls.kc = None
+        if cls.km is not None:
+            try:
+                cls.km.shutdown_kernel(now=True)
+            except Exception:  # noqa: BLE001 - the kernel may already be gone
+                pass
+            cls.km = None
+
+
+def _register_engine() -> None:
+    """A papermill engine that runs notebooks in the worker's reused kernel."""
+    from papermill.clientwrap import PapermillNotebookClient
+    from papermill.engines import NBClientEngine, papermill_engines
+
+    class ReusedKernelEngine(NBClientEngine):
+        @classmethod
+        def execute_managed_notebook(cls, nb_man, kernel_name, log_output=False, stdout_file=None,
+                                     stderr_file=None, start_timeout=60, execution_timeout=None, **kwargs):
+            import logging
+
+            km, kc = _Kernel.get(kernel_name, os.getcwd())
+            client = PapermillNotebookClient(nb_man, km=km, timeout=execution_timeout, startup_timeout=start_timeout,
+                                             kernel_name=kernel_name, log=logging.getLogger("papermill"),
+                                             log_output=log_output, stdout_file=stdout_file, stderr_file=stderr_file)
+            client.kc = kc
+            return client.execute()
+
+    papermill_engines.register(ENGINE, ReusedKernelEngine)
+
+
+def execute(template: Path, out: Path, parameters: dict[str, Any], cwd: Path, reuse_kernel: bool = True) -> str | None:
+    """Run `template` with `parameters` into `out` with papermill. Returns None, or the error text.
 
     The output notebook is always written (to a temporary name, then renamed),
-    with a failing cell's error kept in it.
+    with a failing cell's error kept in it, before the failure is reported.
     """
     import papermill
     from papermill.exceptions import PapermillExecutionError
@@ -83,10 +157,15 @@ def execute(template: Path, out: Path, parameters: dict[str, Any], cwd: Path) ->
     out.parent.mkdir(parents=True, exist_ok=True)
     tmp = out.with_name(f".{out.stem}.part.ipynb")
     error = None
+    engine = None
+    if reuse_kernel:
+        _register_engine()
+        engine = ENGINE
     try:
         papermill.execute_notebook(str(template), str(tmp), parameters=parameters, progress_bar=False,
-                                   log_output=False, kernel_name="python3", cwd=str(cwd),
-                                   extra_arguments=["--IPKernelApp.log_level=ERROR"])
+                                   log_output=False, kernel_name="python3", cwd=str(cwd), engine_name=engine,
+                                   request_save_on_cell_execute=False,
+                                   extra_arguments=KERNEL_ARGS)
     except PapermillExecutionError as exc:
         error = f"{exc.ename}: {exc.evalue}"
     if tmp.exists():

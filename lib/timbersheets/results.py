@@ -64,6 +64,7 @@ def member_json(d: MemberDesign, extra: dict[str, Any] | None = None) -> dict[st
         "changed_since": None,
         "review": {"status": "not-checked"},
         "errors": d.errors,
+        "inputs": d.member.params() if d.member else None,
     }
     if extra:
         doc.update(extra)

@@ -7,8 +7,10 @@ written to a temporary name and renamed into place.
 
 from __future__ import annotations
 
+import datetime as dt
 import multiprocessing
 import os
+import shutil
 import time
 from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass, field
@@ -21,8 +23,11 @@ from .fileio import write_atomic
 from .pipeline import templates_dir
 from .progress import Progress
 from .project import Project, load_project
+from .fileio import write_csv
 from .results import member_json, results_doc, write_results
-from .schedule import Schedule, load_schedule
+from .review import latest, read_reviews, status, titleblock_text
+from .revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
+from .schedule import load_schedule
 from .sheetjobs import SheetOutcome, SheetTask, run_sheet
 from .sheets import CAUTION
 from .tex import escape
@@ -88,15 +93,8 @@ def revision_dir(project: Project, out: Path | None) -> Path:
     return job_dir(project, out) / f"rev-{project.revision}"
 
 
-def select(schedule: Schedule, only: list[str] | None) -> list:
-    entries = schedule.entries
-    if only:
-        wanted = set(only)
-        entries = [e for e in entries if e.mark in wanted]
-    return entries
-
-
-def titleblock(project: Project, design: MemberDesign, data: DataSet, checked: str = "not checked") -> dict[str, str]:
+def titleblock(project: Project, design: MemberDesign, data: DataSet, checked: str = "not checked",
+               changed_since: str | None = None) -> dict[str, str]:
     """Title block fields for one sheet, escaped for LaTeX."""
     f = project.fields
     m = design.member
@@ -104,7 +102,8 @@ def titleblock(project: Project, design: MemberDesign, data: DataSet, checked: s
     short = description if len(description) <= 90 else description[:87].rstrip() + "..."
     raw = {
         "project": f["title"], "number": f["number"], "location": f["location"], "client": f["client"],
-        "mark": design.mark, "description": short, "revision": f["revision"], "date": f["date"],
+        "mark": design.mark, "description": short, "date": f["date"],
+        "revision": f["revision"] + (f", changed since {changed_since}" if changed_since else ""),
         "designed": f["designer"], "checked": checked, "engineer": f["engineer"],
         "tool_version": f"timbersheets {__version__}",
         "inputs_hash": (m.inputs_hash.split(":")[1][:12] if m else ""),
@@ -116,7 +115,7 @@ def titleblock(project: Project, design: MemberDesign, data: DataSet, checked: s
 
 
 def sheet_tasks(project: Project, designs: list[MemberDesign], data: DataSet, outdir: Path,
-                opts: RunOptions) -> list[SheetTask]:
+                opts: RunOptions, extra: dict[str, dict] | None = None) -> list[SheetTask]:
     types = member_types()
     cache = job_dir(project, opts.out) / ".cache"
     tasks = []
@@ -127,7 +126,10 @@ def sheet_tasks(project: Project, designs: list[MemberDesign], data: DataSet, ou
         params = {"member": d.member.params(), "codes": project.codes,
                   "materials": str(project.materials) if project.materials else ""}
         sheet = outdir / "sheets" / f"{d.mark}.{opts.fmt}" if opts.sheets else None
-        tasks.append(SheetTask(d.mark, template, params, titleblock(project, d, data), data.hash, cache,
+        info = (extra or {}).get(d.mark, {})
+        block = titleblock(project, d, data, titleblock_text(info.get("review", {"status": "not-checked"})),
+                           info.get("changed_since"))
+        tasks.append(SheetTask(d.mark, template, params, block, data.hash, cache,
                                outdir / "notebooks" / f"{d.mark}.ipynb", sheet, opts.fmt, opts.force,
                                project.folder.resolve()))
     return tasks
@@ -177,43 +179,113 @@ def cross_check(design: MemberDesign, outcome: SheetOutcome) -> None:
         design.errors.append("sheet: the notebook's result differs from the run's own calculation")
 
 
+def member_extras(project: Project, designs: list[MemberDesign], previous: dict | None) -> dict[str, dict]:
+    """Per member: its inputs, the revision it changed since, and its review status."""
+    reviews = latest(read_reviews(project.folder))
+    before = {m["mark"]: m for m in previous["members"]} if previous else {}
+    out = {}
+    for d in designs:
+        inputs_hash = d.member.inputs_hash if d.member else None
+        prev = before.get(d.mark)
+        changed = None
+        if previous is not None and (prev is None or prev.get("inputs_hash") != inputs_hash):
+            changed = previous["revision"]
+        out[d.mark] = {"inputs": d.member.params() if d.member else None, "changed_since": changed,
+                       "review": status(reviews.get(d.mark), inputs_hash)}
+    return out
+
+
+def stage_dir(project: Project, opts: RunOptions) -> tuple[Path, Path]:
+    """A staging folder beside the revision folder; with --only it starts as a copy of it."""
+    final = revision_dir(project, opts.out)
+    final.parent.mkdir(parents=True, exist_ok=True)
+    stage = final.parent / f".{final.name}.staging-{os.getpid()}"
+    shutil.rmtree(stage, ignore_errors=True)
+    if opts.only and final.exists():
+        shutil.copytree(final, stage)
+    else:
+        stage.mkdir()
+    return stage, final
+
+
+def swap_into_place(stage: Path, final: Path) -> None:
+    """Replace the revision folder by the finished staging folder."""
+    old = final.parent / f".{final.name}.old-{os.getpid()}"
+    if final.exists():
+        os.replace(final, old)
+    os.replace(stage, final)
+    shutil.rmtree(old, ignore_errors=True)
+
+
+def snapshot_inputs(project: Project, stage: Path) -> None:
+    inputs = stage / "inputs"
+    inputs.mkdir(exist_ok=True)
+    for path in (project.folder / "project.toml", project.schedule_path, project.folder / "review.csv",
+                 project.materials):
+        if path and path.exists():
+            shutil.copyfile(path, inputs / path.name)
+
+
 def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
-    """Design every member of the job in `folder` and write its revision folder."""
+    """Design every member of the job in `folder` and write its revision folder.
+
+    Everything is written into a staging folder that then replaces
+    ``rev-<R>/``, so rerunning a revision never leaves a mix of two runs.
+    """
     opts = opts or RunOptions(**kw)
     started = time.monotonic()
     project = load_project(folder)
     schedule = load_schedule(project.schedule_path)
     data = DataSet(project.materials)
-    designs = design_all(select(schedule, opts.only), data)
-    outdir = revision_dir(project, opts.out)
-    report = RunReport(project, outdir, designs, schedule.warnings)
-    tasks = sheet_tasks(project, designs, data, outdir, opts)
-    if tasks and opts.sheets:
-        report.sheets = run_sheets(tasks, opts.jobs, opts.progress)
-        for d in designs:
-            if d.mark in report.sheets:
-                cross_check(d, report.sheets[d.mark])
-    if opts.sheets and opts.fmt == "pdf":
-        from .package import build_package
-        from .pipeline import ConversionError
+    designs = design_all(schedule.entries, data)
+    jobdir = job_dir(project, opts.out)
+    prev_label = previous_revision(jobdir, project.revision)
+    previous = load_results(jobdir / f"rev-{prev_label}") if prev_label else None
+    extra = member_extras(project, designs, previous)
+    stage, final = stage_dir(project, opts)
+    try:
+        report = RunReport(project, final, designs, schedule.warnings)
+        chosen = designs if not opts.only else [d for d in designs if d.mark in set(opts.only)]
+        tasks = sheet_tasks(project, chosen, data, stage, opts, extra)
+        if tasks and opts.sheets:
+            report.sheets = run_sheets(tasks, opts.jobs, opts.progress)
+            for d in designs:
+                if d.mark in report.sheets:
+                    cross_check(d, report.sheets[d.mark])
+        doc = results_doc(project.name, project.revision, project.codes, designs, data.manifest(), data.hash,
+                          schedule.warnings, extra)
+        doc["run_at"] = dt.datetime.now().isoformat(timespec="seconds")
+        doc["previous_revision"] = prev_label
+        changes = diff(previous, doc) if previous else []
+        write_csv(stage / "diff.csv", DIFF_HEADER, diff_rows(changes))
+        from .charts import write_chart
 
-        try:
-            report.package = build_package(project, designs, data, outdir, report.sheets)
-        except ConversionError as exc:
-            report.package_error = str(exc)
-            report.log.append(f"package.pdf was not written: {exc}")
-    doc = results_doc(project.name, project.revision, project.codes, designs, data.manifest(), data.hash,
-                      schedule.warnings)
-    write_results(outdir, doc)
-    counts = report.counts()
-    report.log.append(f"{project.name} rev {project.revision}: {len(designs)} members, "
-                      f"{counts['pass']} pass, {counts['fail']} fail, {counts['error']} error; "
-                      f"{len(report.executed)} executed, {len(report.converted)} converted "
-                      f"({time.monotonic() - started:.1f} s)")
-    report.log += schedule.warnings
-    for d in designs:
-        report.log += [f"{d.mark}: {e}" for e in d.errors]
-    write_atomic(outdir / "run.log", "\n".join(report.log) + "\n")
+        write_chart(stage / "summary.png", doc["members"],
+                    f"{project.fields['title']} rev {project.revision}: governing utilization")
+        if opts.sheets and opts.fmt == "pdf":
+            from .package import build_package
+            from .pipeline import ConversionError
+
+            try:
+                report.package = final / "package.pdf"
+                build_package(project, doc, data, stage, changes)
+            except ConversionError as exc:
+                report.package, report.package_error = None, str(exc)
+                report.log.append(f"package.pdf was not written: {exc}")
+        write_results(stage, doc)
+        snapshot_inputs(project, stage)
+        counts = report.counts()
+        report.log.insert(0, f"{project.name} rev {project.revision}: {len(designs)} members, "
+                             f"{counts['pass']} pass, {counts['fail']} fail, {counts['error']} error; "
+                             f"{len(report.executed)} executed, {len(report.converted)} converted "
+                             f"({time.monotonic() - started:.1f} s)")
+        report.log += schedule.warnings
+        for d in designs:
+            report.log += [f"{d.mark}: {e}" for e in d.errors]
+        write_atomic(stage / "run.log", "\n".join(report.log) + "\n")
+        swap_into_place(stage, final)
+    finally:
+        shutil.rmtree(stage, ignore_errors=True)
     return report
 
 

@@ -1,0 +1,126 @@
+"""make bench: wall times of a 100-member package on this machine.
+
+Builds a 100-member schedule from the demo job's member mix, then reports in one
+run: a cold full run (empty cache), a warm rerun, a rerun after one member's
+load changes, and a naive loop on the same members (papermill CLI, then
+``jupyter nbconvert --to pdf``, one member after another). Targets on a 2-core
+machine: cold run at least 5x faster than the naive loop; one-member change
+within 10 s.
+
+    python tools/bench.py [--members 100] [--naive N]   (N members for the naive loop; 0 skips it)
+"""
+
+from __future__ import annotations
+
+import argparse
+import csv
+import json
+import shutil
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+REPO = Path(__file__).resolve().parent.parent
+DEMO = REPO / "calcsheets" / "kestrel-cove-boathouse"
+BIN = Path(sys.executable).parent
+
+
+def build_job(root: Path, members: int) -> Path:
+    job = root / "bench-job"
+    job.mkdir(parents=True)
+    shutil.copy(DEMO / "project.toml", job / "project.toml")
+    with open(DEMO / "schedule.csv", newline="", encoding="utf-8") as handle:
+        rows = list(csv.DictReader(handle))
+    header = list(rows[0])
+    out = []
+    for i in range(members):
+        row = dict(rows[i % len(rows)])
+        row["mark"] = f"{row['mark']}-{i // len(rows) + 1:02d}"
+        out.append(row)
+    with open(job / "schedule.csv", "w", newline="", encoding="utf-8") as handle:
+        writer = csv.DictWriter(handle, fieldnames=header, lineterminator="\n")
+        writer.writeheader()
+        writer.writerows(out)
+    return job
+
+
+def timed(cmd: list[str], **kw) -> float:
+    start = time.monotonic()
+    subprocess.run(cmd, check=False, capture_output=True, **kw)
+    return time.monotonic() - start
+
+
+def change_one_load(job: Path) -> str:
+    path = job / "schedule.csv"
+    with open(path, newline="", encoding="utf-8") as handle:
+        rows = list(csv.DictReader(handle))
+    target = next(r for r in rows if r.get("P_D"))
+    target["P_D"] = f"{float(target['P_D']) * 1.1:.3f}"
+    with open(path, "w", newline="", encoding="utf-8") as handle:
+        writer = csv.DictWriter(handle, fieldnames=list(rows[0]), lineterminator="\n")
+        writer.writeheader()
+        writer.writerows(rows)
+    return target["mark"]
+
+
+def naive_loop(job: Path, out: Path, count: int) -> tuple[float, int]:
+    """papermill CLI, then jupyter nbconvert --to pdf, per member, one after another.
+
+    The naive loop uses the same sheet layout, so the two differ only in how the
+    work is organised (a process and a kernel per member, three TeX passes, no cache).
+    """
+    sys.path.insert(0, str(REPO / "lib"))
+    from timbersheets.design import member_types
+    from timbersheets.schedule import load_schedule
+
+    members = load_schedule(job / "schedule.csv").members[:count]
+    out.mkdir(parents=True, exist_ok=True)
+    start = time.monotonic()
+    for m in members:
+        template = REPO / "templates" / member_types()[m.type].template
+        notebook = out / f"{m.mark}.ipynb"
+        params = json.dumps({"member": m.params(), "codes": {"nbc": "2020", "o86": "2019"}, "materials": ""})
+        subprocess.run([str(BIN / "papermill"), str(template), str(notebook), "-y", params, "--cwd", str(job)],
+                       check=True, capture_output=True)
+        subprocess.run([str(BIN / "jupyter"), "nbconvert", "--to", "pdf", "--template", "sheet",
+                        f"--TemplateExporter.extra_template_basedirs={REPO / 'templates' / 'latex'}",
+                        str(notebook)], check=True, capture_output=True)
+    return time.monotonic() - start, len(members)
+
+
+def main() -> int:
+    parser = argparse.ArgumentParser(description=__doc__, formatter_class=argparse.RawDescriptionHelpFormatter)
+    parser.add_argument("--members", type=int, default=100)
+    parser.add_argument("--naive", type=int, default=None, help="members in the naive loop (default: all)")
+    args = parser.parse_args()
+    cli = [str(BIN / "timbersheets"), "run"]
+    with tempfile.TemporaryDirectory(prefix="ts-bench-") as tmp:
+        root = Path(tmp)
+        job = build_job(root, args.members)
+        out = root / "out"
+        cold = timed([*cli, str(job), "--out", str(out)])
+        warm = timed([*cli, str(job), "--out", str(out)])
+        mark = change_one_load(job)
+        one = timed([*cli, str(job), "--out", str(out)])
+        log = (out / "rev-A" / "run.log").read_text().splitlines()[0]
+        pages = len(__import__("pypdf").PdfReader(str(out / "rev-A" / "package.pdf")).pages)
+        print(f"{args.members} members, package of {pages} pages, on {__import__('os').cpu_count()} CPUs")
+        print(f"  cold full run          {cold:7.1f} s  ({cold / args.members:.2f} s a member)")
+        print(f"  warm rerun             {warm:7.1f} s")
+        print(f"  one load changed ({mark}) {one:7.1f} s   target <= 10 s: {'met' if one <= 10 else 'NOT met'}")
+        print(f"  last run: {log}")
+        count = args.members if args.naive is None else args.naive
+        if count:
+            naive, n = naive_loop(job, root / "naive", count)
+            per = naive / n
+            print(f"  naive loop             {naive:7.1f} s for {n} members ({per:.2f} s a member; "
+                  f"{per * args.members:.0f} s for {args.members})")
+            ratio = per * args.members / cold
+            print(f"  cold run vs naive      {ratio:7.1f}x faster   target >= 5x: {'met' if ratio >= 5 else 'NOT met'}")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
