@@ -92,7 +92,7 @@ def test_package_pages_bookmarks_and_index(demo_run):
 
 
 def test_latex_in_user_text_prints_literally(tmp_path):
-    note = r"\input{/etc/passwd} 100% & #1_a $x$ ~^"
+    note = r"\input{/etc/passwd} 100% & #1_a $x$ ~^ ✓ ᐃᖃᓗᐃᑦ 😀"
     job = write_job(tmp_path / "esc", [member_row("E-1", note=note)],
                     extra='[data]\n')
     (job / "project.toml").write_text((job / "project.toml").read_text().replace('title = "Test job"',
@@ -100,6 +100,7 @@ def test_latex_in_user_text_prints_literally(tmp_path):
     report = run_job(job, RunOptions(out=tmp_path / "out", progress=False))
     text = pdf_text(report.outdir / "sheets" / "E-1.pdf")
     assert r"\input{/etc/passwd} 100% & #1_a $x$" in text
+    assert "✓ ᐃᖃᓗᐃᑦ ?" in text  # syllabics and symbols in the fallback font; an emoji no font has → '?'
     assert "root:" not in text
     assert "Hall #2 & 100%" in text
     assert "Hall #2 & 100%" in pdf_text(report.outdir / "package.pdf")

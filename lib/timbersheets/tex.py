@@ -17,9 +17,41 @@ _LATEX = {
 _MARKDOWN = set("\\`*_{}[]()#+-.!|<>$")
 
 
+#: Characters the sheet's typeface (Latin Modern) has, or the sheet template maps to maths.
+_NATIVE = (set(range(0x20, 0x7F)) | set(range(0xA0, 0x180)) | set(range(0x3B1, 0x3CA))
+           | {0x2013, 0x2014, 0x2018, 0x2019, 0x201A, 0x201C, 0x201D, 0x201E, 0x2020, 0x2021, 0x2022, 0x2026,
+              0x2030, 0x2032, 0x2033, 0x2039, 0x203A, 0x20AC, 0x2122, 0x2264, 0x2265, 0x2260, 0x2248, 0x22C5})
+#: Ranges DejaVu Sans (fonts-dejavu-core) covers: Greek, Cyrillic, Canadian syllabics, arrows,
+#: mathematical operators, technical symbols, box drawing, shapes, dingbats.
+_FALLBACK = ((0x180, 0x24F), (0x370, 0x52F), (0x1400, 0x167F), (0x2000, 0x2BFF))
+
+
+def _covered_by_fallback(code: int) -> bool:
+    return any(lo <= code <= hi for lo, hi in _FALLBACK)
+
+
 def escape(text: object) -> str:
-    """LaTeX-safe text: every special character printed literally."""
-    return "".join(_LATEX.get(ch, ch) for ch in str(text) if ch >= " " or ch in "\n\r\t")
+    """LaTeX-safe text: every special character printed literally.
+
+    Characters outside the sheet's typeface are set in the fallback font
+    (``\\tsfallback``, DejaVu Sans), so a place name in syllabics prints; a
+    character no installed font covers (an emoji) prints as '?', never breaks
+    the sheet.
+    """
+    out = []
+    for ch in str(text):
+        code = ord(ch)
+        if ch in _LATEX:
+            out.append(_LATEX[ch])
+        elif code < 0x20:
+            continue
+        elif code in _NATIVE:
+            out.append(ch)
+        elif _covered_by_fallback(code):
+            out.append(f"\\tsfallback{{{ch}}}")
+        else:
+            out.append("?")
+    return "".join(out).replace("}\\tsfallback{", "")
 
 
 def md_escape(text: object) -> str:
