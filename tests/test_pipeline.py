@@ -169,3 +169,24 @@ def test_html_sheets_need_no_tex(tmp_path):
     html = (report.outdir / "sheets" / "H-1.html").read_text()
     assert "H-1" in html and "PASSES" in html
     assert not (report.outdir / "package.pdf").exists()
+
+
+def test_templates_run_top_to_bottom_with_their_defaults(tmp_path):
+    """What `make lab` promises: each template, run as it is, shows its default member's sheet."""
+    import papermill
+
+    from timbersheets.data import DataSet
+    from timbersheets.design import design_member, member_types
+    from timbersheets.pipeline import templates_dir
+    from timbersheets.results import member_json
+    from timbersheets.schedule import load_schedule
+    from timbersheets.sheetjobs import read_record
+
+    demo = {m.mark: m for m in load_schedule(DEMO / "schedule.csv").members}
+    for name in sorted({t.template for t in member_types().values()}):
+        out = tmp_path / name
+        papermill.execute_notebook(str(templates_dir() / name), str(out), progress_bar=False, cwd=str(DEMO))
+        record, error = read_record(out)
+        assert error is None, (name, error)
+        expected = member_json(design_member(demo[record["mark"]], DataSet()))
+        assert record["utilization"] == expected["utilization"] and record["checks"] == expected["checks"]
