@@ -1,0 +1,165 @@
+"""Automatic sizing: the lightest standard section that passes every check.
+
+The catalogue is the standard sizes of the data files: sawn dimension lumber in
+1 to 4 plies, timbers, and glulam standard widths by 38 mm laminations. It is
+searched lightest first (least area, then least depth). Every check of the
+member type runs under every combination on the fast path (plain floats, no
+rendering), so the chosen section is exactly what the sheet will then verify.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+from .data import DataSet
+from .errors import DesignError, TimbersheetsError
+from .loads import apply_combinations
+from .materials import sawn_table_grade
+from .schedule import Member
+from .sections import Section, sawn_category
+
+RUNNERS_UP = 5
+PLIES = (1, 2, 3, 4)
+#: Sections within this fraction of the lightest passing area count as "near-equal weight" for `prefer`.
+PREFER_BAND = 0.10
+MAX_PLY_THICKNESS = 64.0  # built-up members are laminated from 38 or 64 mm stock (common practice)
+
+
+@dataclass(frozen=True)
+class Candidate:
+    section: Section
+    utilization: float
+    governing: str  # "bending under 1.25D + 1.5S", or why it cannot be used
+
+    @property
+    def passes(self) -> bool:
+        return self.utilization <= 1.0
+
+    @property
+    def label(self) -> str:
+        return self.section.label
+
+
+@dataclass
+class Sizing:
+    """The outcome of a search: the chosen section and the next ones that pass."""
+
+    chosen: Candidate | None
+    runners_up: list[Candidate] = field(default_factory=list)
+    searched: int = 0
+    best: Candidate | None = None  # the lowest utilization reached (all that exists when nothing passes)
+    constraints: str = ""
+
+    def to_json(self) -> dict:
+        def item(c: Candidate | None) -> dict | None:
+            if c is None:
+                return None
+            u = None if not math.isfinite(c.utilization) else round(c.utilization, 3)
+            return {"size": c.label, "area": round(c.section.A), "utilization": u, "governing": c.governing}
+
+        return {"chosen": item(self.chosen), "runners_up": [item(c) for c in self.runners_up],
+                "searched": self.searched, "best": item(self.best), "constraints": self.constraints}
+
+
+def catalogue(member: Member, data: DataSet) -> list[Section]:
+    """Standard sections allowed for `member`, lightest first."""
+    width, max_depth = member.values.get("width"), member.values.get("max_depth")
+    fixed_plies = member.plies if "plies" in member.given else None
+    sections: list[Section] = []
+    if member.material == "glulam":
+        lam, min_depth = data.lamination
+        deepest = max_depth or data.glulam_factor("depth_max_standard").value
+        depths = [min_depth + lam * i for i in range(int((deepest - min_depth) // lam) + 1)]
+        sections = [Section(float(w), d) for w in data.glulam_widths for d in depths]
+    else:
+        for category, b, d in data.sawn_sizes:
+            plies = PLIES if category == "dimension" and b <= MAX_PLY_THICKNESS else (1,)
+            if fixed_plies is not None:
+                plies = (fixed_plies,) if fixed_plies in plies else ()
+            for n in plies:
+                section = Section(float(b), float(d), n)
+                if sawn_table_grade(member.grade, sawn_category(section)) is None:
+                    continue
+                if member.type != "tension" and n > 1 and member.type != "bending":
+                    continue  # built-up columns are not designed by this version
+                sections.append(section)
+    if width:
+        sections = [s for s in sections if abs(s.b - width) < 0.5]
+    if max_depth:
+        sections = [s for s in sections if s.d <= max_depth + 1e-9]
+    unique = {(s.ply_b, s.d, s.plies): s for s in sections}
+    return sorted(unique.values(), key=lambda s: (s.A, s.d, s.plies))
+
+
+def evaluate(member: Member, data: DataSet, section: Section, cases, design) -> Candidate:
+    """The governing utilization of `member` with `section` (fast path, no rendering)."""
+    from .design import build_context
+
+    try:
+        ctx = build_context(member, data, section)
+        checks = design(ctx, cases)
+    except DesignError as exc:
+        return Candidate(section, math.inf, exc.problem)
+    gov = max(checks, key=lambda c: c.utilization)
+    return Candidate(section, gov.utilization, f"{gov.check} under {gov.combination}")
+
+
+def constraint_text(member: Member) -> str:
+    parts = []
+    if member.values.get("width"):
+        parts.append(f"width {member.width:g} mm")
+    if member.values.get("max_depth"):
+        parts.append(f"depth at most {member.max_depth:g} mm")
+    if "plies" in member.given:
+        parts.append(f"{member.plies} plies")
+    if member.values.get("prefer"):
+        parts.append(f"prefer {member.prefer}")
+    return ", ".join(parts)
+
+
+def size(member: Member, data: DataSet, design) -> Sizing:
+    """Search the catalogue for `member` with the member type's `design` function.
+
+    The chosen section is the lightest that passes (least area, then least
+    depth); with ``prefer = deep`` or ``square``, the deepest or squarest of the
+    passing sections within 10 % of the lightest area. Runners-up are the next
+    passing sections, none lighter than the chosen one.
+    """
+    from .design import effects_of
+
+    try:
+        cases = apply_combinations(effects_of(member), data, [], member.K_D)
+    except TimbersheetsError as exc:
+        raise DesignError(member.mark, f"cannot be sized: {exc}") from None
+    sections = catalogue(member, data)
+    result = Sizing(None, constraints=constraint_text(member))
+    if not sections:
+        raise DesignError(member.mark, "no standard section meets the sizing constraints",
+                          fix=f"Relax them ({result.constraints or 'none given'})")
+    passing: list[Candidate] = []
+    limit = math.inf
+    for section in sections:
+        if section.A > limit:
+            break
+        candidate = evaluate(member, data, section, cases, design)
+        result.searched += 1
+        if result.best is None or candidate.utilization < result.best.utilization:
+            result.best = candidate
+        if candidate.passes:
+            passing.append(candidate)
+            if len(passing) == 1:
+                limit = section.A * (1 + PREFER_BAND) if member.values.get("prefer") else math.inf
+            if not member.values.get("prefer") and len(passing) > RUNNERS_UP:
+                break
+    if not passing:
+        return result
+    chosen = passing[0]
+    prefer = member.values.get("prefer")
+    if prefer == "deep":
+        chosen = max(passing, key=lambda c: (c.section.d, -c.section.A))
+    elif prefer == "square":
+        chosen = min(passing, key=lambda c: (abs(math.log(c.section.d / c.section.b)), c.section.A))
+    result.chosen = chosen
+    result.runners_up = [c for c in passing if c is not chosen and c.section.A >= chosen.section.A][:RUNNERS_UP]
+    return result
