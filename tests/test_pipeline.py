@@ -61,12 +61,20 @@ def test_sheet_shows_title_block_equations_and_numbers(demo_run):
     assert "memory, unverified" in text  # the unverified values are listed on the sheet
 
 
+def shown(value: float, unit: str) -> str:
+    """How a sheet prints a results.json value (results.json is rounded by the same rule)."""
+    from timbersheets.calc import format_number
+
+    return format_number(value, unit.replace("·", "*")).replace("-", "\u2212")  # maths minus
+
+
 def test_every_check_value_in_results_is_on_the_sheet(demo_run):
     report, results = demo_run
     for member in results["members"]:
-        text = pdf_text(report.outdir / "sheets" / f"{member['mark']}.pdf")
+        text = pdf_text(report.outdir / "sheets" / f"{member['mark']}.pdf").replace("-", "\u2212")
         for check in member["checks"]:
-            assert f"{check['resistance']:.1f}" in text, (member["mark"], check["combination"])
+            assert shown(check["resistance"], check["unit"]) in text, (member["mark"], check["combination"])
+            assert shown(check["demand"], check["unit"]) in text, (member["mark"], check["combination"])
             assert f"{check['utilization']:.3f}" in text, (member["mark"], check["combination"])
         verdict = "DOES NOT PASS" if member["status"] == "fail" else "PASSES"
         assert verdict in text

@@ -34,6 +34,10 @@ BUILTIN_FILES = (
     "sizes_sawn.csv",
     "sizes_glulam.csv",
     "glulam_laminations.csv",
+    "sls_combinations.csv",
+    "lateral_restraint_sawn.csv",
+    "bending_effective_length.csv",
+    "bearing_size_factors.csv",
 )
 
 
@@ -230,6 +234,55 @@ class DataSet:
         file = self.files["bearing_factors.csv"]
         out = [(float(r["bearing_length"]), self._datum(file, r, f"K_B {r['bearing_length']} mm")) for r in file.rows]
         return sorted(out, key=lambda item: item[0])
+
+    # -- bending members -------------------------------------------------------
+    def lateral_restraints(self) -> list[tuple[str, Datum]]:
+        """Depth-to-width limits for K_L = 1.0 (sawn), loosest restraint first."""
+        file = self.files["lateral_restraint_sawn.csv"]
+        out = [(r["restraint"], self._datum(file, r, f"d/b limit, {r['description']}", "d_over_b_max", "d/b"))
+               for r in file.rows]
+        return sorted(out, key=lambda item: item[1].value)
+
+    def bending_effective_length(self, case: str) -> Datum:
+        """Factor on the unsupported length L_u giving L_e, for a loading case."""
+        return self._find("bending_effective_length.csv", f"K_Le {case}", "factor", case=case)
+
+    def bearing_size_factor(self, width_over_depth: float) -> tuple[float, list[Datum]]:
+        """K_Zcp for a width/depth ratio: the table rows, linear between them."""
+        file = self.files["bearing_size_factors.csv"]
+        rows = sorted(((float(r["width_over_depth"]), self._datum(file, r, f"K_Zcp at width/depth {r['width_over_depth']}",
+                                                                  symbol="K_Zcp")) for r in file.rows),
+                      key=lambda item: item[0])
+        (r0, d0), (r1, d1) = rows[0], rows[-1]
+        if width_over_depth <= r0:
+            return d0.value, [d0]
+        if width_over_depth >= r1:
+            return d1.value, [d1]
+        share = (width_over_depth - r0) / (r1 - r0)
+        return d0.value + share * (d1.value - d0.value), [d0, d1]
+
+    def sls_factors(self) -> list[tuple[str, str, Datum]]:
+        """(check, load type, factor) of the serviceability combinations."""
+        file = self.files["sls_combinations.csv"]
+        return [(r["check"], r["load"], self._datum(file, r, f"SLS combination {r['check']} {r['load']}", "factor"))
+                for r in file.rows]
+
+    def glulam_widest_board(self, width: float) -> Datum:
+        """Width of the widest single board of a standard glulam width (for K_Zbg), mm.
+
+        A width made from one lamstock board counts as one board of the finished
+        width; a width made from two boards side by side (``89+140``) counts as
+        its wider lamstock board.
+        """
+        file = self.files["sizes_glulam.csv"]
+        for row in file.rows:
+            if float(row["width"]) == width:
+                pieces = [float(p) for p in row["lamstock"].split("+")]
+                value = max(pieces) if len(pieces) > 1 else width
+                return Datum(value, f"b_lam widest board of {width:g} mm glulam (lamstock {row['lamstock']})",
+                             row.get("edition", ""), row.get("source", "").strip(), row.get("status", "").strip(),
+                             file.name, "b_lam")
+        raise DataError(file.name, f"no standard glulam width {width:g} mm")
 
     # -- combinations and sizes ----------------------------------------------
     @cached_property

@@ -9,8 +9,13 @@ from __future__ import annotations
 from collections.abc import Callable
 from dataclasses import dataclass, field
 
+from .analysis import loading_mode, member_forces, service_cases
 from .checks import CheckResult
+from .checks.bearing import check_bearing
+from .checks.bending import check_bending
 from .checks.compression import check_compression
+from .checks.deflection import check_deflection
+from .checks.shear import check_shear
 from .checks.tension import check_tension
 from .data import DataSet, Datum, Recorded
 from .errors import DesignError, TimbersheetsError
@@ -35,6 +40,7 @@ class Context:
     phi: Recorded
     used: list[Datum] = field(default_factory=list)
     K_Zt: float = 1.0
+    data: DataSet | None = None  # for the lookups a check makes itself (size factors, restraint rules)
 
     @property
     def mark(self) -> str:
@@ -86,8 +92,9 @@ def build_context(member: Member, data: DataSet, section: Section | None = None)
     category = "all" if member.material == "glulam" else service_category(section)
     K_S = {p: data.service_factor(member.material, category, p, member.service) for p in SERVICE_PROPERTIES}
     phi = {a: data.resistance_factor(a) for a in ("tension", "compression", "bending", "shear", "bearing")}
-    ctx = Context(member, section, f, Recorded(f.values, used), Recorded(K_S, used), Recorded(phi, used), used)
-    if member.material == "sawn":
+    ctx = Context(member, section, f, Recorded(f.values, used), Recorded(K_S, used), Recorded(phi, used), used,
+                  data=data)
+    if member.material == "sawn" and member.type != "bending":  # bending uses K_Zb, K_Zv (checks/bending.py)
         kzt = data.size_factor_sawn("K_Zt", section.smaller, section.larger)
         ctx.K_Zt = kzt.value
         used.append(kzt)
@@ -116,6 +123,29 @@ def _axial(sense: str) -> Callable[[Context, list[LoadCase]], list[CheckResult]]
     return design
 
 
+def _bending(ctx: Context, cases: list[LoadCase]) -> list[CheckResult]:
+    """Design function for a bending member on a simple span: strength per ULS
+    combination (bending, shear, bearing), then deflection per SLS combination."""
+    mode = loading_mode(ctx.member)
+    line = mode == "line"
+    strength: dict[str, list[CheckResult]] = {"bending": [], "shear": [], "bearing": []}
+    for case in cases:
+        forces = member_forces(ctx.member, ctx.section.d, case, mode)
+        if abs(forces.M_f) > EPS:
+            strength["bending"].append(check_bending(ctx, forces, line))
+        if abs(forces.V_fd) > EPS or (forces.W_f and abs(forces.W_f) > EPS):
+            strength["shear"].append(check_shear(ctx, forces, line))
+        bearing = check_bearing(ctx, forces, line)
+        if bearing is not None:
+            strength["bearing"].append(bearing)
+    out = [c for name in ("bending", "shear", "bearing") for c in strength[name]]
+    if any(ctx.member.values[f"w_{t}"] for t in LOAD_TYPES):
+        out += [check_deflection(ctx, sc) for sc in service_cases(ctx.member, ctx.data)]
+    if not out:
+        raise DesignError(ctx.mark, "carries no bending moment or shear under any combination")
+    return out
+
+
 @dataclass(frozen=True)
 class MemberType:
     name: str
@@ -129,6 +159,7 @@ def member_types() -> dict[str, MemberType]:
     return {
         "tension": MemberType("tension", _axial("tension"), "axial.ipynb", "tension member"),
         "compression": MemberType("compression", _axial("compression"), "axial.ipynb", "compression member"),
+        "bending": MemberType("bending", _bending, "bending.ipynb", "bending member"),
     }
 
 

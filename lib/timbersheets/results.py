@@ -27,7 +27,8 @@ def round_utilization(u: float) -> float:
 
 
 def _num(value: float, unit: str) -> float:
-    return round_sig(value, unit, 4)
+    """Demand and resistance exactly as the sheet prints them (calc.format_number)."""
+    return round_sig(value, unit, 3)
 
 
 def check_json(c: CheckResult) -> dict[str, Any]:

@@ -8,6 +8,7 @@ write results.json, so a sheet cannot disagree with the verdict.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -18,7 +19,7 @@ from .data import DataSet
 from .design import MemberDesign, design_member
 from .loads import EFFECT_UNITS, EFFECTS, LOAD_TYPES, kd_permanent
 from .schedule import Member
-from .symbols import ACTION_WORDS, meaning, symbol_latex
+from .symbols import ACTION_WORDS, meaning, symbol_latex, symbol_unit
 from .tex import Cell, Table, escape, md_escape
 from .units import to_display
 
@@ -100,16 +101,27 @@ class Sheet:
             ["Size", Cell(self._size_latex(section), self._size_text(section))],
             ["Service condition", Cell(f"{m.service}; $K_T = {format_number(m.K_T)}$, $K_H = {format_number(m.K_H)}$ "
                                        "from the schedule", f"{m.service}; K_T = {m.K_T:g}, K_H = {m.K_H:g}")],
+        ]
+        if m.type == "bending":
+            from .beamsheet import member_rows
+
+            rows += member_rows(m, section)
+        else:
+            rows += self._axial_rows(m, section)
+        if m.note:
+            rows.append(["Note", m.note])
+        rows.append(["Schedule", f"row {m.row}"])
+        return heading("Member") + table(Table(["Item", "Value"], rows, "lX"))
+
+    @staticmethod
+    def _axial_rows(m, section) -> list[list[object]]:
+        return [
             ["Length", Cell(f"$L = {format_value(m.length, 'mm')}$; $K_e = {format_number(m.Ke)}$; "
                             f"$L_x = {format_value(m.Lx, 'mm')}$, $L_y = {format_value(m.Ly, 'mm')}$",
                             f"L = {m.length:g} mm; Ke = {m.Ke:g}; Lx = {m.Lx:g} mm, Ly = {m.Ly:g} mm")],
             ["Net area", Cell(f"$A_n = {format_number(m.net_area)}\\,A_g = {format_value(section.A * m.net_area, 'mm**2')}$",
                               f"A_n = {m.net_area:g} A_g")],
         ]
-        if m.note:
-            rows.append(["Note", m.note])
-        rows.append(["Schedule", f"row {m.row}"])
-        return heading("Member") + table(Table(["Item", "Value"], rows, "lX"))
 
     @staticmethod
     def _size_latex(s) -> str:
@@ -141,9 +153,12 @@ class Sheet:
                 continue
             rows.append([LOAD_NAMES[t], Cell.math(t), *[q(m.values[f"{e}_{t}"], EFFECT_UNITS[e]) for e in effects],
                          DURATION_CLASS[t] + " term"])
+        sense = ("Line loads act downward on the span, negative values upward (uplift); moments and shears are "
+                 "the frame model's, by load type." if m.type == "bending" else
+                 "Positive axial force acts in the member's own sense (tension for a tension member, compression "
+                 "otherwise).")
         intro = para("Specified loads from the schedule, including importance factors, by load type (NBC "
-                     f"{escape(self.codes.get('nbc', '2020'))} Part 4). Positive axial force acts in the member's own "
-                     "sense (tension for a tension member, compression otherwise).")
+                     f"{escape(self.codes.get('nbc', '2020'))} Part 4). {sense}")
         return heading("Specified loads") + intro + table(Table(header, rows, "ll" + "r" * len(effects) + "l", units))
 
     # 3 -------------------------------------------------------------------------
@@ -171,7 +186,23 @@ class Sheet:
                 out += para(f"For {escape(case.label)} the long-term (dead) part exceeds the standard-term part, "
                             f"so (CSA O86:19 5.3.2.3, on ${case.kd_effect}$):")
                 out += math_block(latex)
+        if self.m.type == "bending":
+            from .beamsheet import forces_block
+
+            out += forces_block(d)
         return out
+
+    def diagram(self) -> list[object]:
+        """Bending members: the shear and moment diagram of the governing combination (else nothing)."""
+        from .beamsheet import diagram
+
+        return diagram(self.design) if self.m.type == "bending" else []
+
+    def serviceability_section(self) -> Block:
+        """Bending members: the SLS combinations used for deflection, with their sources."""
+        from .beamsheet import serviceability_block
+
+        return serviceability_block(self.design, self.data) if self.m.type == "bending" else Block("", "")
 
     # 4 -------------------------------------------------------------------------
     def factors_section(self) -> Block:
@@ -179,15 +210,17 @@ class Sheet:
         rows = []
         seen: set[str] = set()
         for datum in d.data_used:
-            if datum.symbol in seen or datum.label.startswith("NBC combination") or datum.symbol == "K_D":
+            if datum.symbol in seen or datum.label.startswith(("NBC combination", "SLS combination")) \
+                    or datum.symbol == "K_D":
                 continue
             seen.add(datum.symbol)
-            unit = "MPa" if datum.symbol.startswith(("f_", "E")) else ""
-            value = format_number(datum.value, unit) + (f"\\ \\mathrm{{{unit}}}" if unit else "")
+            unit = "MPa" if datum.symbol.startswith(("f_", "E")) else symbol_unit(datum.symbol)
+            value = format_number(datum.value, unit) + (f"\\ {unit_latex(unit)}" if unit else "")
             rows.append([Cell.math(symbol_latex(datum.symbol)), Cell(f"${value}$", value),
                          meaning(datum.symbol) or datum.label, f"{datum.table}", datum.status_text])
         m = self.m
-        for name, value in (("K_H", m.K_H), ("K_T", m.K_T), ("K_e", m.Ke)):
+        given = (("K_H", m.K_H), ("K_T", m.K_T)) + ((("K_e", m.Ke),) if m.type != "bending" else ())
+        for name, value in given:
             rows.append([Cell.math(symbol_latex(name)), Cell(f"${format_number(value)}$", format_number(value)),
                          meaning(name), "schedule", "as given"])
         intro = para(f"Specified strengths for {escape(d.context.strengths.description) if d.context else ''}, "
@@ -211,19 +244,21 @@ class Sheet:
 
     def _check_block(self, name: str, gov: CheckResult, all_cases: list[CheckResult]) -> Block:
         out = heading(f"{ACTION_WORDS.get(name, name)} ({gov.clause})", 2)
+        kd = ("specified loads; $K_D$ does not apply to stiffness" if serviceability(gov)
+              else f"$K_D = {format_number(gov.K_D)}$")
         out += para(f"Shown in full for the governing combination {escape(gov.combination)} "
-                    f"($K_D = {format_number(gov.K_D)}$); every combination is listed after.")
+                    f"({kd}); every combination is listed after.")
         for step in gov.steps:
             if step.caption:
-                out += para(f"\\emph{{{escape(step.caption)}}}", f"*{md_escape(step.caption)}*")
+                out += para(f"\\emph{{{caption_latex(step.caption)}}}", f"*{md_escape(step.caption)}*")
             out += math_block(step.latex())
         out += math_block(self._utilization_latex(gov))
         unit = gov.unit
         header = ["Combination", Cell.math("K_D"), Cell.math(gov.demand_symbol_latex),
                   Cell.math(gov.resistance_symbol_latex), "Utilization"]
         units = ["", "", unit_text(unit), unit_text(unit), ""]
-        rows = [[c.combination, Cell(f"${format_number(c.K_D)}$", format_number(c.K_D)),
-                 num(c.demand, unit), num(c.resistance, unit), util_cell(c.utilization)] for c in all_cases]
+        rows = [[c.combination, kd_cell(c), num(c.demand, unit), num(c.resistance, unit), util_cell(c.utilization)]
+                for c in all_cases]
         return out + table(Table(header, rows, "lrrrr", units))
 
     @staticmethod
@@ -247,9 +282,8 @@ class Sheet:
         else:
             from .results import round_utilization
 
-            rows = [[ACTION_WORDS.get(c.check, c.check), c.combination,
-                     Cell(f"${format_number(c.K_D)}$", format_number(c.K_D)),
-                     util_cell(c.utilization)] for c in d.governing_by_check().values()]
+            rows = [[ACTION_WORDS.get(c.check, c.check), c.combination, kd_cell(c), util_cell(c.utilization)]
+                    for c in d.governing_by_check().values()]
             out += table(Table(["Check", "Governing combination", Cell.math("K_D"), "Utilization"], rows, "llrr"))
             gov = d.governing
             verdict = "PASSES" if d.status == "pass" else "DOES NOT PASS"
@@ -282,6 +316,21 @@ class Sheet:
         return {RESULT_MIME: member_json(self.design), "text/plain": f"result record for {self.design.mark}"}
 
 
+_SYMBOL = re.compile(r"(?<![A-Za-z0-9\\])([A-Za-z]+)_([A-Za-z0-9]+)(?![A-Za-z0-9])")
+
+
+def caption_latex(text: str) -> str:
+    """A caption with its O86 symbols (K_L, V_fd, f_b) set as maths; schedule column names stay text."""
+    out, pos = [], 0
+    for match in _SYMBOL.finditer(text):
+        head = match.group(1)
+        if head.islower() and len(head) > 1 and head != "phi":
+            continue  # a column name such as defl_L
+        out += [escape(text[pos:match.start()]), f"${symbol_latex(match.group(0))}$"]
+        pos = match.end()
+    return "".join(out) + escape(text[pos:])
+
+
 def basis_cell(basis: str) -> Cell:
     """The K_D basis with its symbols set as maths."""
     latex = escape(basis).replace(r"P\_L \textgreater{} P\_S", "$P_L > P_S$")
@@ -301,8 +350,20 @@ def unit_text(unit: str) -> str:
 
 
 def num(value: float, unit: str) -> Cell:
-    text = format_number(value, unit)
+    """A result in a check's table; deflections (mm) to 0.1 mm, like forces to 0.1 kN."""
+    text = f"{value:.1f}" if unit == "mm" else format_number(value, unit)
     return Cell(f"${text}$", text)
+
+
+def serviceability(c: CheckResult) -> bool:
+    return c.check.startswith("deflection")
+
+
+def kd_cell(c: CheckResult) -> Cell:
+    """K_D of a strength check; a dash for deflection, where K_D does not apply."""
+    if serviceability(c):
+        return Cell("--", "–")
+    return Cell(f"${format_number(c.K_D)}$", format_number(c.K_D))
 
 
 def util_cell(u: float) -> Cell:

@@ -24,12 +24,23 @@ SYMBOLS: dict[str, tuple[str, str]] = {
     "K_SE": ("K_{SE}", "service condition factor, modulus of elasticity"),
     "K_Zt": ("K_{Zt}", "size factor, tension"),
     "K_Zb": ("K_{Zb}", "size factor, bending"),
+    "K_Zv": ("K_{Zv}", "size factor, shear"),
+    "K_Zcp": ("K_{Zcp}", "size factor, bearing (compression perpendicular to grain)"),
+    "K_X": ("K_{X}", "curvature factor (glulam)"),
+    "K_Le": ("K_{Le}", "effective length factor for lateral stability (effective length over the unsupported length)"),
+    "d/b": ("d/b", "largest depth-to-width ratio at which the lateral stability factor is 1.0 with the restraint provided"),
+    "b_lam": ("b_{lam}", "width of the widest single board (glulam size factor)"),
+    "C_V": ("C_{V}", "shear-load coefficient, glulam shear method (b)"),
+    "Z_max": ("Z_{max}", "largest member volume for glulam shear method (a)"),
     "phi": (r"\phi", "resistance factor"),
     "K_D": ("K_{D}", "load-duration factor"),
     "K_H": ("K_{H}", "system factor"),
     "K_T": ("K_{T}", "treatment factor"),
     "K_e": ("K_{e}", "effective length factor"),
 }
+
+#: Units of data symbols that are not strengths (strengths and moduli are MPa).
+SYMBOL_UNITS = {"b_lam": "mm", "Z_max": "m**3"}
 
 ACTION_WORDS = {
     "tension": "Tension parallel to grain",
@@ -49,6 +60,10 @@ def symbol_latex(name: str) -> str:
         return SYMBOLS[name][0]
     head, _, tail = name.partition("_")
     return f"{head}_{{{tail}}}" if tail else head
+
+
+def symbol_unit(name: str) -> str:
+    return SYMBOL_UNITS.get(name, "")
 
 
 def meaning(name: str) -> str:

@@ -1,0 +1,131 @@
+"""Sheet content that only bending members have: span and support rows, the
+member forces of every combination, the SLS combinations and the diagram.
+
+Called by :class:`timbersheets.sheets.Sheet`; every number comes from the same
+analysis functions the design used.
+"""
+
+from __future__ import annotations
+
+from .analysis import loading_mode, member_forces, service_cases
+from .calc import format_number, format_value
+from .errors import TimbersheetsError
+from .sheets import Block, heading, para, q, table
+from .tex import Cell, Table, escape
+from .units import to_display
+
+
+def member_rows(m, section) -> list[list[object]]:
+    """Rows of section 1 that describe the span, its supports and the limits."""
+    span = Cell(f"$L = {format_value(m.length, 'mm')}$, simply supported; the design span between the centres of "
+                "the bearings", f"L = {m.length:g} mm, simply supported")
+    if m.Lu == 0:
+        lateral = ("compression edge held continuously ($L_u = 0$), e.g. by decking or joists fixed to it",
+                   "compression edge held continuously (Lu = 0)")
+    else:
+        lateral = (f"compression edge laterally unsupported over $L_u = {format_value(m.Lu, 'mm')}$",
+                   f"compression edge unsupported over Lu = {m.Lu:g} mm")
+    lateral_text = lateral[0] + "; ends held in position and against rotation at the bearings"
+    bearing = (Cell(f"$l_b = {format_value(m.bearing, 'mm')}$ at each end support",
+                    f"l_b = {m.bearing:g} mm at each end support") if m.bearing is not None
+               else "not given: no bearing check")
+    try:
+        mode = loading_mode(m)
+    except TimbersheetsError:
+        mode = ""
+    loading = {"line": "uniform line loads on the span (the forces are computed below)",
+               "forces": "moments and shears from a frame model, used as given"}.get(mode, "see section 5")
+    return [
+        ["Span", span],
+        ["Lateral support", Cell(lateral_text, lateral[1])],
+        ["Bearing", bearing],
+        ["Loading", loading],
+        ["Deflection limits", Cell(f"$L/{format_number(m.defl_L, 'mm')}$ under live load, "
+                                   f"$L/{format_number(m.defl_total, 'mm')}$ under total load",
+                                   f"L/{m.defl_L:g} live, L/{m.defl_total:g} total")],
+        ["Net area", Cell(f"$A_n = {format_number(m.net_area)}\\,A_g = {format_value(section.A * m.net_area, 'mm**2')}$",
+                          f"A_n = {m.net_area:g} A_g")],
+    ]
+
+
+def forces_block(design) -> Block:
+    """The factored moment, shear and reaction of every combination."""
+    ctx, m = design.context, design.member
+    if ctx is None or design.errors:
+        return Block("", "")
+    out = heading("Member forces", 2)
+    if loading_mode(m) == "forces":
+        return out + para("Moments and shears from the frame model, combined by the factors of each combination "
+                          "(the table above) and used as given; the reaction at a support is taken as the shear.")
+    forces = [member_forces(m, ctx.section.d, case, "line") for case in design.cases]
+    out += para(f"Simply supported span $L = {format_value(m.length, 'mm')}$ under the uniform factored load "
+                "$w_f$: $M_f = w_f L^2/8$ at midspan; $V_f = Q_f = w_f L/2$ at the supports; "
+                "$V_{fd} = w_f (L/2 - d)$ at distance $d$ from the end of the span, the shear the check uses "
+                "(on the safe side of measuring $d$ from the face of the support).",
+                "Simply supported span under the uniform factored load w_f: M_f = w_f L²/8, V_f = Q_f = w_f L/2, "
+                "V_fd = w_f (L/2 − d).")
+    header = ["Combination", Cell.math("w_f"), Cell.math("M_f"), Cell.math("V_f"), Cell.math("V_{fd}"),
+              Cell.math("Q_f")]
+    units = ["", "kN/m", "kN·m", "kN", "kN", "kN"]
+    rows = [[f.case.label, q(f.w_f, "N/mm"), q(f.M_f, "N*mm"), q(f.V_f, "N"), q(f.V_fd, "N"), q(f.R_f, "N")]
+            for f in forces]
+    out += table(Table(header, rows, "l" + "r" * (len(header) - 1), units))
+    if any(f.R_f < 0 for f in forces):
+        out += para("A negative $Q_f$ is uplift at the supports: no bearing demand, but the connections must hold "
+                    "the member down (not checked on this sheet).")
+    return out
+
+
+def serviceability_block(design, data) -> Block:
+    """The SLS combinations used for deflection, with their sources."""
+    m = design.member
+    out = heading("Serviceability combinations", 2)
+    if design.errors or design.context is None:
+        return Block("", "")
+    mode = loading_mode(m)
+    cases = service_cases(m, data) if any(m.values[f"w_{t}"] for t in "DLSWE") else []
+    if not cases and mode == "forces":
+        return out + para("Deflection is not checked: the row gives the moments and shears of a frame model, not "
+                          "the loads that cause them. Check deflection in the frame model, or give the line loads "
+                          "$w_*$ of the simple span.", "Deflection is not checked: no line loads w_* given.")
+    if not cases:
+        return out + para("Deflection is not checked: the member carries no dead, live or snow load, and wind and "
+                          "earthquake are not included in the serviceability combinations.")
+    intro = ("Deflection under specified (unfactored) loads, with $E_S = E\\,K_{SE}\\,K_T$ and no $K_D$: live "
+             "$1.0L + 1.0S$ and total $1.0D + 1.0L + 1.0S$, each with only the loads this member carries. "
+             "Live $1.0L$ and total $1.0D + 1.0L$ follow a published worked example (L. A. Fernandez, 2024; "
+             "NBC 2015 basis). Snow is taken at its full specified value, the roof's live load: a conservative "
+             "choice against the NBC 2020 SLS companion factors, recorded as unverified. Wind and earthquake are "
+             "not gravity loads on the span and are left out.")
+    if mode == "forces":
+        intro += " The strength checks use the frame model's forces; the line loads serve deflection only."
+    rows = []
+    for c in cases:
+        limit = m.defl_L if c.check == "deflection-live" else m.defl_total
+        status = "unverified" if any(not d.verified for d in c.datums) else "sourced"
+        rows.append(["live" if c.check == "deflection-live" else "total", c.label, q(c.w_s, "N/mm"),
+                     Cell(f"$L/{format_number(limit, 'mm')}$", f"L/{limit:g}"), status])
+    return out + para(intro) + table(Table(["Deflection", "Combination", Cell.math("w_s"), "Limit",
+                                                           "Data status"], rows, "llrrl",
+                                                          ["", "", "kN/m", "", ""]))
+
+
+def diagram(design) -> list[object]:
+    """Caption and PNG of the shear and moment under the governing bending combination, or []."""
+    from IPython.display import Image
+
+    from .diagrams import shear_moment_png
+
+    m, ctx = design.member, design.context
+    if design.errors or ctx is None or loading_mode(m) != "line":
+        return []
+    gov = design.governing_by_check().get("bending")
+    if gov is None:
+        return []
+    case = next(c for c in design.cases if c.label == gov.combination)
+    w_f = to_display(case.factored["w"], "N/mm")[0]
+    png = shear_moment_png(w_f, m.length / 1000, ctx.section.d / 1000)
+    caption = para(f"Shear and moment under the governing combination {escape(case.label)}, "
+                   f"$w_f = {format_number(w_f, 'kN/m')}$~kN/m ($V_{{fd}}$ at $d = {format_value(ctx.section.d, 'mm')}$).",
+                   f"Shear and moment under {case.label}.")
+    return [caption, Image(data=png, format="png")]

@@ -1,0 +1,213 @@
+"""Bending moment resistance with lateral stability (CSA O86:19 6.5.4 sawn, 7.5.6 glulam).
+
+Sawn:   M_r = φ F_b S K_Zb K_L,  F_b = f_b (K_D K_H K_Sb K_T).
+Glulam: M_r = the lesser of φ F_b S K_X K_Zbg and φ F_b S K_X K_L, with
+        K_Zbg = (130/b)^0.1 (610/d)^0.1 (9100/L)^0.1 ≤ 1.3 (b the widest board),
+        K_X = 1.0 for straight members, E05 = 0.87 E in the stability terms.
+
+Lateral stability: for sawn lumber K_L = 1.0 where the depth-to-width ratio d/b
+meets the rule for the restraint the row describes (Lu = 0: compression edge
+held by decking or joists; 0 < Lu < span: held at intervals by purlins or tie
+rods; Lu = span: no intermediate support); otherwise K_L is computed from
+C_B = √(L_e d / b²) ≤ 50 with L_e from Lu. Glulam: K_L = 1.0 for Lu = 0,
+computed otherwise. Under negative moment (uplift) the bottom edge is in
+compression; no row describes its restraint, so it is taken as laterally
+unsupported over the whole span. The ends are assumed held in position and
+against rotation at the bearings.
+
+Clause numbers follow the O86-14 numbering (memory, unverified); the K_L and
+K_Zbg forms and the depth-to-width rules are from memory (reference notes
+§4.3, §4.4, §3.6) and are flagged as such through their data rows.
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+from math import sqrt
+
+from ..calc import calc, format_number
+from ..data import Datum
+from ..errors import DataError, DesignError
+from . import Step, result
+
+SAWN_CLAUSE = "O86:19 6.5.4"
+GLULAM_CLAUSE = "O86:19 7.5.6"
+STABILITY_CLAUSE = {"sawn": "O86:19 6.5.4.2", "glulam": "O86:19 7.5.6.4"}
+CB_MAX = 50.0
+CB_STOCKY = 10.0  # C_B at or below which K_L = 1.0 (O86 6.5.4.2.4)
+
+
+@calc(units={"f_b": "MPa", "K_D": "", "K_H": "", "K_Sb": "", "K_T": "", "F_b": "MPa"}, clause=SAWN_CLAUSE)
+def bending_strength(f_b, K_D, K_H, K_Sb, K_T):
+    F_b = f_b * (K_D * K_H * K_Sb * K_T)
+    return locals()
+
+
+@calc(units={"K_Le": "", "L_u": "mm", "d": "mm", "b": "mm", "E_05": "MPa", "K_SE": "", "K_T": "", "F_b": "MPa",
+             "L_e": "mm", "C_B": "", "C_K": ""}, clause="O86:19 6.5.4.2")
+def lateral_slenderness(K_Le, L_u, d, b, E_05, K_SE, K_T, F_b):
+    L_e = K_Le * L_u
+    C_B = sqrt(L_e * d / b**2)
+    C_K = sqrt(0.97 * E_05 * K_SE * K_T / F_b)
+    return locals()
+
+
+@calc(units={"C_B": "", "C_K": "", "K_L": ""}, clause="O86:19 6.5.4.2")
+def lateral_intermediate(C_B, C_K):
+    K_L = 1 - 1 / 3 * (C_B / C_K) ** 4
+    return locals()
+
+
+@calc(units={"C_B": "", "E_05": "MPa", "K_SE": "", "K_T": "", "F_b": "MPa", "K_L": ""}, clause="O86:19 6.5.4.2")
+def lateral_slender(C_B, E_05, K_SE, K_T, F_b):
+    K_L = 0.65 * E_05 * K_SE * K_T / (C_B**2 * F_b)
+    return locals()
+
+
+@calc(units={"phi": "", "F_b": "MPa", "S_x": "mm**3", "K_Zb": "", "K_L": "", "M_r": "N*mm"}, clause=SAWN_CLAUSE)
+def sawn_bending(phi, F_b, S_x, K_Zb, K_L):
+    M_r = phi * F_b * S_x * K_Zb * K_L
+    return locals()
+
+
+@calc(units={"b_lam": "mm", "d": "mm", "L": "mm", "K_Zbg": ""}, clause=GLULAM_CLAUSE)
+def glulam_size_factor(b_lam, d, L):
+    K_Zbg = min((130 / b_lam) ** 0.1 * (610 / d) ** 0.1 * (9100 / L) ** 0.1, 1.3)
+    return locals()
+
+
+@calc(units={"phi": "", "F_b": "MPa", "S_x": "mm**3", "K_X": "", "K_Zbg": "", "K_L": "",
+             "M_r1": "N*mm", "M_r2": "N*mm", "M_r": "N*mm"}, clause=GLULAM_CLAUSE)
+def glulam_bending(phi, F_b, S_x, K_X, K_Zbg, K_L):
+    M_r1 = phi * F_b * S_x * K_X * K_Zbg
+    M_r2 = phi * F_b * S_x * K_X * K_L
+    M_r = min(M_r1, M_r2)
+    return locals()
+
+
+def sawn_size_factors(m) -> tuple[Datum, Datum]:
+    """K_Zb and K_Zv of a sawn bending member, from the size-factor table.
+
+    Rule for built-up members: the table is entered with the thickness and
+    depth of ONE ply (38 × 286 for 4 plies of 38 × 286, giving 1.0), not with
+    the built-up width. The size effect describes how the chance of a
+    strength-reducing defect grows with the stressed volume of one piece of
+    lumber, and the table was derived for single pieces of the tabled
+    thickness; in a built-up member each ply is such a piece, with its own
+    defects, so each keeps its own size factor. The sharing of load between
+    plies is credited by the system factor K_H from the row; taking K_Zb from
+    the thicker column as well (the published example S1 used 1.1 for 38 × 286
+    plies, which is the 89–102 mm column's value at 286 mm as the team recalls
+    it) would credit the built-up action twice. The rule is conservative
+    (1.0 ≤ 1.1). K_Zv is read from the same table column as K_Zb (reference
+    notes §3.5; memory, unverified).
+    """
+    s = m.section
+    if s.ply_b > s.d:
+        raise DesignError(m.mark, f"a sawn bending member must be on edge (depth {s.d:g} mm is less than the "
+                          f"piece width {s.ply_b:g} mm)", SAWN_CLAUSE, "Write the size as b x d with d the depth")
+    try:
+        kzb = m.data.size_factor_sawn("K_Zb", s.ply_b, s.d)
+    except DataError:
+        raise DesignError(m.mark, f"the bending and shear size factors K_Zb, K_Zv for {s.ply_b:g} mm thick "
+                          "pieces are not in the data tables (only dimension lumber 38-102 mm thick is)",
+                          "O86:19 6.4.5", "Design this timber by hand, or add a verified size-factor table") from None
+    kzv = replace(kzb, symbol="K_Zv", label=kzb.label.replace("K_Zb", "K_Zv (as K_Zb)", 1))
+    m.used += [kzb, kzv]
+    return kzb, kzv
+
+
+def _restraint_rule(m, L_u: float) -> tuple[str, Datum] | None:
+    """The loosest depth-to-width rule the restraint meets, or None (compute K_L)."""
+    ratio = m.section.d / m.section.b
+    provided = ["none"] if L_u >= m.length else ["none", "purlins"] if L_u > 0 else ["none", "purlins", "decking"]
+    for name, datum in m.data.lateral_restraints():
+        if name in provided and ratio <= datum.value:
+            m.used.append(datum)
+            return name, datum
+    return None
+
+
+def lateral_stability(m, F_b: float, negative: bool, line_loads: bool) -> tuple[float, list[Step], str]:
+    """K_L under one combination, its steps, and the words that explain it."""
+    s, member = m.section, m.member
+    L_u = m.length if negative else member.Lu
+    edge = ("Negative moment: the bottom edge is in compression and is taken as laterally unsupported over the "
+            "span, L_u = L. " if negative else "")
+    ratio = s.d / s.b
+    if m.glulam and L_u == 0:
+        return 1.0, [], "Lateral stability: compression edge held continuously (L_u = 0), so K_L = 1.0."
+    if not m.glulam:
+        rule = _restraint_rule(m, L_u)
+        if rule is not None:
+            given = ("the compression edge held continuously (L_u = 0)" if L_u == 0 else
+                     "no intermediate lateral support" if L_u >= m.length else
+                     f"the compression edge held at intervals of L_u = {L_u / 1000:g} m")
+            words = (f"Lateral stability ({STABILITY_CLAUSE['sawn']}.1): d/b = {ratio:.2f} ≤ {rule[1].value:.1f}, the "
+                     f"limit with {rule[1].label.split(', ', 1)[1]}; the member has {given}, so K_L = 1.0.")
+            return 1.0, [], edge + words
+        if L_u == 0:
+            limit = next(d.value for n, d in m.data.lateral_restraints() if n == "decking")
+            raise DesignError(m.mark, f"d/b = {ratio:.2f} exceeds {limit:g}, the most the depth-to-width rule "
+                              "allows with the compression edge held by decking or joists alone; K_L = 1.0 then also "
+                              "needs bridging or blocking at 8d or both edges held, which the schedule cannot state",
+                              STABILITY_CLAUSE["sawn"], "Give Lu (the unsupported length) to compute K_L, or use a "
+                              "wider or built-up member")
+    k_le = m.data.bending_effective_length("simple-udl" if line_loads else "other")
+    m.used.append(k_le)
+    slender = lateral_slenderness(K_Le=k_le.value, L_u=L_u, d=s.d, b=s.b, E_05=m.f["E05"],
+                                  K_SE=m.K_S["K_SE"], K_T=m.K_T, F_b=F_b)
+    C_B, C_K = slender["C_B"], slender["C_K"]
+    if C_B > CB_MAX:
+        raise DesignError(m.mark, f"slenderness C_B = {C_B:.1f} exceeds {CB_MAX:g}",
+                          STABILITY_CLAUSE["glulam" if m.glulam else "sawn"],
+                          "Brace the compression edge (shorter Lu) or choose a wider section")
+    steps = [Step(lateral_slenderness, slender, f"{edge}Lateral stability, laterally unsupported length "
+                  f"L_u = {L_u / 1000:g} m ({'uniform load on a simple span' if line_loads else 'any loading'})")]
+    if C_B <= CB_STOCKY:
+        return 1.0, steps, f"C_B = {C_B:.2f} ≤ {CB_STOCKY:g}, so K_L = 1.0."
+    if C_B <= C_K:
+        values = lateral_intermediate(C_B=C_B, C_K=C_K)
+        steps.append(Step(lateral_intermediate, values, f"{CB_STOCKY:g} < C_B = {C_B:.2f} ≤ C_K = {C_K:.2f}"))
+    else:
+        values = lateral_slender(C_B=C_B, E_05=m.f["E05"], K_SE=m.K_S["K_SE"], K_T=m.K_T, F_b=F_b)
+        steps.append(Step(lateral_slender, values, f"C_K = {C_K:.2f} < C_B = {C_B:.2f} ≤ {CB_MAX:g}"))
+    return values["K_L"], steps, ""
+
+
+def check_bending(m, forces, line_loads: bool):
+    """Factored bending moment resistance M_r against M_f (N·mm) under one combination."""
+    case, M_f = forces.case, forces.M_f
+    negative = M_f < 0
+    s = m.section
+    if m.glulam:
+        f_b = m.f["f_b_neg" if negative else "f_b_pos"]
+    else:
+        f_b = m.f["f_b"]
+    strength = bending_strength(f_b=f_b, K_D=case.K_D, K_H=m.K_H, K_Sb=m.K_S["K_Sb"], K_T=m.K_T)
+    F_b = strength["F_b"]
+    K_L, lateral_steps, words = lateral_stability(m, F_b, negative, line_loads)
+    steps: list[Step] = []
+    if "moment" in forces.steps:
+        steps.append(Step(*forces.steps["moment"], "Factored moment at midspan"))
+    which = ("Negative moment: f_b is the negative-moment strength" if negative else
+             "Positive moment: f_b is the positive-moment strength") if m.glulam else ""
+    steps.append(Step(bending_strength, strength, which))
+    steps += lateral_steps
+    if m.glulam:
+        b_lam = m.data.glulam_widest_board(s.b)
+        k_x = replace(m.data.glulam_factor("K_X_straight"), symbol="K_X")
+        m.used += [b_lam, k_x]
+        size = glulam_size_factor(b_lam=b_lam.value, d=s.d, L=m.length)
+        steps.append(Step(glulam_size_factor, size, "Size factor, b_lam the widest single board, L the span "
+                          "between points of zero moment"))
+        values = glulam_bending(phi=m.phi["bending"], F_b=F_b, S_x=s.S_x, K_X=k_x.value, K_Zbg=size["K_Zbg"], K_L=K_L)
+        clause = GLULAM_CLAUSE
+    else:
+        kzb, _ = sawn_size_factors(m)
+        values = sawn_bending(phi=m.phi["bending"], F_b=F_b, S_x=s.S_x, K_Zb=kzb.value, K_L=K_L)
+        ply = f"Size factor for one ply, {s.ply_b:g} × {s.d:g} mm" if s.plies > 1 else f"Size factor for {s.ply_b:g} × {s.d:g} mm"
+        words = f"{words} {ply}: K_Zb = {format_number(kzb.value)}.".strip()
+        clause = SAWN_CLAUSE
+    steps.append(Step(glulam_bending if m.glulam else sawn_bending, values, words))
+    return result("bending", case, M_f, values["M_r"], "N*mm", clause, tuple(steps), "M_f", "M_r")
