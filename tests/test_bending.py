@@ -269,6 +269,23 @@ def test_deep_joist_with_decking_only_needs_more_restraint(tmp_path, data):
     # Depth-to-width rule (notes §4.3, memory): decking alone allows d/b ≤ 6.5; 38x286 has 7.53.
     d = design_row(tmp_path, data, **dict(BEAM, size="38x286", length="4.0", w_D="0.5", w_L="1"))
     assert d.status == "error" and "d/b = 7.53 exceeds 6.5" in d.errors[0]
+    assert "restraint = blocking" in d.errors[0]
+
+
+@pytest.mark.parametrize("restraint,size,ok", [
+    # Depth-to-width rule (notes §4.3, memory): decking plus bridging or blocking at 8d allows
+    # d/b ≤ 7.5; both edges held allows d/b ≤ 9.0.
+    ("blocking", "38x286", False),  # 7.53 > 7.5: blocking is not enough for a single 38x286
+    ("blocking", "38x235", True),  # 6.18: decking alone would do; blocking changes nothing
+    ("both-edges", "38x286", True),  # 7.53 ≤ 9.0
+])
+def test_restraint_column_extends_the_depth_to_width_rule(tmp_path, data, restraint, size, ok):
+    d = design_row(tmp_path, data, **dict(BEAM, size=size, length="4.0", w_D="0.5", w_L="1", restraint=restraint))
+    if ok:
+        bending = check(d, "bending", "1.25D + 1.5L")
+        assert not d.errors and bending.factors["K_L"] == 1.0
+    else:
+        assert d.status == "error" and "exceeds 7.5" in d.errors[0]
 
 
 def test_axial_load_on_a_bending_member_is_an_error(tmp_path, data):

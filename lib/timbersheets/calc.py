@@ -171,10 +171,12 @@ def round_sig(value: float, unit: str = "", sig: int = 3) -> float:
 
 
 def format_number(value: float, unit: str = "", sig: int = 3) -> str:
-    """A number as text: `sig` significant figures without trailing zeros.
+    """A number as text to `sig` significant figures.
 
-    Forces and moments keep 0.1 (``185.0`` kN); plain factors keep one decimal
-    (``1.0``, ``0.9``); very large or small values use powers of ten.
+    Trailing zeros are dropped only where the value is exactly the shorter
+    number (0.9, 5.5 MPa, but 12.98 → 13.0). Forces and moments keep 0.1
+    (``185.0`` kN); plain factors keep one decimal (``1.0``); very large or
+    small values use powers of ten.
     """
     if value == 0:
         return "0"
@@ -188,7 +190,9 @@ def format_number(value: float, unit: str = "", sig: int = 3) -> str:
     if "." in text:
         keep = 1 if unit in FORCE_UNITS or unit == "" else 0
         whole, frac = text.split(".")
-        frac = frac.rstrip("0")
+        short = frac.rstrip("0")
+        if abs(float(f"{whole}.{short or '0'}") - value) <= 1e-9 * max(1.0, abs(value)):
+            frac = short  # the zeros were not significant: the value is exactly this
         frac = frac if len(frac) >= keep else frac.ljust(keep, "0")
         text = f"{whole}.{frac}" if frac else whole
     elif unit == "":

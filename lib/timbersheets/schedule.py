@@ -61,6 +61,8 @@ def _columns() -> tuple[Column, ...]:
         Column("Lx", "quantity", "m", "mm", minimum=0),  # 0 = braced about x over the length
         Column("Ly", "quantity", "m", "mm", minimum=0),  # 0 = braced about y (e.g. sheathing)
         Column("Lu", "quantity", "m", "mm", default=0.0, minimum=0),
+        # lateral restraint beyond what Lu says (bending members): bridging or blocking at 8d, or both edges held
+        Column("restraint", "choice", choices=("blocking", "both-edges")),
         Column("net_area", "number", default=1.0, minimum=0, strict=True),
         Column("bearing", "quantity", "mm", "mm", minimum=0, strict=True),
     ]

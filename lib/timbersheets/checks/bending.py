@@ -121,6 +121,11 @@ def _restraint_rule(m, L_u: float) -> tuple[str, Datum] | None:
     """The loosest depth-to-width rule the restraint meets, or None (compute K_L)."""
     ratio = m.section.d / m.section.b
     provided = ["none"] if L_u >= m.length else ["none", "purlins"] if L_u > 0 else ["none", "purlins", "decking"]
+    extra = m.member.values.get("restraint")
+    if extra == "both-edges":
+        provided = ["none", "purlins", "decking", "blocking", "both-edges"]
+    elif extra == "blocking" and L_u == 0:
+        provided.append("blocking")
     for name, datum in m.data.lateral_restraints():
         if name in provided and ratio <= datum.value:
             m.used.append(datum)
@@ -140,18 +145,24 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool) -> tuple[
     if not m.glulam:
         rule = _restraint_rule(m, L_u)
         if rule is not None:
-            given = ("the compression edge held continuously (L_u = 0)" if L_u == 0 else
+            given = ("both edges held in line (schedule: restraint = both-edges)" if rule[0] == "both-edges" else
+                     "the compression edge held continuously and bridging or blocking at 8d (schedule: restraint = "
+                     "blocking)" if rule[0] == "blocking" else
+                     "the compression edge held continuously (L_u = 0)" if L_u == 0 else
                      "no intermediate lateral support" if L_u >= m.length else
                      f"the compression edge held at intervals of L_u = {L_u / 1000:g} m")
             words = (f"Lateral stability ({STABILITY_CLAUSE['sawn']}.1): d/b = {ratio:.2f} ≤ {rule[1].value:.1f}, the "
                      f"limit with {rule[1].label.split(', ', 1)[1]}; the member has {given}, so K_L = 1.0.")
             return 1.0, [], edge + words
         if L_u == 0:
-            limit = next(d.value for n, d in m.data.lateral_restraints() if n == "decking")
+            given = member.values.get("restraint") or "decking"
+            limit = next(d.value for n, d in m.data.lateral_restraints() if n == given)
+            words = {"decking": "the compression edge held by decking or joists alone",
+                     "blocking": "decking plus bridging or blocking at 8d"}.get(given, "both edges held")
             raise DesignError(m.mark, f"d/b = {ratio:.2f} exceeds {limit:g}, the most the depth-to-width rule "
-                              "allows with the compression edge held by decking or joists alone; K_L = 1.0 then also "
-                              "needs bridging or blocking at 8d or both edges held, which the schedule cannot state",
-                              STABILITY_CLAUSE["sawn"], "Give Lu (the unsupported length) to compute K_L, or use a "
+                              f"allows with {words}", STABILITY_CLAUSE["sawn"],
+                              "If there is bridging or blocking at no more than 8d, give restraint = blocking; if "
+                              "both edges are held, restraint = both-edges; else give Lu to compute K_L, or use a "
                               "wider or built-up member")
     k_le = m.data.bending_effective_length("simple-udl" if line_loads else "other")
     m.used.append(k_le)
