@@ -39,7 +39,8 @@ def latex_symbol(name: str) -> str:
 
 def sample_inputs(c: Calc) -> dict[str, float]:
     params = inspect.signature(c.func).parameters
-    return {p: 1.5 if c.units.get(p, "") == "" else 100.0 for p in params}
+    # distinct values, so no equation divides by zero (e.g. 1 − P_f/P_E)
+    return {p: 1.5 + 0.1 * i if c.units.get(p, "") == "" else 100.0 * (i + 1) for i, p in enumerate(params)}
 
 
 def test_calcs_were_found():

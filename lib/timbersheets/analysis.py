@@ -60,13 +60,14 @@ def loading_mode(member) -> str:
     def given(prefix: str) -> bool:
         return any(member.values[f"{prefix}_{t}"] for t in LOAD_TYPES)
 
-    if given("P"):
-        raise DesignError(member.mark, "a bending member with axial load P_* needs the combined check "
-                          "(type beam-column or tension-bending), which this version does not design",
-                          "", "Remove P_* or design the member by hand")
+    combined = member.type in ("beam-column", "tension-bending")
+    if given("P") and not combined:
+        raise DesignError(member.mark, "a bending member with axial load P_* needs the combined check", "",
+                          "Give type beam-column (compression) or tension-bending, or remove P_*")
     has_m, has_v = given("M"), given("V")
     if has_m or has_v:
-        if not (has_m and has_v):
+        # an axial member with an eccentric load has a moment and no shear: allowed for the combined types
+        if not (has_m and has_v) and not (combined and has_m):
             missing = "V_D … V_E" if has_m else "M_D … M_E"
             raise DesignError(member.mark, f"gives {'moments' if has_m else 'shears'} from a frame model but "
                               f"not the {'shears' if has_m else 'moments'}", "", f"Give {missing} too")

@@ -163,6 +163,13 @@ class DataSet:
                      file.name, symbol or label.split(" ")[0])
 
     def _find(self, file_name: str, label: str, column: str = "value", **key: str) -> Datum:
+        memo = self.__dict__.setdefault("_memo", {})
+        token = (file_name, label, column, tuple(sorted(key.items())))
+        if token not in memo:
+            memo[token] = self._search(file_name, label, column, **key)
+        return memo[token]
+
+    def _search(self, file_name: str, label: str, column: str = "value", **key: str) -> Datum:
         candidates = []
         if self.firm and file_name in ("sawn_strengths.csv", "glulam_strengths.csv"):
             material = "sawn" if file_name.startswith("sawn") else "glulam"

@@ -17,12 +17,14 @@ from .checks.compression import check_compression
 from .checks.deflection import check_deflection
 from .checks.shear import check_shear
 from .checks.tension import check_tension
+from .combined import design_beam_column, design_tension_bending
 from .data import DataSet, Datum, Recorded
 from .errors import DesignError, TimbersheetsError
 from .loads import EFFECTS, LOAD_TYPES, Effects, LoadCase, apply_combinations
 from .materials import Strengths, strengths
 from .schedule import Member, RowError
 from .sections import Section, service_category
+from .sizing import Sizing, size
 
 SERVICE_PROPERTIES = ("K_Sb", "K_Sv", "K_Sc", "K_Scp", "K_St", "K_SE")
 EPS = 1e-9
@@ -94,7 +96,7 @@ def build_context(member: Member, data: DataSet, section: Section | None = None)
     phi = {a: data.resistance_factor(a) for a in ("tension", "compression", "bending", "shear", "bearing")}
     ctx = Context(member, section, f, Recorded(f.values, used), Recorded(K_S, used), Recorded(phi, used), used,
                   data=data)
-    if member.material == "sawn" and member.type != "bending":  # bending uses K_Zb, K_Zv (checks/bending.py)
+    if member.material == "sawn" and member.type in ("tension", "tension-bending"):  # K_Zt: tension only
         kzt = data.size_factor_sawn("K_Zt", section.smaller, section.larger)
         ctx.K_Zt = kzt.value
         used.append(kzt)
@@ -106,7 +108,7 @@ def _axial(sense: str) -> Callable[[Context, list[LoadCase]], list[CheckResult]]
     check = check_tension if sense == "tension" else check_compression
 
     def design(ctx: Context, cases: list[LoadCase]) -> list[CheckResult]:
-        if ctx.member.plies > 1 and sense == "compression":
+        if ctx.section.plies > 1 and sense == "compression":
             raise DesignError(ctx.mark, "built-up (multi-ply) columns need the rules for nailed or bolted "
                               "built-up columns, which this version does not implement", "O86:19 6.5.6.4",
                               "Design it as a solid section or by hand")
@@ -160,6 +162,10 @@ def member_types() -> dict[str, MemberType]:
         "tension": MemberType("tension", _axial("tension"), "axial.ipynb", "tension member"),
         "compression": MemberType("compression", _axial("compression"), "axial.ipynb", "compression member"),
         "bending": MemberType("bending", _bending, "bending.ipynb", "bending member"),
+        "beam-column": MemberType("beam-column", design_beam_column, "combined.ipynb",
+                                  "beam-column (axial compression with bending)"),
+        "tension-bending": MemberType("tension-bending", design_tension_bending, "combined.ipynb",
+                                      "tension member with bending"),
     }
 
 
@@ -176,6 +182,7 @@ class MemberDesign:
     errors: list[str] = field(default_factory=list)
     warnings: list[str] = field(default_factory=list)
     data_used: list[Datum] = field(default_factory=list)
+    sizing: Sizing | None = None
 
     @property
     def status(self) -> str:
@@ -216,11 +223,11 @@ def design_member(member: Member, data: DataSet) -> MemberDesign:
         outcome.errors.append(f"type '{member.type}' is not designed by this version "
                               f"(available: {', '.join(member_types())})")
         return outcome
-    if member.size == "auto":
-        outcome.errors.append("size 'auto' (automatic sizing) is not available in this version; give a size")
-        return outcome
     try:
-        ctx = build_context(member, data)
+        section = None
+        if member.size == "auto":
+            section = _sized_section(member, data, kind, outcome)
+        ctx = build_context(member, data, section)
         cases = apply_combinations(effects_of(member), data, ctx.used, member.K_D)
         outcome.context, outcome.cases = ctx, cases
         outcome.checks = kind.design(ctx, cases)
@@ -231,6 +238,22 @@ def design_member(member: Member, data: DataSet) -> MemberDesign:
     if outcome.context:
         outcome.data_used = list(outcome.context.used)
     return outcome
+
+
+def _sized_section(member: Member, data: DataSet, kind: MemberType, outcome: MemberDesign) -> Section:
+    """The section the search chose; when none passes, the best one found (the member then fails)."""
+    outcome.sizing = size(member, data, kind.design)
+    chosen = outcome.sizing.chosen
+    if chosen is not None:
+        return chosen.section
+    best = outcome.sizing.best
+    if best is None or best.utilization == float("inf"):
+        raise DesignError(member.mark, f"no standard section can carry the loads ({outcome.sizing.searched} "
+                          "searched)", "", "Change the grade, the loads or the constraints")
+    outcome.warnings.append(f"no standard section in the catalogue passes ({outcome.sizing.searched} searched"
+                            f"{'; ' + outcome.sizing.constraints if outcome.sizing.constraints else ''}); the best, "
+                            f"{best.label}, reaches utilization {best.utilization:.3f} ({best.governing})")
+    return best.section
 
 
 def rejected(entry: RowError) -> MemberDesign:

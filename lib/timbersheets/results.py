@@ -67,6 +67,8 @@ def member_json(d: MemberDesign, extra: dict[str, Any] | None = None) -> dict[st
         "errors": d.errors,
         "inputs": d.member.params() if d.member else None,
     }
+    if d.sizing is not None:
+        doc["sizing"] = d.sizing.to_json()
     if extra:
         doc.update(extra)
     return doc

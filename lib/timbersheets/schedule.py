@@ -102,6 +102,8 @@ class Member:
 
     @property
     def section(self) -> Section:
+        if self.values["size"] == "auto":
+            raise ValueError(f"{self.mark}: size 'auto' has no section until it is sized")
         b, d = self.values["size"]
         return Section(b, d, self.values["plies"])
 
@@ -116,7 +118,7 @@ class Member:
             if col.kind == "quantity" and value is not None:
                 out[name] = {"value": round(convert(value, col.compute, col.unit), 9), "unit": col.unit}
             elif col.kind == "size":
-                out[name] = f"{value[0]:g}x{value[1]:g}"
+                out[name] = value if value == "auto" else f"{value[0]:g}x{value[1]:g}"
             else:
                 out[name] = value
         out["given"] = sorted(self.given)
@@ -141,7 +143,7 @@ class Member:
             if col.kind == "quantity" and raw is not None:
                 values[name] = convert(float(raw["value"]), raw["unit"], col.compute)
             elif col.kind == "size":
-                values[name] = parse_size(raw)
+                values[name] = raw if raw == "auto" else parse_size(raw)
             else:
                 values[name] = raw
         return cls(params["mark"], int(params["row"]), values, frozenset(params.get("given", ())))

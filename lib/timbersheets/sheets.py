@@ -94,19 +94,23 @@ class Sheet:
     # 1 -------------------------------------------------------------------------
     def member_section(self) -> Block:
         m, d = self.m, self.design
-        section = d.context.section if d.context else m.section
+        section = d.context.section if d.context else None if m.size == "auto" else m.section
+        size = (Cell(self._size_latex(section), self._size_text(section)) if section is not None
+                else "auto: not sized (see section 5)")
+        if section is not None and m.size == "auto":
+            size = Cell("chosen by the search (schedule size = auto): " + size.latex, "auto: " + size.markdown)
         rows: list[list[object]] = [
             ["Type", f"{m.type} member"],
             ["Material", d.context.strengths.description if d.context else f"{m.species} {m.grade} {m.material}"],
-            ["Size", Cell(self._size_latex(section), self._size_text(section))],
+            ["Size", size],
             ["Service condition", Cell(f"{m.service}; $K_T = {format_number(m.K_T)}$, $K_H = {format_number(m.K_H)}$ "
                                        "from the schedule", f"{m.service}; K_T = {m.K_T:g}, K_H = {m.K_H:g}")],
         ]
-        if m.type == "bending":
+        if m.type in ("bending", "beam-column", "tension-bending") and section is not None:
             from .beamsheet import member_rows
 
             rows += member_rows(m, section)
-        else:
+        if m.type != "bending" and section is not None:
             rows += self._axial_rows(m, section)
         if m.note:
             rows.append(["Note", m.note])
@@ -134,6 +138,33 @@ class Sheet:
     @staticmethod
     def _size_text(s) -> str:
         return f"{s.label} mm; b = {s.b:g} mm, d = {s.d:g} mm, A = {s.A:g} mm²"
+
+    def sizing_section(self) -> Block:
+        """For size = auto: the search, the chosen section and the runners-up."""
+        sz = self.design.sizing
+        if sz is None:
+            return Block("", "")
+        from .results import round_utilization
+
+        def row(c, word):
+            u = "--" if c.utilization == float("inf") else f"{round_utilization(c.utilization):.3f}"
+            return [c.label, Cell(f"${format_number(c.section.A, 'mm**2')}$", format_number(c.section.A, "mm**2")),
+                    Cell(f"${u}$", u), c.governing, word]
+
+        rows = []
+        if sz.chosen is not None:
+            rows.append(row(sz.chosen, "chosen"))
+        rows += [row(c, "runner-up") for c in sz.runners_up]
+        if sz.chosen is None and sz.best is not None:
+            rows.append(row(sz.best, "best reached; does not pass"))
+        words = (f"The schedule asks for the size (size = auto). The catalogue of standard sections "
+                 f"({escape(self.m.material)} {escape(self.m.grade)}) was searched lightest first, least area then "
+                 f"least depth, with every check under every combination; {sz.searched} sections were tried"
+                 f"{'; constraints: ' + escape(sz.constraints) if sz.constraints else ''}.")
+        if sz.chosen is None:
+            words += " No standard section passes; the sheet shows the best one found."
+        return heading("Sizing", 2) + para(words) + table(Table(
+            ["Size", "Area", "Utilization", "Governing", ""], rows, "lrrXl", ["mm", "mm²", "", "", ""]))
 
     # 2 -------------------------------------------------------------------------
     def present_effects(self) -> list[str]:
@@ -256,6 +287,8 @@ class Sheet:
         unit = gov.unit
         header = ["Combination", Cell.math("K_D"), Cell.math(gov.demand_symbol_latex),
                   Cell.math(gov.resistance_symbol_latex), "Utilization"]
+        if name == "interaction":
+            header[2:4] = [Cell(f"Interaction ${gov.demand_symbol_latex}$", "Interaction"), "Limit"]
         units = ["", "", unit_text(unit), unit_text(unit), ""]
         rows = [[c.combination, kd_cell(c), num(c.demand, unit), num(c.resistance, unit), util_cell(c.utilization)]
                 for c in all_cases]
@@ -267,6 +300,8 @@ class Sheet:
 
         u = round_utilization(c.utilization)
         relation = r"\le 1.0\ \text{(passes)}" if c.utilization <= 1.0 else r"> 1.0\ \text{(does not pass)}"
+        if c.check == "interaction":
+            return f"$${c.demand_symbol_latex} = {u:.3f} {relation}$$"
         demand = f"{format_number(c.demand, c.unit)}\\ {unit_latex(c.unit)}"
         resistance = f"{format_number(c.resistance, c.unit)}\\ {unit_latex(c.unit)}"
         return (f"$$\\frac{{{c.demand_symbol_latex}}}{{{c.resistance_symbol_latex}}} = "

@@ -9,6 +9,7 @@ sheet renders exactly the arithmetic that produced the verdict.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import cached_property
 
 from ..calc import Calc
 from ..units import to_display
@@ -29,7 +30,11 @@ class Step:
 
 @dataclass(frozen=True)
 class CheckResult:
-    """One check under one load combination."""
+    """One check under one load combination.
+
+    `factors` (every input and intermediate value, in display units) is built
+    from the steps on first use: the sizing search never reads it.
+    """
 
     check: str  # tension, compression, bending, shear, bearing, interaction, deflection-*
     combination: str
@@ -38,10 +43,17 @@ class CheckResult:
     resistance: float  # display unit
     unit: str  # display unit ("kN", "kN*m", "mm", "")
     clause: str
-    factors: dict[str, float]
     steps: tuple[Step, ...] = field(default=(), compare=False, repr=False)
     demand_symbol: str = ""
     resistance_symbol: str = ""
+    leave_out: tuple[str, ...] = ()  # names not reported as factors (e.g. the resistance itself)
+    with_kd: bool = True  # K_D is a factor of strength checks, not of deflections
+
+    @cached_property
+    def factors(self) -> dict[str, float]:
+        out = {"K_D": self.K_D} if self.with_kd else {}
+        out.update(factors_of(self.steps, self.leave_out))
+        return out
 
     @property
     def demand_symbol_latex(self) -> str:
@@ -79,6 +91,5 @@ def result(check: str, case, demand: float, resistance: float, compute_unit: str
     """Build a CheckResult, converting demand and resistance to display units."""
     shown_demand, unit = to_display(demand, compute_unit)
     shown_resistance, _ = to_display(resistance, compute_unit)
-    factors = {"K_D": case.K_D, **factors_of(steps, (resistance_symbol,))}
     return CheckResult(check, case.label, case.K_D, shown_demand, shown_resistance, unit, clause,
-                       factors, steps, demand_symbol, resistance_symbol)
+                       steps, demand_symbol, resistance_symbol, (resistance_symbol,))

@@ -34,4 +34,4 @@ def check_deflection(m, case, n_lim: float | None = None):
     steps = (Step(sls_deflection, values, words),)
     out = result(case.check, case, values["Delta"], values["Delta_lim"], "mm", SLS_CLAUSE, steps,
                  r"\Delta", r"\Delta_lim")
-    return replace(out, factors={k: v for k, v in out.factors.items() if k not in ("K_D", "Delta_lim")})
+    return replace(out, leave_out=("Delta_lim",), with_kd=False)

@@ -1,0 +1,84 @@
+"""Design functions of the combined member types: beam-column and tension-bending.
+
+Each combination gets the axial check, the bending check (and shear), and the
+interaction check, all with that combination's K_D; deflection per SLS
+combination where the member carries gravity line loads.
+"""
+
+from __future__ import annotations
+
+from .analysis import loading_mode, member_forces, service_cases
+from .checks import CheckResult, result
+from .checks.bending import check_bending
+from .checks.combined import check_beam_column, check_tension_bending
+from .checks.compression import GLULAM_CLAUSE, SAWN_CLAUSE, compression_resistance
+from .checks.deflection import check_deflection
+from .checks.shear import check_shear
+from .checks.tension import check_tension
+from .errors import DesignError
+from .loads import LoadCase
+
+EPS = 1e-9
+
+
+def _reversal(ctx, cases: list[LoadCase], sense: str) -> None:
+    worst = min(cases, key=lambda c: c.factored["P"], default=None)
+    if worst is not None and worst.factored["P"] < -EPS:
+        other = "compression" if sense == "tension" else "tension"
+        raise DesignError(ctx.mark, f"is in {other} ({-worst.factored['P'] / 1000:.1f} kN) under {worst.label}", "",
+                          f"The axial force of a {sense} member with bending must stay in {sense}; "
+                          "design the reversal as its own member")
+
+
+def _deflections(ctx) -> list[CheckResult]:
+    out = []
+    for sc in service_cases(ctx.member, ctx.data):
+        out.append(check_deflection(ctx, sc))
+    return out
+
+
+def design_combined(ctx, cases: list[LoadCase], sense: str) -> list[CheckResult]:
+    """Checks of a member with axial force (`sense`: compression or tension) and bending."""
+    if sense == "compression" and ctx.section.plies > 1:
+        raise DesignError(ctx.mark, "built-up (multi-ply) beam-columns need the rules for built-up columns, which "
+                          "this version does not implement", "O86:19 6.5.6.4", "Design it as a solid section")
+    _reversal(ctx, cases, sense)
+    mode = loading_mode(ctx.member)
+    line = mode == "line"
+    groups: dict[str, list[CheckResult]] = {sense: [], "bending": [], "shear": [], "interaction": []}
+    for case in cases:
+        forces = member_forces(ctx.member, ctx.section.d, case, mode)
+        axial = case.factored["P"]
+        axial_result = bending_result = None
+        if axial > EPS:
+            if sense == "compression":
+                P_r, steps = compression_resistance(ctx, case.K_D)
+                axial_result = result("compression", case, axial, P_r, "N",
+                                      GLULAM_CLAUSE if ctx.glulam else SAWN_CLAUSE, steps, "P_f", "P_r")
+            else:
+                axial_result = check_tension(ctx, case, axial)
+            groups[sense].append(axial_result)
+        if abs(forces.M_f) > EPS:
+            bending_result = check_bending(ctx, forces, line)
+            groups["bending"].append(bending_result)
+        if abs(forces.V_fd) > EPS or (forces.W_f and abs(forces.W_f) > EPS):
+            groups["shear"].append(check_shear(ctx, forces, line))
+        if axial_result and bending_result:
+            axial_r = axial_result.resistance * 1000.0  # kN → N
+            moment_r = bending_result.resistance * 1e6  # kN·m → N·mm
+            check = check_beam_column if sense == "compression" else check_tension_bending
+            groups["interaction"].append(check(ctx, case, axial, axial_r, forces.M_f, moment_r))
+    out = [c for name in (sense, "bending", "shear", "interaction") for c in groups[name]]
+    if not groups[sense] or not groups["bending"]:
+        missing = "axial force (P_D … P_E)" if not groups[sense] else "bending (w_* or M_*)"
+        raise DesignError(ctx.mark, f"carries no {missing} under any combination", "",
+                          f"Give it, or design the member as {'bending' if not groups[sense] else sense}")
+    return out + _deflections(ctx)
+
+
+def design_beam_column(ctx, cases: list[LoadCase]) -> list[CheckResult]:
+    return design_combined(ctx, cases, "compression")
+
+
+def design_tension_bending(ctx, cases: list[LoadCase]) -> list[CheckResult]:
+    return design_combined(ctx, cases, "tension")
