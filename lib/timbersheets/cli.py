@@ -47,6 +47,15 @@ def _parser() -> argparse.ArgumentParser:
                      help="what-if: scale a load type (D, L, S, W, E), e.g. S=1.2; repeatable. Reports which "
                           "members would fail or change governing case, and writes nothing")
 
+    size = sub.add_parser("size", help="size members: the lightest standard section that passes, and runners-up",
+                          description="Search the standard catalogue (sawn dimension lumber in 1 to 4 plies, timbers, "
+                                      "glulam widths by 38 mm laminations) for the lightest section that passes every "
+                                      "check under every combination. Without --mark, sizes the members whose size is "
+                                      "auto; with --mark, sizes those members whatever their scheduled size. Writes "
+                                      "nothing.", epilog=EPILOG)
+    size.add_argument("dir", type=Path, help="the job folder")
+    size.add_argument("--mark", action="append", metavar="M", help="member mark (repeatable)")
+
     diff = sub.add_parser("diff", help="what changed between two revisions",
                           description="Compare outputs/<job>/rev-R1 and rev-R2: members added and removed, changed "
                                       "inputs (old -> new), changed results, flipped verdicts. Prints the changes "
@@ -139,6 +148,48 @@ def cmd_what_if(args: argparse.Namespace) -> int:
     return 1 if any(r.after.status != "pass" for r in rows) else 0
 
 
+def cmd_size(args: argparse.Namespace) -> int:
+    import time
+
+    from .data import DataSet
+    from .design import member_types
+    from .project import load_project
+    from .schedule import load_schedule
+    from .sizing import size
+
+    project = load_project(args.dir)
+    schedule = load_schedule(project.schedule_path)
+    data = DataSet(project.materials)
+    members = {m.mark: m for m in schedule.members}
+    marks = args.mark or [m.mark for m in schedule.members if m.size == "auto"]
+    unknown = [m for m in marks if m not in members]
+    if unknown:
+        print(f"timbersheets: no valid member {', '.join(unknown)} in {project.schedule_path}", file=sys.stderr)
+        return 2
+    if not marks:
+        print("no member has size = auto; name one with --mark M")
+        return 0
+    status = 0
+    for mark in marks:
+        member = members[mark]
+        started = time.perf_counter()
+        result = size(member, data, member_types()[member.type].design)
+        ms = (time.perf_counter() - started) * 1000
+        where = f" ({result.constraints})" if result.constraints else ""
+        print(f"{mark}: {member.type} {member.material} {member.species} {member.grade}{where}; "
+              f"{result.searched} sections tried in {ms:.0f} ms")
+        if result.chosen is None:
+            status = 1
+            best = result.best
+            print(f"  no standard section passes; best {best.label} at {best.utilization:.3f} ({best.governing})"
+                  if best else "  no standard section can carry the loads")
+            continue
+        for word, c in [("chosen", result.chosen)] + [("runner-up", c) for c in result.runners_up]:
+            print(f"  {word:<10} {c.label:<12} A = {c.section.A:>8.0f} mm²  utilization {c.utilization:.3f}  "
+                  f"{c.governing}")
+    return status
+
+
 def cmd_diff(args: argparse.Namespace) -> int:
     from .fileio import write_csv
     from .project import load_project
@@ -198,7 +249,7 @@ def cmd_review(args: argparse.Namespace) -> int:
     return 0
 
 
-COMMANDS = {"new": cmd_new, "run": cmd_run, "diff": cmd_diff, "review": cmd_review}
+COMMANDS = {"new": cmd_new, "run": cmd_run, "size": cmd_size, "diff": cmd_diff, "review": cmd_review}
 
 
 def main(argv: list[str] | None = None) -> int:

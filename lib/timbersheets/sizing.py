@@ -24,6 +24,7 @@ PLIES = (1, 2, 3, 4)
 #: Sections within this fraction of the lightest passing area count as "near-equal weight" for `prefer`.
 PREFER_BAND = 0.10
 MAX_PLY_THICKNESS = 64.0  # built-up members are laminated from 38 or 64 mm stock (common practice)
+MIN_PLY_DEPTH = 140.0  # ... of joist depths, 140 mm and deeper (common practice)
 
 
 @dataclass(frozen=True)
@@ -74,7 +75,8 @@ def catalogue(member: Member, data: DataSet) -> list[Section]:
         sections = [Section(float(w), d) for w in data.glulam_widths for d in depths]
     else:
         for category, b, d in data.sawn_sizes:
-            plies = PLIES if category == "dimension" and b <= MAX_PLY_THICKNESS else (1,)
+            built_up = category == "dimension" and b <= MAX_PLY_THICKNESS and d >= MIN_PLY_DEPTH
+            plies = PLIES if built_up else (1,)
             if fixed_plies is not None:
                 plies = (fixed_plies,) if fixed_plies in plies else ()
             for n in plies:
