@@ -90,6 +90,39 @@ def naive_loop(job: Path, out: Path, count: int) -> tuple[float, int]:
     return time.monotonic() - start, len(members)
 
 
+def sizing_times(job: Path) -> list[str]:
+    """Sizing time of every auto member, and of a full-catalogue sweep (the worst case)."""
+    sys.path.insert(0, str(REPO / "lib"))
+    from timbersheets.data import DataSet
+    from timbersheets.design import effects_of, member_types
+    from timbersheets.loads import apply_combinations
+    from timbersheets.schedule import load_schedule
+    from timbersheets.sizing import catalogue, evaluate, size
+
+    data = DataSet()
+    members = [m for m in load_schedule(job / "schedule.csv").members if m.size == "auto"]
+    lines, worst = [], 0.0
+    for m in members:
+        design = member_types()[m.type].design
+        size(m, data, design)  # warm the data look-ups once
+        start = time.perf_counter()
+        result = size(m, data, design)
+        took = time.perf_counter() - start
+        worst = max(worst, took)
+        cases = apply_combinations(effects_of(m), data, [], m.K_D)
+        m.values["width"] = m.values["max_depth"] = None  # the whole catalogue, no constraint
+        sections = catalogue(m, data)
+        start = time.perf_counter()
+        for section in sections:
+            evaluate(m, data, section, cases, design)
+        sweep = time.perf_counter() - start
+        lines.append(f"    {m.mark:<10} search {took * 1000:6.1f} ms ({result.searched} tried); every one of "
+                     f"{len(sections)} sections under {len(cases)} combinations {sweep * 1000:6.1f} ms")
+        worst = max(worst, sweep)
+    lines.append(f"  sizing: slowest {worst * 1000:.0f} ms a member   target <= 200 ms: {'met' if worst <= 0.2 else 'NOT met'}")
+    return lines
+
+
 def main() -> int:
     parser = argparse.ArgumentParser(description=__doc__, formatter_class=argparse.RawDescriptionHelpFormatter)
     parser.add_argument("--members", type=int, default=100)
@@ -111,6 +144,7 @@ def main() -> int:
         print(f"  warm rerun             {warm:7.1f} s")
         print(f"  one load changed ({mark}) {one:7.1f} s   target <= 10 s: {'met' if one <= 10 else 'NOT met'}")
         print(f"  last run: {log}")
+        print("\n".join(sizing_times(job)))
         count = args.members if args.naive is None else args.naive
         if count:
             naive, n = naive_loop(job, root / "naive", count)
