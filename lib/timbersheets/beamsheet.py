@@ -17,8 +17,19 @@ from .units import to_display
 
 def member_rows(m, section) -> list[list[object]]:
     """Rows of section 1 that describe the span, its supports and the limits."""
-    span = Cell(f"$L = {format_value(m.length, 'mm')}$, simply supported; the design span between the centres of "
-                "the bearings", f"L = {m.length:g} mm, simply supported")
+    try:
+        frame = loading_mode(m) == "forces"
+    except TimbersheetsError:
+        frame = False
+    if frame:
+        span = Cell(f"$L = {format_value(m.length, 'mm')}$; moments and shears from the frame model (the length "
+                    "sets lateral stability and the glulam size factor)", f"L = {m.length:g} mm, frame-model forces")
+    elif m.type == "bending":
+        span = Cell(f"$L = {format_value(m.length, 'mm')}$, simply supported; the design span between the centres of "
+                    "the bearings", f"L = {m.length:g} mm, simply supported")
+    else:
+        span = Cell(f"$L = {format_value(m.length, 'mm')}$; line loads act across the member between its ends, "
+                    "which are held in position", f"L = {m.length:g} mm")
     if m.Lu == 0:
         lateral = ("compression edge held continuously ($L_u = 0$), e.g. by decking or joists fixed to it",
                    "compression edge held continuously (Lu = 0)")

@@ -38,6 +38,7 @@ BUILTIN_FILES = (
     "lateral_restraint_sawn.csv",
     "bending_effective_length.csv",
     "bearing_size_factors.csv",
+    "system_factors.csv",
 )
 
 
@@ -216,6 +217,13 @@ class DataSet:
     def service_factor(self, material: str, category: str, prop: str, service: str) -> Datum:
         label = f"{prop} {material} {category} {service} service"
         return self._find("service_factors.csv", label, material=material, category=category, property=prop, service=service)
+
+    def system_factor_limit(self, applies_to: str) -> Datum:
+        """The largest tabled K_H for `applies_to` (compression, tension, bending, shear)."""
+        file = self.files["system_factors.csv"]
+        rows = [r for r in file.rows if r["applies_to"] == applies_to]
+        row = max(rows, key=lambda r: float(r["value"]))
+        return self._datum(file, row, f"K_H at most {float(row['value']):g} for {applies_to}", symbol="K_H")
 
     def resistance_factor(self, action: str) -> Datum:
         return self._find("resistance_factors.csv", f"phi {action}", "phi", action=action)

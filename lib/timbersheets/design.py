@@ -52,9 +52,23 @@ class Context:
     def glulam(self) -> bool:
         return self.member.material == "glulam"
 
+    notes: list[str] = field(default_factory=list)  # design remarks that go on the sheet and into results
+
     @property
     def K_H(self) -> float:
         return self.member.K_H
+
+    def K_H_for(self, action: str) -> float:
+        """K_H for compression or tension: the schedule's value, at most the tabled one (O86 Table 6.4.4)."""
+        limit = self.data.system_factor_limit(action)
+        if self.member.K_H <= limit.value:
+            return self.member.K_H
+        self.used.append(limit)
+        note = (f"K_H = {self.member.K_H:g} from the schedule applies to bending and shear; {action} takes "
+                f"K_H = {limit.value:g}, the most O86 tables for it")
+        if note not in self.notes:
+            self.notes.append(note)
+        return limit.value
 
     @property
     def K_T(self) -> float:
@@ -237,6 +251,7 @@ def design_member(member: Member, data: DataSet) -> MemberDesign:
         outcome.errors.append(f"internal error while designing ({type(exc).__name__}: {exc}); please report it")
     if outcome.context:
         outcome.data_used = list(outcome.context.used)
+        outcome.warnings += [n for n in outcome.context.notes if n not in outcome.warnings]
     return outcome
 
 

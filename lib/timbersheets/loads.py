@@ -110,7 +110,8 @@ def load_duration(comb: Combination, effects: Effects, data: DataSet, used: list
     For a standard-term combination where the specified long-term (dead) effect
     P_L exceeds the specified standard-term effect P_S of that combination,
     K_D = 1.0 − 0.50 log10(P_L/P_S) ≥ 0.65 (5.3.2.3). Where the member has
-    several effects (P, M, V, w), the lowest K_D of them is used. The schedule's
+    several effects (P, M, V, w), the lowest K_D of them is used; an effect from
+    dead load alone is long-term (0.65) even in a standard-term combination. The schedule's
     K_D column overrides all of this.
     """
     if override is not None:
@@ -124,13 +125,20 @@ def load_duration(comb: Combination, effects: Effects, data: DataSet, used: list
     for effect in effects.present():
         p_l = abs(effects.get(effect, "D"))
         p_s = abs(sum(effects.get(effect, t) for t in STANDARD_TERM if comb.factors[t]))
-        if p_s > 0 and p_l > p_s:
+        if p_l > 0 and p_s == 0:
+            long_term = data.duration_factor("long")
+            used.append(long_term)
+            if long_term.value < best[0]:
+                best = (long_term.value, {}, effect)  # this effect is from dead load alone
+        elif p_s > 0 and p_l > p_s:
             values = kd_permanent(P_L=p_l, P_S=p_s)
             if values["K_D"] < best[0]:
                 best = (values["K_D"], values, effect)
     kd, values, effect = best
     if values:
         return kd, f"standard-term, long-term part P_L > P_S (5.3.2.3, on {effect})", values, effect
+    if effect:
+        return kd, f"standard-term combination, but {effect} comes from dead load alone: long-term, Table 5.1", {}, ""
     return kd, f"standard-term ({comb.principal} principal), Table 5.1", {}, ""
 
 

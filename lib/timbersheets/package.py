@@ -109,6 +109,7 @@ def package_tex(project: Project, doc: dict[str, Any], data: DataSet, outdir: Pa
         "counts": counts, "members": rows, "notes": notes,
         "unverified": len({w for m in members for w in m["data_warnings"]}),
         "unchecked": sum(1 for m in members if (m.get("review") or {}).get("status") != "checked"),
+        "checked": sum(1 for m in members if (m.get("review") or {}).get("status") == "checked"),
         "previous": escape(doc.get("previous_revision") or ""), "changes": change_rows(changes),
         "chart": chart, "caution": escape(SHORT_CAUTION), "caution_long": escape(CAUTION),
         "tool_version": f"timbersheets {__version__}", "data_hash": data.hash.split(":")[1][:12],

@@ -36,7 +36,7 @@ def check_json(c: CheckResult) -> dict[str, Any]:
     return {
         "check": c.check,
         "combination": c.combination,
-        "K_D": round(c.K_D, 3),
+        "K_D": None if c.check.startswith("deflection") else round(c.K_D, 3),
         "demand": _num(c.demand, c.unit),
         "resistance": _num(c.resistance, c.unit),
         "unit": unit,
@@ -57,7 +57,8 @@ def member_json(d: MemberDesign, extra: dict[str, Any] | None = None) -> dict[st
         "size": d.size,
         "inputs_hash": d.member.inputs_hash if d.member else None,
         "utilization": round_utilization(gov.utilization) if gov and not d.errors else None,
-        "governing": ({"check": gov.check, "combination": gov.combination, "K_D": round(gov.K_D, 3)}
+        "governing": ({"check": gov.check, "combination": gov.combination,
+                       "K_D": None if gov.check.startswith("deflection") else round(gov.K_D, 3)}
                       if gov and not d.errors else None),
         "checks": [check_json(c) for c in d.checks] if not d.errors else [],
         "data_warnings": d.data_warnings,
@@ -101,6 +102,6 @@ def write_results(outdir: Path, doc: dict[str, Any]) -> None:
         gov = m["governing"] or {}
         rows.append([m["mark"], m["type"] or "", m["material"] or "", m["size"], m["status"],
                      "" if m["utilization"] is None else f"{m['utilization']:.3f}", gov.get("check", ""),
-                     gov.get("combination", ""), "" if not gov else f"{gov['K_D']:.3f}",
+                     gov.get("combination", ""), "" if gov.get("K_D") is None else f"{gov['K_D']:.3f}",
                      len(m["data_warnings"]), " | ".join(m["errors"])])
     write_csv(outdir / "summary.csv", SUMMARY_HEADER, rows)

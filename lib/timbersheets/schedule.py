@@ -62,7 +62,7 @@ def _columns() -> tuple[Column, ...]:
         Column("Ly", "quantity", "m", "mm", minimum=0),  # 0 = braced about y (e.g. sheathing)
         Column("Lu", "quantity", "m", "mm", default=0.0, minimum=0),
         # lateral restraint beyond what Lu says (bending members): bridging or blocking at 8d, or both edges held
-        Column("restraint", "choice", choices=("blocking", "both-edges")),
+        Column("restraint", "choice", choices=("purlins", "blocking", "both-edges")),
         Column("net_area", "number", default=1.0, minimum=0, strict=True),
         Column("bearing", "quantity", "mm", "mm", minimum=0, strict=True),
     ]
@@ -383,6 +383,9 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> li
                                       ", ".join(grades)))
         elif grade:
             v["grade"] = grade
+        if v["K_H"] != 1.0:
+            errs.append(ScheduleError(file, row, "K_H", f"{v['K_H']:g}", "is a system factor for sawn lumber; "
+                                      "glulam takes K_H = 1.0", "1.0 (or blank) for glulam"))
         if v["plies"] != 1:
             errs.append(ScheduleError(file, row, "plies", str(v["plies"]), "applies to built-up sawn members only", "1 for glulam"))
     else:
@@ -407,6 +410,11 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> li
     for name in ("Lx", "Ly"):
         if v[name] is None:
             v[name] = v["length"]
+    if v["type"] in ("beam-column", "tension-bending") and "Lu" not in given:
+        v["Lu"] = v["length"]  # a column's compression edge is not held unless the row says so
+    if v["K_H"] is not None and v["K_H"] > 1.4:
+        errs.append(ScheduleError(file, row, "K_H", f"{v['K_H']:g}", "exceeds the largest system factor of O86 "
+                                  "(1.4, Case 2 for bending and shear)", "1.0 to 1.4"))
     return errs
 
 

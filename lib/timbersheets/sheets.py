@@ -110,8 +110,10 @@ class Sheet:
             from .beamsheet import member_rows
 
             rows += member_rows(m, section)
-        if m.type != "bending" and section is not None:
+        if m.type in ("tension", "compression") and section is not None:
             rows += self._axial_rows(m, section)
+        elif m.type != "bending" and section is not None:
+            rows += self._axial_rows(m, section)[:1]  # the span rows above already give the net area
         if m.note:
             rows.append(["Note", m.note])
         rows.append(["Schedule", f"row {m.row}"])
@@ -188,7 +190,8 @@ class Sheet:
                  "the frame model's, by load type." if m.type == "bending" else
                  "Positive axial force acts in the member's own sense (tension for a tension member, compression "
                  "otherwise).")
-        intro = para("Specified loads from the schedule, including importance factors, by load type (NBC "
+        intro = para("Specified loads from the schedule, including importance factors and the member's own "
+                     "weight (the tool adds none), by load type (NBC "
                      f"{escape(self.codes.get('nbc', '2020'))} Part 4). {sense}")
         return heading("Specified loads") + intro + table(Table(header, rows, "ll" + "r" * len(effects) + "l", units))
 
@@ -341,8 +344,14 @@ class Sheet:
             md = "\n\nUnverified data values used:\n" + "".join(f"- {md_escape(w)}\n" for w in warnings)
         codes = (f" Designed to CSA O86:{escape(self.codes.get('o86', '2019'))[-2:]} with loads combined per "
                  f"NBC {escape(self.codes.get('nbc', '2020'))} Part 4.")
-        return Block(f"\\begin{{cautionbox}}\n{escape(CAUTION)}{codes}\n{listing}\\end{{cautionbox}}\n",
-                     f"**Caution.** {md_escape(CAUTION)}{md}\n")
+        clauses = (" Clause numbers follow the O86-14 numbering, believed unchanged in O86:19 (memory, unverified).")
+        notes = ""
+        if self.design.warnings:
+            items = "".join(f"\\item {escape(w)}\n" for w in self.design.warnings)
+            notes = f"\\par\\smallskip Notes on this member:\n\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n"
+            md += "\n\nNotes:\n" + "".join(f"- {md_escape(w)}\n" for w in self.design.warnings)
+        return Block(f"\\begin{{cautionbox}}\n{escape(CAUTION)}{codes}{escape(clauses)}\n{notes}{listing}"
+                     "\\end{cautionbox}\n", f"**Caution.** {md_escape(CAUTION)}{md}\n")
 
     def record(self) -> dict[str, Any]:
         """The member's results.json entry, as a display bundle the runner cross-checks."""

@@ -52,6 +52,12 @@ def check_bearing(m, forces, line_loads: bool):
     """Bearing resistance at each support against the reaction, or None (no bearing given, or uplift)."""
     if m.member.bearing is None or forces.R_f <= 0:
         return None
+    if not line_loads:
+        note = ("bearing not checked: with moments and shears from a frame model the support reactions are not "
+                "known (at an interior support the reaction is the sum of the shears on both sides)")
+        if note not in m.notes:
+            m.notes.append(note)
+        return None
     case, s = forces.case, m.section
     common = dict(f_cp=m.f["f_cp"], K_D=case.K_D, K_Scp=m.K_S["K_Scp"], K_T=m.K_T, phi=m.phi["bearing"],
                   b=s.b, l_b=m.member.bearing, K_B=END_BEARING_K_B)
@@ -67,10 +73,6 @@ def check_bearing(m, forces, line_loads: bool):
         values = sawn_bearing(K_Zcp=k_zcp, **common)
         calc_, clause = sawn_bearing, SAWN_CLAUSE
         words += f"; K_Zcp = {format_number(k_zcp)} for width/depth b/d = {ratio:.2f}"
-    steps = []
-    if line_loads:
-        steps.append(Step(udl_reaction, udl_reaction(w_f=forces.w_f, L=m.length), "Factored reaction at each support"))
-    else:
-        words = "Reaction taken as the frame model's shear V_f. " + words
-    steps.append(Step(calc_, values, words))
+    steps = [Step(udl_reaction, udl_reaction(w_f=forces.w_f, L=m.length), "Factored reaction at each support"),
+             Step(calc_, values, words)]
     return result("bearing", case, forces.R_f, values["Q_r"], "N", clause, tuple(steps), "Q_f", "Q_r")

@@ -120,12 +120,16 @@ def sawn_size_factors(m) -> tuple[Datum, Datum]:
 def _restraint_rule(m, L_u: float) -> tuple[str, Datum] | None:
     """The loosest depth-to-width rule the restraint meets, or None (compute K_L)."""
     ratio = m.section.d / m.section.b
-    provided = ["none"] if L_u >= m.length else ["none", "purlins"] if L_u > 0 else ["none", "purlins", "decking"]
     extra = m.member.values.get("restraint")
     if extra == "both-edges":
-        provided = ["none", "purlins", "decking", "blocking", "both-edges"]
-    elif extra == "blocking" and L_u == 0:
-        provided.append("blocking")
+        actual = "both-edges"
+    elif L_u == 0:
+        actual = "blocking" if extra == "blocking" else "decking"
+    elif extra == "purlins" and L_u < m.length:
+        actual = "purlins"
+    else:
+        actual = None  # only the d/b ≤ 4 rule, else K_L is computed from L_u
+    provided = ["none"] + ([actual] if actual else [])
     for name, datum in m.data.lateral_restraints():
         if name in provided and ratio <= datum.value:
             m.used.append(datum)
@@ -146,6 +150,8 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool) -> tuple[
         rule = _restraint_rule(m, L_u)
         if rule is not None:
             given = ("both edges held in line (schedule: restraint = both-edges)" if rule[0] == "both-edges" else
+                     "the compression edge held in line by purlins or tie rods (schedule: restraint = purlins)"
+                     if rule[0] == "purlins" else
                      "the compression edge held continuously and bridging or blocking at 8d (schedule: restraint = "
                      "blocking)" if rule[0] == "blocking" else
                      "the compression edge held continuously (L_u = 0)" if L_u == 0 else

@@ -56,6 +56,9 @@ def tension_bending(T_f, T_r, M_f, M_r, d):
 def check_beam_column(m, case, P_f: float, P_r: float, M_f: float, M_r: float):
     """The interaction of axial compression P_f (N) and moment M_f (N·mm) under one case."""
     clause = GLULAM_BEAM_COLUMN_CLAUSE if m.glulam else BEAM_COLUMN_CLAUSE
+    if m.L_x <= 0:
+        raise DesignError(m.mark, "Lx = 0 (braced about the strong axis) leaves no Euler load about the bending axis",
+                          clause, "Give Lx, the unbraced length about x")
     euler = euler_load(E_05=m.f["E05"], K_SE=m.K_S["K_SE"], K_T=m.K_T, I_x=m.section.I_x, K_e=m.K_e, L_x=m.L_x)
     if P_f >= euler["P_E"]:
         raise DesignError(m.mark, f"P_f = {P_f / 1000:.1f} kN reaches the Euler load P_E = {euler['P_E'] / 1000:.1f} kN "

@@ -71,7 +71,7 @@ def compression_resistance(m, K_D: float) -> tuple[float, tuple[Step, ...]]:
 
     Raises DesignError when the slenderness C_c about either axis exceeds 50.
     """
-    common = dict(f_c=m.f["f_c"], K_D=K_D, K_H=m.K_H, K_Sc=m.K_S["K_Sc"], K_T=m.K_T, K_e=m.K_e,
+    common = dict(f_c=m.f["f_c"], K_D=K_D, K_H=m.K_H_for("compression"), K_Sc=m.K_S["K_Sc"], K_T=m.K_T, K_e=m.K_e,
                   E_05=m.f["E05"], K_SE=m.K_S["K_SE"], phi=m.phi["compression"], A=m.section.A)
     if m.glulam:
         volume = m.section.A * m.length * 1e-9  # mm³ → m³

@@ -40,7 +40,7 @@ def check_tension(m, case, T_f: float):
     service factors and section. Sawn: T_r = φ F_t A_n K_Zt. Glulam: the lesser
     of φ F_tn A_n (net section) and φ F_tg A_g (gross section).
     """
-    common = dict(K_D=case.K_D, K_H=m.K_H, K_St=m.K_S["K_St"], K_T=m.K_T, phi=m.phi["tension"],
+    common = dict(K_D=case.K_D, K_H=m.K_H_for("tension"), K_St=m.K_S["K_St"], K_T=m.K_T, phi=m.phi["tension"],
                   A_n=m.A_n)
     if m.glulam:
         values = glulam_tension(f_tn=m.f["f_tn"], f_tg=m.f["f_tg"], A_g=m.section.A, **common)
