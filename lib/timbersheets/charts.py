@@ -46,5 +46,18 @@ def utilization_chart(members: list[dict[str, Any]], title: str) -> bytes:
     return buffer.getvalue()
 
 
-def write_chart(path: Path, members: list[dict[str, Any]], title: str) -> None:
-    write_atomic(path, utilization_chart(members, title))
+def write_chart(path: Path, members: list[dict[str, Any]], title: str, cache: Path | None = None) -> None:
+    """Write the chart; an identical chart drawn before is taken from `cache`."""
+    import hashlib
+    import json
+
+    key = hashlib.sha256(json.dumps([title, [(m["mark"], m.get("utilization"), m["status"]) for m in members]])
+                         .encode()).hexdigest()
+    cached = cache / f"chart-{key}.png" if cache else None
+    if cached is not None and cached.exists():
+        write_atomic(path, cached.read_bytes())
+        return
+    png = utilization_chart(members, title)
+    if cached is not None:
+        write_atomic(cached, png)
+    write_atomic(path, png)

@@ -1,16 +1,19 @@
 """The combined package PDF: cover, index of members (with the utilization
 chart), the changes since the previous revision, then every sheet.
 
-Each member's sheet is included as typeset on its own (pdfpages), stamped with
-a continuous package page number, with a PDF bookmark per member. The layout is
-the Jinja template ``templates/latex/package/package.tex.j2``. Everything comes
-from the run's results document, so the package and results.json agree.
+The front matter is typeset (``templates/latex/package/package.tex.j2``) with
+its page numbers computed from the sheets' page counts; the member sheets are
+then appended as typeset on their own, each page stamped with a continuous
+package page number, with a PDF bookmark per member. Appending with pypdf
+instead of re-typesetting every sheet page keeps a rerun after one change fast.
+Everything comes from the run's results document, so package and results.json agree.
 """
 
 from __future__ import annotations
 
 import os
-import shutil
+import re
+from functools import lru_cache
 import subprocess
 import tempfile
 from pathlib import Path
@@ -43,9 +46,15 @@ def _environment():
 
 
 def page_count(pdf: Path) -> int:
+    stat = pdf.stat()
+    return _page_count(str(pdf), stat.st_mtime_ns, stat.st_size)
+
+
+@lru_cache(maxsize=4096)
+def _page_count(path: str, mtime_ns: int, size: int) -> int:
     from pypdf import PdfReader
 
-    return len(PdfReader(str(pdf)).pages)
+    return len(PdfReader(path).pages)
 
 
 def _governing(m: dict[str, Any]) -> str:
@@ -55,8 +64,10 @@ def _governing(m: dict[str, Any]) -> str:
     return escape(ACTION_WORDS.get(gov["check"], gov["check"]).split(" (")[0].lower())
 
 
-def member_rows(members: list[dict[str, Any]], outdir: Path) -> tuple[list[dict], list[str]]:
+def member_rows(members: list[dict[str, Any]], outdir: Path, first: int = 1) -> tuple[list[dict], list[str]]:
+    """Index rows; sheets start at package page `first` in member order."""
     rows, notes = [], []
+    page = first
     for i, m in enumerate(members):
         sheet = outdir / "sheets" / f"{m['mark']}.pdf"
         note = (m.get("inputs") or {}).get("note") or m.get("type") or ""
@@ -65,7 +76,7 @@ def member_rows(members: list[dict[str, Any]], outdir: Path) -> tuple[list[dict]
         if m.get("changed_since"):
             flags.append(f"changed since {m['changed_since']}")
         rows.append({
-            "mark": escape(m["mark"]), "anchor": f"m{i}",
+            "mark": escape(m["mark"]), "plain": m["mark"], "anchor": f"m{i}",
             "description": escape(note[:110] + ("..." if len(note) > 110 else "")),
             "size": escape(m.get("size") or ""),
             "governing": _governing(m),
@@ -75,7 +86,9 @@ def member_rows(members: list[dict[str, Any]], outdir: Path) -> tuple[list[dict]
             "flag": escape("; ".join(flags)),
             "sheet": sheet.resolve().as_posix() if sheet.exists() else "",
             "pages": page_count(sheet) if sheet.exists() else 0,
+            "start": page,
         })
+        page += rows[-1]["pages"]
         if m["errors"]:
             notes.append(f"{escape(m['mark'])}: {escape(m['errors'][0])}")
     return rows, notes
@@ -97,9 +110,10 @@ def change_rows(changes: list[MemberChange]) -> list[dict[str, str]]:
 
 
 def package_tex(project: Project, doc: dict[str, Any], data: DataSet, outdir: Path,
-                changes: list[MemberChange], chart: str) -> str:
+                changes: list[MemberChange], chart: str, front_pages: int = 2) -> tuple[str, list[dict]]:
+    """The front matter's LaTeX, given how many pages it takes, and the index rows."""
     members = doc["members"]
-    rows, notes = member_rows(members, outdir)
+    rows, notes = member_rows(members, outdir, first=front_pages + 1)
     counts = {"total": len(members), "pass": 0, "fail": 0, "error": 0}
     for m in members:
         counts[m["status"]] += 1
@@ -113,26 +127,83 @@ def package_tex(project: Project, doc: dict[str, Any], data: DataSet, outdir: Pa
         "previous": escape(doc.get("previous_revision") or ""), "changes": change_rows(changes),
         "chart": chart, "caution": escape(SHORT_CAUTION), "caution_long": escape(CAUTION),
         "tool_version": f"timbersheets {__version__}", "data_hash": data.hash.split(":")[1][:12],
+        "total_pages": front_pages + sum(r["pages"] for r in rows),
     }
-    return _environment().get_template("package.tex.j2").render(**context)
+    return _environment().get_template("package.tex.j2").render(**context), rows
+
+
+def _typeset(tex: str, work: Path, name: str) -> tuple[Path, str]:
+    (work / f"{name}.tex").write_text(tex, encoding="utf-8")
+    done = subprocess.run([*XELATEX, f"{name}.tex"], cwd=work, capture_output=True, text=True, errors="replace")
+    if done.returncode != 0:
+        tail = "\n".join(ln for ln in done.stdout.splitlines() if ln.startswith("!"))[-1500:]
+        raise ConversionError("package", "xelatex could not typeset the package", tail)
+    aux = work / f"{name}.aux"
+    return work / f"{name}.pdf", aux.read_text(encoding="utf-8", errors="replace") if aux.exists() else ""
+
+
+def _stamps(project: Project, first: int, total: int, work: Path) -> Path:
+    """One page per sheet page, blank but for 'package page k of N' where the sheets leave room."""
+    stamp = (r"{\footnotesize %s \quad rev %s \quad package page %d of %d}")
+    pages = "".join(
+        r"\begin{picture}(0,0)\put(548,-776){\makebox(0,0)[r]{" + stamp % (escape(project.fields["number"]),
+        escape(project.revision), k, total) + r"}}\end{picture}\newpage" + "\n" for k in range(first, total + 1))
+    tex = ("\\documentclass[10pt]{article}\n\\usepackage[letterpaper,margin=0pt]{geometry}\n\\usepackage{fontspec}\n"
+           "\\pagestyle{empty}\\setlength{\\parindent}{0pt}\\setlength{\\unitlength}{1bp}\n"
+           "\\begin{document}\n" + pages + "\\end{document}\n")
+    return _typeset(tex, work, "stamps")[0]
+
+
+FRONT_HINT = ".front-pages"
 
 
 def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: Path,
-                  changes: list[MemberChange]) -> Path:
-    """Typeset package.pdf in `outdir` (two xelatex passes), written atomically."""
+                  changes: list[MemberChange], hint: Path | None = None) -> Path:
+    """package.pdf in `outdir`: front matter typeset, sheets appended and stamped; written atomically.
+
+    `hint` is the previous revision folder: its front-matter length is the first
+    guess, which saves a second typesetting of the front matter on a rerun.
+    """
+    from pypdf import PdfReader, PdfWriter
+
     target = outdir / "package.pdf"
     chart = outdir / "summary.png"
-    tex = package_tex(project, doc, data, outdir, changes, chart.resolve().as_posix() if chart.exists() else "")
+    chart_path = chart.resolve().as_posix() if chart.exists() else ""
     with tempfile.TemporaryDirectory(prefix="ts-pkg-") as tmp:
         work = Path(tmp)
-        (work / "package.tex").write_text(tex, encoding="utf-8")
-        for _ in range(2):
-            done = subprocess.run([*XELATEX, "package.tex"], cwd=work, capture_output=True, text=True,
-                                  errors="replace")
-            if done.returncode != 0:
-                tail = "\n".join(ln for ln in done.stdout.splitlines() if ln.startswith("!"))[-1500:]
-                raise ConversionError("package", "xelatex could not typeset the package", tail)
+        front_pages = 2
+        if hint is not None and (hint / FRONT_HINT).exists():
+            front_pages = int((hint / FRONT_HINT).read_text() or 2)
+        for _ in range(4):  # the front matter's length sets the page numbers it prints
+            tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages)
+            front, aux = _typeset(tex, work, "package")
+            actual = len(PdfReader(str(front)).pages)
+            if actual == front_pages:
+                break
+            front_pages = actual
+        total = front_pages + sum(r["pages"] for r in rows)
+        writer = PdfWriter()
+        writer.append(str(front))
+        labels = {k: int(v) - 1 for k, v in re.findall(r"\\newlabel\{ts-(\w+)\}\{\{[^}]*\}\{(\d+)\}", aux)}
+        writer.add_outline_item("Cover", 0)
+        writer.add_outline_item("Index of members", labels.get("index", 1))
+        if "changes" in labels:
+            writer.add_outline_item(f"Changes since rev {doc.get('previous_revision')}", labels["changes"])
+        sheets = [r for r in rows if r["sheet"]]
+        parent = writer.add_outline_item("Member sheets", front_pages) if sheets else None
+        for r in sheets:
+            writer.append(r["sheet"])
+            writer.add_outline_item(f"{r['plain']} — {r['verdict_word']}", r["start"] - 1, parent=parent)
+        if sheets:
+            overlay = PdfReader(str(_stamps(project, front_pages + 1, total, work)))
+            for k, page in enumerate(writer.pages[front_pages:]):
+                page.merge_page(overlay.pages[k])
+        writer.add_metadata({"/Title": f"{project.fields['title']} - calculation package rev {project.revision}",
+                             "/Creator": f"timbersheets {__version__}"})
+        (outdir / FRONT_HINT).write_text(str(front_pages))
         staged = target.with_name(".package.pdf.part")
-        shutil.copyfile(work / "package.pdf", staged)
+        with open(staged, "wb") as handle:
+            writer.write(handle)
         os.replace(staged, target)
     return target
+

@@ -28,7 +28,7 @@ from .results import member_json, results_doc, write_results
 from .review import latest, read_reviews, status, titleblock_text
 from .revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
 from .schedule import load_schedule
-from .sheetjobs import SheetOutcome, SheetTask, run_sheet
+from .sheetjobs import SheetOutcome, SheetTask, from_cache, run_sheet
 from .sheets import CAUTION
 from .tex import escape
 
@@ -146,6 +146,15 @@ def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool) -> dict
         if bar:
             bar.step(task.mark)
 
+    pending = []
+    for task in tasks:  # unchanged members come straight from the cache, without a worker
+        cached = from_cache(task)
+        if cached is None:
+            pending.append(task)
+        else:
+            done(task, cached)
+    tasks = pending
+
     if jobs == 1 or len(tasks) <= 1:
         for task in tasks:
             done(task, _safe_run(task))
@@ -242,13 +251,16 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     prev_label = previous_revision(jobdir, project.revision)
     previous = load_results(jobdir / f"rev-{prev_label}") if prev_label else None
     extra = member_extras(project, designs, previous)
+    phases = {"design": time.monotonic() - started}
     stage, final = stage_dir(project, opts)
     try:
         report = RunReport(project, final, designs, schedule.warnings)
         chosen = designs if not opts.only else [d for d in designs if d.mark in set(opts.only)]
         tasks = sheet_tasks(project, chosen, data, stage, opts, extra)
         if tasks and opts.sheets:
+            mark = time.monotonic()
             report.sheets = run_sheets(tasks, opts.jobs, opts.progress)
+            phases["sheets"] = time.monotonic() - mark
             for d in designs:
                 if d.mark in report.sheets:
                     cross_check(d, report.sheets[d.mark])
@@ -261,14 +273,16 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         from .charts import write_chart
 
         write_chart(stage / "summary.png", doc["members"],
-                    f"{project.fields['title']} rev {project.revision}: governing utilization")
+                    f"{project.fields['title']} rev {project.revision}: governing utilization", jobdir / ".cache")
         if opts.sheets and opts.fmt == "pdf":
             from .package import build_package
             from .pipeline import ConversionError
 
             try:
+                mark = time.monotonic()
                 report.package = final / "package.pdf"
-                build_package(project, doc, data, stage, changes)
+                build_package(project, doc, data, stage, changes, hint=final)
+                phases["package"] = time.monotonic() - mark
             except ConversionError as exc:
                 report.package, report.package_error = None, str(exc)
                 report.log.append(f"package.pdf was not written: {exc}")
@@ -278,7 +292,8 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         report.log.insert(0, f"{project.name} rev {project.revision}: {len(designs)} members, "
                              f"{counts['pass']} pass, {counts['fail']} fail, {counts['error']} error; "
                              f"{len(report.executed)} executed, {len(report.converted)} converted "
-                             f"({time.monotonic() - started:.1f} s)")
+                             f"({time.monotonic() - started:.1f} s: "
+                             + ", ".join(f"{k} {v:.1f} s" for k, v in phases.items()) + ")")
         report.log += schedule.warnings
         for d in designs:
             report.log += [f"{d.mark}: {e}" for e in d.errors]

@@ -77,6 +77,23 @@ def read_record(notebook: Path) -> tuple[dict[str, Any] | None, str | None]:
     return record, error
 
 
+def from_cache(task: SheetTask) -> SheetOutcome | None:
+    """The outcome straight from the cache when neither step needs doing, else None."""
+    if task.force:
+        return None
+    key = task.exec_key
+    cached_nb = task.cache / f"{key}.ipynb"
+    cached_sheet = task.cache / f"{task.sheet_key(key)}.{task.fmt}" if task.sheet is not None else None
+    if not cached_nb.exists() or (cached_sheet is not None and not cached_sheet.exists()):
+        return None
+    outcome = SheetOutcome(task.mark)
+    copy_atomic(cached_nb, task.notebook)
+    outcome.record, outcome.error = read_record(task.notebook)
+    if cached_sheet is not None:
+        copy_atomic(cached_sheet, task.sheet)
+    return outcome
+
+
 def run_sheet(task: SheetTask) -> SheetOutcome:
     """Execute (or reuse) the member's notebook, then convert (or reuse) its sheet."""
     outcome = SheetOutcome(task.mark)
