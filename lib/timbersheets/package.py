@@ -64,8 +64,13 @@ def _governing(m: dict[str, Any]) -> str:
     return escape(ACTION_WORDS.get(gov["check"], gov["check"]).split(" (")[0].lower())
 
 
-def member_rows(members: list[dict[str, Any]], outdir: Path, first: int = 1) -> tuple[list[dict], list[str]]:
-    """Index rows; sheets start at package page `first` in member order."""
+def member_rows(members: list[dict[str, Any]], outdir: Path, first: int = 1,
+                pages: dict[str, int] | None = None) -> tuple[list[dict], list[str]]:
+    """Index rows; sheets start at package page `first` in member order.
+
+    `pages` holds the page counts xelatex reported for the sheets (read from
+    the PDFs where it is missing)."""
+    pages = pages or {}
     rows, notes = [], []
     page = first
     for i, m in enumerate(members):
@@ -85,7 +90,7 @@ def member_rows(members: list[dict[str, Any]], outdir: Path, first: int = 1) -> 
             "checked": escape(titleblock_text(review)),
             "flag": escape("; ".join(flags)),
             "sheet": sheet.resolve().as_posix() if sheet.exists() else "",
-            "pages": page_count(sheet) if sheet.exists() else 0,
+            "pages": (pages.get(m["mark"]) or page_count(sheet)) if sheet.exists() else 0,
             "start": page,
         })
         page += rows[-1]["pages"]
@@ -110,10 +115,11 @@ def change_rows(changes: list[MemberChange]) -> list[dict[str, str]]:
 
 
 def package_tex(project: Project, doc: dict[str, Any], data: DataSet, outdir: Path,
-                changes: list[MemberChange], chart: str, front_pages: int = 2) -> tuple[str, list[dict]]:
+                changes: list[MemberChange], chart: str, front_pages: int = 2,
+                pages: dict[str, int] | None = None) -> tuple[str, list[dict]]:
     """The front matter's LaTeX, given how many pages it takes, and the index rows."""
     members = doc["members"]
-    rows, notes = member_rows(members, outdir, first=front_pages + 1)
+    rows, notes = member_rows(members, outdir, front_pages + 1, pages)
     counts = {"total": len(members), "pass": 0, "fail": 0, "error": 0}
     for m in members:
         counts[m["status"]] += 1
@@ -158,7 +164,8 @@ FRONT_HINT = ".front-pages"
 
 
 def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: Path,
-                  changes: list[MemberChange], hint: Path | None = None) -> Path:
+                  changes: list[MemberChange], hint: Path | None = None,
+                  pages: dict[str, int] | None = None) -> Path:
     """package.pdf in `outdir`: front matter typeset, sheets appended and stamped; written atomically.
 
     `hint` is the previous revision folder: its front-matter length is the first
@@ -175,7 +182,7 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
         if hint is not None and (hint / FRONT_HINT).exists():
             front_pages = int((hint / FRONT_HINT).read_text() or 2)
         for _ in range(4):  # the front matter's length sets the page numbers it prints
-            tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages)
+            tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
             front, aux = _typeset(tex, work, "package")
             actual = len(PdfReader(str(front)).pages)
             if actual == front_pages:

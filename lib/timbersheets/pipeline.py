@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import hashlib
 import os
+import re
 import shutil
 import subprocess
 import tempfile
@@ -185,8 +186,8 @@ def to_latex(notebook: Path, titleblock: dict[str, str]) -> tuple[str, dict[str,
     return body, dict(resources.get("outputs", {}))
 
 
-def compile_pdf(tex: str, files: dict[str, bytes], pdf: Path, mark: str, passes: int = 2) -> None:
-    """xelatex `tex` (no shell escape) and move the PDF into place atomically."""
+def compile_pdf(tex: str, files: dict[str, bytes], pdf: Path, mark: str, passes: int = 2) -> int:
+    """xelatex `tex` (no shell escape), move the PDF into place atomically; returns its page count."""
     with tempfile.TemporaryDirectory(prefix="ts-tex-") as tmp:
         work = Path(tmp)
         (work / "sheet.tex").write_text(tex, encoding="utf-8")
@@ -202,11 +203,14 @@ def compile_pdf(tex: str, files: dict[str, bytes], pdf: Path, mark: str, passes:
         staged = pdf.with_name(f".{pdf.name}.part")
         shutil.copyfile(work / "sheet.pdf", staged)
         os.replace(staged, pdf)
+        written = re.search(r"Output written on sheet\.pdf \((\d+) pages?", done.stdout)
+        return int(written.group(1)) if written else 0
 
 
-def notebook_to_pdf(notebook: Path, pdf: Path, titleblock: dict[str, str], mark: str) -> None:
+def notebook_to_pdf(notebook: Path, pdf: Path, titleblock: dict[str, str], mark: str) -> int:
+    """Convert a member's executed notebook to its PDF sheet; returns the page count."""
     tex, files = to_latex(notebook, titleblock)
-    compile_pdf(tex, files, pdf, mark)
+    return compile_pdf(tex, files, pdf, mark)
 
 
 def to_html(notebook: Path, html: Path, titleblock: dict[str, str]) -> None:

@@ -281,7 +281,8 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
             try:
                 mark = time.monotonic()
                 report.package = final / "package.pdf"
-                build_package(project, doc, data, stage, changes, hint=final)
+                build_package(project, doc, data, stage, changes, hint=final,
+                              pages={m: o.pages for m, o in report.sheets.items() if o.pages})
                 phases["package"] = time.monotonic() - mark
             except ConversionError as exc:
                 report.package, report.package_error = None, str(exc)

@@ -53,6 +53,7 @@ class SheetOutcome:
     executed: bool = False
     converted: bool = False
     error: str | None = None  # notebook error (the notebook is kept, error marked)
+    pages: int = 0  # pages of the PDF sheet (0: not known)
     record: dict[str, Any] | None = field(default=None, repr=False)
 
 
@@ -91,7 +92,17 @@ def from_cache(task: SheetTask) -> SheetOutcome | None:
     outcome.record, outcome.error = read_record(task.notebook)
     if cached_sheet is not None:
         copy_atomic(cached_sheet, task.sheet)
+        outcome.pages = _read_pages(cached_sheet)
     return outcome
+
+
+def _pages_file(sheet: Path) -> Path:
+    return sheet.with_name(sheet.name + ".pages")
+
+
+def _read_pages(sheet: Path) -> int:
+    path = _pages_file(sheet)
+    return int(path.read_text()) if path.exists() else 0
 
 
 def run_sheet(task: SheetTask) -> SheetOutcome:
@@ -114,10 +125,12 @@ def run_sheet(task: SheetTask) -> SheetOutcome:
             if task.fmt == "html":
                 to_html(task.notebook, cached_sheet, task.titleblock)
             else:
-                notebook_to_pdf(task.notebook, cached_sheet, task.titleblock, task.mark)
+                _pages_file(cached_sheet).write_text(
+                    str(notebook_to_pdf(task.notebook, cached_sheet, task.titleblock, task.mark)))
             outcome.converted = True
         except ConversionError as exc:
             outcome.error = (outcome.error + "; " if outcome.error else "") + str(exc)
             return outcome
     copy_atomic(cached_sheet, task.sheet)
+    outcome.pages = _read_pages(cached_sheet)
     return outcome
