@@ -52,9 +52,10 @@ def page_count(pdf: Path) -> int:
 
 @lru_cache(maxsize=4096)
 def _page_count(path: str, mtime_ns: int, size: int) -> int:
-    from pypdf import PdfReader
+    import pikepdf
 
-    return len(PdfReader(path).pages)
+    with pikepdf.open(path) as pdf:
+        return len(pdf.pages)
 
 
 def _governing(m: dict[str, Any]) -> str:
@@ -171,7 +172,7 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
     `hint` is the previous revision folder: its front-matter length is the first
     guess, which saves a second typesetting of the front matter on a rerun.
     """
-    from pypdf import PdfReader, PdfWriter
+    import pikepdf
 
     target = outdir / "package.pdf"
     chart = outdir / "summary.png"
@@ -184,33 +185,41 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
         for _ in range(4):  # the front matter's length sets the page numbers it prints
             tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
             front, aux = _typeset(tex, work, "package")
-            actual = len(PdfReader(str(front)).pages)
+            with pikepdf.open(front) as typeset:
+                actual = len(typeset.pages)
             if actual == front_pages:
                 break
             front_pages = actual
         total = front_pages + sum(r["pages"] for r in rows)
-        writer = PdfWriter()
-        writer.append(str(front))
         labels = {k: int(v) - 1 for k, v in re.findall(r"\\newlabel\{ts-(\w+)\}\{\{[^}]*\}\{(\d+)\}", aux)}
-        writer.add_outline_item("Cover", 0)
-        writer.add_outline_item("Index of members", labels.get("index", 1))
-        if "changes" in labels:
-            writer.add_outline_item(f"Changes since rev {doc.get('previous_revision')}", labels["changes"])
         sheets = [r for r in rows if r["sheet"]]
-        parent = writer.add_outline_item("Member sheets", front_pages) if sheets else None
-        for r in sheets:
-            writer.append(r["sheet"])
-            writer.add_outline_item(f"{r['plain']} — {r['verdict_word']}", r["start"] - 1, parent=parent)
-        if sheets:
-            overlay = PdfReader(str(_stamps(project, front_pages + 1, total, work)))
-            for k, page in enumerate(writer.pages[front_pages:]):
-                page.merge_page(overlay.pages[k])
-        writer.add_metadata({"/Title": f"{project.fields['title']} - calculation package rev {project.revision}",
-                             "/Creator": f"timbersheets {__version__}"})
-        (outdir / FRONT_HINT).write_text(str(front_pages))
-        staged = target.with_name(".package.pdf.part")
-        with open(staged, "wb") as handle:
-            writer.write(handle)
+        with pikepdf.open(front) as package:
+            sources = [pikepdf.open(r["sheet"]) for r in sheets]  # kept open until the package is saved
+            for src in sources:
+                package.pages.extend(src.pages)
+            if sheets:
+                overlay = pikepdf.open(_stamps(project, front_pages + 1, total, work))
+                sources.append(overlay)
+                for k, page in enumerate(package.pages[front_pages:]):
+                    page.add_overlay(overlay.pages[k])
+            with package.open_outline() as outline:
+                outline.root.append(pikepdf.OutlineItem("Cover", 0))
+                outline.root.append(pikepdf.OutlineItem("Index of members", labels.get("index", 1)))
+                if "changes" in labels:
+                    outline.root.append(pikepdf.OutlineItem(f"Changes since rev {doc.get('previous_revision')}",
+                                                            labels["changes"]))
+                if sheets:
+                    parent = pikepdf.OutlineItem("Member sheets", front_pages)
+                    parent.children.extend(pikepdf.OutlineItem(f"{r['plain']} — {r['verdict_word']}", r["start"] - 1)
+                                           for r in sheets)
+                    outline.root.append(parent)
+            package.docinfo["/Title"] = f"{project.fields['title']} - calculation package rev {project.revision}"
+            package.docinfo["/Creator"] = f"timbersheets {__version__}"
+            (outdir / FRONT_HINT).write_text(str(front_pages))
+            staged = target.with_name(".package.pdf.part")
+            package.save(staged)
+            for src in sources:
+                src.close()
         os.replace(staged, target)
     return target
 
