@@ -46,6 +46,7 @@ def test_sawn_stud_under_axial_load_and_wind_hand_calculation(tmp_path, data):
     assert c.factors["P_E"] == pytest.approx(61.9, rel=0.002)
     assert c.factors["A_m"] == pytest.approx(1.082, abs=0.001)
     assert c.demand == pytest.approx(0.356, abs=0.001) and c.resistance == 1.0 and c.unit == ""
+    assert any("deflection under the W line load is not checked" in w for w in d.warnings)
 
 
 def test_glulam_column_with_eccentric_load_hand_calculation(tmp_path, data):
