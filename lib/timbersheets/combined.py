@@ -21,13 +21,13 @@ from .loads import LoadCase
 EPS = 1e-9
 
 
-def _reversal(ctx, cases: list[LoadCase], sense: str) -> None:
+def refuse_reversal(ctx, cases: list[LoadCase], sense: str) -> None:
+    """A member designed for `sense` (tension or compression) must not reverse under any combination."""
     worst = min(cases, key=lambda c: c.factored["P"], default=None)
     if worst is not None and worst.factored["P"] < -EPS:
         other = "compression" if sense == "tension" else "tension"
         raise DesignError(ctx.mark, f"is in {other} ({-worst.factored['P'] / 1000:.1f} kN) under {worst.label}", "",
-                          f"The axial force of a {sense} member with bending must stay in {sense}; "
-                          "design the reversal as its own member")
+                          f"A {sense} member must stay in {sense}; design the reversal as its own member")
 
 
 def _deflections(ctx) -> list[CheckResult]:
@@ -46,7 +46,7 @@ def design_combined(ctx, cases: list[LoadCase], sense: str) -> list[CheckResult]
     if sense == "compression" and ctx.section.plies > 1:
         raise DesignError(ctx.mark, "built-up (multi-ply) beam-columns need the rules for built-up columns, which "
                           "this version does not implement", "O86:19 6.5.6.4", "Design it as a solid section")
-    _reversal(ctx, cases, sense)
+    refuse_reversal(ctx, cases, sense)
     mode = loading_mode(ctx.member)
     line = mode == "line"
     groups: dict[str, list[CheckResult]] = {sense: [], "bending": [], "shear": [], "interaction": []}

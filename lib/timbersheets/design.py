@@ -17,7 +17,7 @@ from .checks.compression import check_compression
 from .checks.deflection import check_deflection
 from .checks.shear import check_shear
 from .checks.tension import check_tension
-from .combined import design_beam_column, design_tension_bending
+from .combined import design_beam_column, design_tension_bending, refuse_reversal
 from .data import DataSet, Datum, Recorded
 from .errors import DesignError, TimbersheetsError
 from .loads import EFFECTS, LOAD_TYPES, Effects, LoadCase, apply_combinations
@@ -126,11 +126,7 @@ def _axial(sense: str) -> Callable[[Context, list[LoadCase]], list[CheckResult]]
             raise DesignError(ctx.mark, "built-up (multi-ply) columns need the rules for nailed or bolted "
                               "built-up columns, which this version does not implement", "O86:19 6.5.6.4",
                               "Design it as a solid section or by hand")
-        worst = min(cases, key=lambda c: c.factored["P"], default=None)
-        if worst is not None and worst.factored["P"] < -EPS:
-            other = "compression" if sense == "tension" else "tension"
-            raise DesignError(ctx.mark, f"is in {other} ({-worst.factored['P'] / 1000:.1f} kN) under {worst.label}",
-                              "", f"A {sense} member must stay in {sense}; design the reversal as its own member")
+        refuse_reversal(ctx, cases, sense)
         out = [check(ctx, case, case.factored["P"]) for case in cases if case.factored["P"] > EPS]
         if not out:
             raise DesignError(ctx.mark, "carries no axial force", "", "Give the axial loads P_D … P_E")
