@@ -13,6 +13,7 @@ from pathlib import Path
 
 from . import __version__
 from .errors import TimbersheetsError
+from .review import VERDICTS
 
 EPILOG = "Exit status: 0 all members pass; 1 a member fails or has an error; 2 the job is unusable."
 
@@ -76,7 +77,7 @@ def _parser() -> argparse.ArgumentParser:
     which.add_argument("--all", action="store_true", help="every member of the current revision")
     which.add_argument("--status", action="store_true", help="list what still needs checking")
     review.add_argument("--by", metavar="INITIALS", help="the checker's initials or name")
-    review.add_argument("--verdict", choices=("ok", "revise"), help="ok, or revise (needs changes)")
+    review.add_argument("--verdict", choices=VERDICTS, help="ok, or revise (needs changes)")
     review.add_argument("--comment", default="", help="a note for the designer")
     review.add_argument("--out", type=Path, help="the folder holding rev-<R>/ (as given to run --out)")
     return p

@@ -194,16 +194,6 @@ class DataSet:
     def glulam_factor(self, name: str) -> Datum:
         return self._find("glulam_factors.csv", f"glulam {name}", name=name)
 
-    def sawn_grades(self) -> dict[tuple[str, str], set[str]]:
-        """{(species, category): {grades}} from the built-in and firm tables."""
-        out: dict[tuple[str, str], set[str]] = {}
-        for row in self.files["sawn_strengths.csv"].rows:
-            out.setdefault((row["species"], row["category"]), set()).add(row["grade"])
-        for row in self.firm.rows if self.firm else ():
-            if row.get("material", "sawn") == "sawn":
-                out.setdefault((row["species"], row["category"]), set()).add(row["grade"])
-        return out
-
     def glulam_grades(self) -> dict[str, set[str]]:
         out: dict[str, set[str]] = {}
         for row in self.files["glulam_strengths.csv"].rows:
@@ -244,11 +234,6 @@ class DataSet:
                 label = f"{factor} {thickness:g} mm thick, {larger:g} mm"
                 return self._datum(file, row, label)
         raise DataError(file.name, f"no {factor} row for {thickness:g} mm thick, {larger:g} mm wide")
-
-    def bearing_table(self) -> list[tuple[float, Datum]]:
-        file = self.files["bearing_factors.csv"]
-        out = [(float(r["bearing_length"]), self._datum(file, r, f"K_B {r['bearing_length']} mm")) for r in file.rows]
-        return sorted(out, key=lambda item: item[0])
 
     # -- bending members -------------------------------------------------------
     def lateral_restraints(self) -> list[tuple[str, Datum]]:

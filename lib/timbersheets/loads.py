@@ -19,7 +19,6 @@ EFFECT_UNITS = {"P": "N", "M": "N*mm", "V": "N", "w": "N/mm"}
 #: Duration class of each load type (CSA O86 5.3.2; Table 5.1 examples).
 DURATION_CLASS = {"D": "long", "L": "standard", "S": "standard", "W": "short", "E": "short"}
 STANDARD_TERM = ("L", "S")
-KD_FLOOR = 0.65
 
 
 @dataclass(frozen=True)

@@ -57,11 +57,6 @@ class Section:
         return self.b * self.d**3 / 12.0
 
     @property
-    def I_y(self) -> float:
-        """Second moment of area about the weak axis, mm⁴ (plies acting together)."""
-        return self.d * self.b**3 / 12.0
-
-    @property
     def label(self) -> str:
         core = f"{self.ply_b:g}x{self.d:g}"
         return f"{self.plies}-{core}" if self.plies > 1 else core

@@ -75,13 +75,13 @@ def compression_resistance(m, K_D: float) -> tuple[float, tuple[Step, ...]]:
                   E_05=m.f["E05"], K_SE=m.K_S["K_SE"], phi=m.phi["compression"], A=m.section.A)
     if m.glulam:
         volume = m.section.A * m.length * 1e-9  # mm³ → m³
-        axes = ((glulam_compression_x, dict(L_x=m.L_x, d=m.section.d, Z=volume), "C_cx", "P_rx"),
-                (glulam_compression_y, dict(L_y=m.L_y, b=m.section.b, Z=volume), "C_cy", "P_ry"))
+        axes = ((glulam_compression_x, dict(L_x=m.L_x, d=m.section.d, Z=volume), "C_cx"),
+                (glulam_compression_y, dict(L_y=m.L_y, b=m.section.b, Z=volume), "C_cy"))
     else:
-        axes = ((sawn_compression_x, dict(L_x=m.L_x, d=m.section.d), "C_cx", "P_rx"),
-                (sawn_compression_y, dict(L_y=m.L_y, b=m.section.b), "C_cy", "P_ry"))
+        axes = ((sawn_compression_x, dict(L_x=m.L_x, d=m.section.d), "C_cx"),
+                (sawn_compression_y, dict(L_y=m.L_y, b=m.section.b), "C_cy"))
     steps = []
-    for (calc_, geometry, slender, resist), axis in zip(axes, ("x", "y")):
+    for (calc_, geometry, slender), axis in zip(axes, ("x", "y")):
         if min(v for k, v in geometry.items() if k.startswith("L_")) <= 0:
             continue  # braced about this axis over its whole length: no buckling about it
         values = calc_(**geometry, **common)
