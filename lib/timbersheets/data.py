@@ -305,10 +305,19 @@ class DataSet:
     # -- recording -------------------------------------------------------------
     @staticmethod
     def warnings_for(used: list[Datum]) -> list[str]:
+        """One line per unverified value used; the load combinations together on one line."""
         seen: dict[str, None] = {}
+        combos: dict[str, Datum] = {}
         for d in used:
-            if not d.verified:
+            if d.verified:
+                continue
+            if d.label.startswith("NBC combination "):
+                combos.setdefault(d.label.split(" ", 2)[2], d)
+            else:
                 seen[d.warning] = None
+        if combos:
+            first = next(iter(combos.values()))
+            seen[f"NBC combinations {', '.join(combos)}: memory, unverified ({first.table}; {first.file})"] = None
         return list(seen)
 
 
