@@ -104,3 +104,18 @@ def test_what_if_matches_a_hand_calculation(tmp_path, capsys):
     assert "nothing is written" in printed
     assert not (tmp_path / "outputs").exists() and not (job / "outputs").exists()
     assert code == 1  # the demo's deliberately undersized post still fails
+
+
+def test_inserting_a_row_above_leaves_checks_and_revision_marks_alone(tmp_path):
+    # Common practice: a check belongs to the member's inputs, not to where its row sits.
+    job = write_job(tmp_path / "job", [member_row("K-1"), member_row("K-2", P_D="6")])
+    out = tmp_path / "out"
+    run_job(job, RunOptions(out=out, sheets=False))
+    assert main(["review", str(job), "--all", "--by", "RD", "--verdict", "ok", "--out", str(out)]) == 0
+    write_job(tmp_path / "job", [member_row("K-0", P_D="2"), member_row("K-1"), member_row("K-2", P_D="6")],
+              revision="B")
+    run_job(job, RunOptions(out=out, sheets=False))
+    after = results(out / "rev-B")
+    assert after["K-1"]["row"] == 3 and after["K-1"]["review"]["status"] == "checked"
+    assert after["K-1"]["changed_since"] is None and after["K-2"]["changed_since"] is None
+    assert after["K-0"]["changed_since"] == "A"

@@ -39,7 +39,14 @@ def templates_dir() -> Path:
 
 
 def file_hash(path: Path) -> str:
-    return hashlib.sha256(path.read_bytes()).hexdigest()
+    """SHA-256 of a file, read once per version of it (templates are hashed for every member)."""
+    stat = path.stat()
+    return _file_hash(str(path), stat.st_mtime_ns, stat.st_size)
+
+
+@lru_cache(maxsize=64)
+def _file_hash(path: str, mtime_ns: int, size: int) -> str:
+    return hashlib.sha256(Path(path).read_bytes()).hexdigest()
 
 
 @lru_cache(maxsize=1)

@@ -29,7 +29,6 @@ from .review import latest, read_reviews, status, titleblock_text
 from .revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
 from .schedule import load_schedule
 from .sheetjobs import SheetOutcome, SheetTask, from_cache, run_sheet
-from .sheets import CAUTION
 from .tex import escape
 
 EXIT_PASS, EXIT_MEMBERS, EXIT_JOB = 0, 1, 2
@@ -305,4 +304,4 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     return report
 
 
-__all__ = ["RunOptions", "RunReport", "run_job", "CAUTION"]
+__all__ = ["RunOptions", "RunReport", "run_job"]

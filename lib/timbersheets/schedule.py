@@ -150,7 +150,9 @@ class Member:
 
     @property
     def inputs_hash(self) -> str:
-        text = json.dumps(self.params(), sort_keys=True, separators=(",", ":"))
+        """What a check is tied to: the member's inputs, not where its row sits in the schedule."""
+        params = {k: v for k, v in self.params().items() if k != "row"}
+        text = json.dumps(params, sort_keys=True, separators=(",", ":"))
         return "sha256:" + hashlib.sha256(text.encode()).hexdigest()
 
 

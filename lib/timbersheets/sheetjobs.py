@@ -13,6 +13,7 @@ import json
 import os
 import shutil
 from dataclasses import dataclass, field
+from functools import cached_property
 from pathlib import Path
 from typing import Any
 
@@ -35,7 +36,7 @@ class SheetTask:
     force: bool = False
     cwd: Path = Path(".")
 
-    @property
+    @cached_property
     def exec_key(self) -> str:
         blob = json.dumps({"p": self.parameters, "t": file_hash(self.template), "lib": library_fingerprint(),
                            "data": self.data_hash}, sort_keys=True)

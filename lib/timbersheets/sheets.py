@@ -13,7 +13,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
-from .calc import format_number, format_value, unit_latex
+from .calc import format_number, format_value, unit_latex, unit_text
 from .checks import CheckResult
 from .data import DataSet
 from .design import MemberDesign, design_member
@@ -382,15 +382,7 @@ def basis_cell(basis: str) -> Cell:
 
 
 def unit_text_of(effect: str) -> str:
-    from .calc import unit_text
-
     return unit_text(to_display(1.0, EFFECT_UNITS[effect])[1])
-
-
-def unit_text(unit: str) -> str:
-    from .calc import unit_text as text
-
-    return text(unit)
 
 
 def num(value: float, unit: str) -> Cell:
