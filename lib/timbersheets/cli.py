@@ -158,7 +158,8 @@ def cmd_size(args: argparse.Namespace) -> int:
     import time
 
     from .data import DataSet
-    from .design import member_types
+    from .design import design_function
+    from .membertypes import member_type
     from .project import load_project
     from .schedule import load_schedule
     from .sizing import size
@@ -179,7 +180,7 @@ def cmd_size(args: argparse.Namespace) -> int:
     for mark in marks:
         member = members[mark]
         started = time.perf_counter()
-        result = size(member, data, member_types()[member.type].design)
+        result = size(member, data, design_function(member_type(member.type)))
         ms = (time.perf_counter() - started) * 1000
         where = f" ({result.constraints})" if result.constraints else ""
         print(f"{mark}: {member.type} {member.material} {member.species} {member.grade}{where}; "

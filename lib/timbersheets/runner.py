@@ -18,7 +18,8 @@ from pathlib import Path
 
 from . import __version__
 from .data import DataSet
-from .design import MemberDesign, design_all, member_types
+from .design import MemberDesign, design_all
+from .membertypes import member_types
 from .fileio import write_atomic
 from .pipeline import templates_dir
 from .progress import Progress
