@@ -7,6 +7,7 @@ of a :class:`Context`, the load cases and the record, returning check results.
 
 from __future__ import annotations
 
+import traceback
 from collections.abc import Callable
 from dataclasses import dataclass, field
 
@@ -182,6 +183,7 @@ class MemberDesign:
     warnings: list[str] = field(default_factory=list)
     data_used: list[Datum] = field(default_factory=list)
     sizing: Sizing | None = None
+    trace: str = field(default="", repr=False)  # traceback of an internal error, for run.log
 
     @property
     def status(self) -> str:
@@ -233,7 +235,9 @@ def design_member(member: Member, data: DataSet) -> MemberDesign:
     except TimbersheetsError as exc:
         outcome.errors.append(str(exc))
     except Exception as exc:  # a defect must not stop the other members  # noqa: BLE001
-        outcome.errors.append(f"internal error while designing ({type(exc).__name__}: {exc}); please report it")
+        outcome.errors.append(f"internal error while designing ({type(exc).__name__}: {exc}); please report it "
+                              "with run.log, which holds the traceback")
+        outcome.trace = traceback.format_exc()
     if outcome.context:
         outcome.data_used = list(outcome.context.used)
         outcome.warnings += [n for n in outcome.context.notes if n not in outcome.warnings]

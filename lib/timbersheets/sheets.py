@@ -15,6 +15,7 @@ from typing import Any
 
 from .calc import format_number, format_value, unit_latex, unit_text
 from .checks import CheckResult
+from .constants import CAUTION, RESULT_MIME
 from .data import DataSet
 from .design import MemberDesign, design_member
 from .loads import EFFECT_UNITS, EFFECTS, LOAD_TYPES, kd_permanent
@@ -24,11 +25,8 @@ from .symbols import ACTION_WORDS, meaning, symbol_latex, symbol_unit
 from .tex import Cell, Table, escape, md_escape
 from .units import to_display
 
-CAUTION = ("This calculation must be reviewed and sealed by a licensed professional engineer before it is "
-           "used. The codes and editions adopted by the authority having jurisdiction govern.")
 LOAD_NAMES = {"D": "Dead", "L": "Live (use and occupancy)", "S": "Snow (with rain)", "W": "Wind", "E": "Earthquake"}
 EFFECT_NAMES = {"P": "P", "w": "w", "M": "M", "V": "V"}
-RESULT_MIME = "application/vnd.timbersheets.result+json"
 
 
 @dataclass
