@@ -201,14 +201,15 @@ class Sheet:
     def combinations_section(self) -> Block:
         d = self.design
         effects = self.present_effects()
-        header = ["No.", "Combination", *[Cell.math(f"{EFFECT_NAMES[e]}_f") for e in effects], Cell.math("K_D"),
+        header = ["NBC case", "Combination", *[Cell.math(f"{EFFECT_NAMES[e]}_f") for e in effects], Cell.math("K_D"),
                   Cell("Basis of $K_D$", "Basis of K_D")]
         units = ["", "", *[unit_text_of(e) for e in effects], "", ""]
         rows = []
-        for i, case in enumerate(d.cases, 1):
-            rows.append([str(i), case.label, *[q(case.factored[e], EFFECT_UNITS[e]) for e in effects],
+        for case in d.cases:
+            rows.append([case.combination.id, case.label, *[q(case.factored[e], EFFECT_UNITS[e]) for e in effects],
                          Cell(f"${format_number(case.K_D)}$", format_number(case.K_D)), basis_cell(case.basis)])
         intro = para(f"ULS load combinations of NBC {escape(self.codes.get('nbc', '2020'))} Table 4.1.3.2.-A, "
+                     "numbered as its cases, "
                      "each principal load with and without its companion loads; 0.9D only where a load acts "
                      "against the dead load; combinations that repeat another are left out. "
                      "$K_D$ by the duration class of the principal load (CSA O86:19 5.3.2, Table 5.1).",
@@ -340,10 +341,13 @@ class Sheet:
         listing = ""
         md = ""
         if warnings:
-            items = "".join(f"\\item {escape(w)}\n" for w in warnings)
+            from .cautions import unverified_items
+
+            entries = unverified_items(self.design.data_used)
+            items = "".join(f"\\item {latex}\n" for latex, _ in entries)
             listing = ("\\par\\smallskip Data values used here that are not yet verified against the standard:\n"
                        f"\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n")
-            md = "\n\nUnverified data values used:\n" + "".join(f"- {md_escape(w)}\n" for w in warnings)
+            md = "\n\nUnverified data values used:\n" + "".join(f"- {text}\n" for _, text in entries)
         codes = (f" Designed to CSA O86:{escape(self.codes.get('o86', '2019'))[-2:]} with loads combined per "
                  f"NBC {escape(self.codes.get('nbc', '2020'))} Part 4.")
         clauses = (" Clause numbers follow the O86-14 numbering, believed unchanged in O86:19 (memory, unverified).")
