@@ -43,6 +43,7 @@ def check_json(c: CheckResult) -> dict[str, Any]:
         "utilization": round_utilization(c.utilization),
         "clause": c.clause,
         "factors": {k: round_sig(v, "", 4) for k, v in c.factors.items()},
+        **({"where": c.where} if c.where else {}),
     }
 
 

@@ -18,6 +18,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+from . import beamloads
 from .errors import JobError, ParameterError, ScheduleError
 from .materials import GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, sawn_table_grade
 from .sections import Section, parse_size, sawn_category
@@ -34,7 +35,7 @@ class Column:
     """One schedule column: how to read it and what it defaults to."""
 
     name: str
-    kind: str  # text | choice | quantity | number | count | size
+    kind: str  # text | choice | quantity | number | count | size | spans | points | parts | carries
     unit: str = ""  # unit a bare number is in (quantity)
     compute: str = ""  # unit the library works in (quantity)
     default: Any = None
@@ -56,7 +57,8 @@ def _columns() -> tuple[Column, ...]:
         Column("service", "choice", default="dry", choices=("dry", "wet")),
         Column("K_T", "number", default=1.0, minimum=0, strict=True),
         Column("K_H", "number", default=1.0, minimum=0, strict=True),
-        Column("length", "quantity", "m", "mm", required=True, minimum=0, strict=True),
+        # required unless `spans` is given (then it is the total length, overhangs included)
+        Column("length", "quantity", "m", "mm", minimum=0, strict=True),
         Column("Ke", "number", default=1.0, minimum=0, strict=True),
         Column("Lx", "quantity", "m", "mm", minimum=0),  # 0 = braced about x over the length
         Column("Ly", "quantity", "m", "mm", minimum=0),  # 0 = braced about y (e.g. sheathing)
@@ -68,6 +70,16 @@ def _columns() -> tuple[Column, ...]:
     ]
     for prefix, unit, compute in (("P", "kN", "N"), ("w", "kN/m", "N/mm"), ("M", "kN*m", "N*mm"), ("V", "kN", "N")):
         cols += [Column(f"{prefix}_{t}", "quantity", unit, compute, default=0.0) for t in LOAD_TYPES]
+    cols += [
+        Column("spans", "spans"),
+        Column("overhang_left", "quantity", "m", "mm", default=0.0, minimum=0),
+        Column("overhang_right", "quantity", "m", "mm", default=0.0, minimum=0),
+        Column("trib", "quantity", "m", "mm", minimum=0, strict=True),
+    ]
+    cols += [Column(f"q_{t}", "quantity", "kPa", "MPa", default=0.0) for t in LOAD_TYPES]
+    cols += [Column(f"point_{t}", "points", default=()) for t in LOAD_TYPES]
+    cols += [Column(f"part_{t}", "parts", default=()) for t in LOAD_TYPES]
+    cols += [Column("carries", "carries", default=())]
     cols += [
         Column("defl_L", "number", default=360.0, minimum=0, strict=True),
         Column("defl_total", "number", default=240.0, minimum=0, strict=True),
@@ -82,6 +94,20 @@ def _columns() -> tuple[Column, ...]:
 
 COLUMNS = {c.name: c for c in _columns()}
 REQUIRED = tuple(c.name for c in COLUMNS.values() if c.required)
+#: Loads and geometry only a bending member analysed as a beam takes.
+BEAM_ONLY = ("spans", "overhang_left", "overhang_right", "trib", *(f"{p}_{t}" for p in ("q", "point", "part")
+                                                                   for t in LOAD_TYPES))
+#: Set by the load path (reactions of the members this one carries), not by the schedule.
+DERIVED = ("carried",)
+
+
+_PARAMS = {
+    "spans": (lambda v: None if v is None else [round(x / 1000, 9) for x in v],
+              lambda raw: None if raw is None else tuple(float(x) * 1000 for x in raw)),
+    "points": (beamloads.points_params, beamloads.points_from_params),
+    "parts": (beamloads.parts_params, beamloads.parts_from_params),
+    "carries": (beamloads.carries_params, beamloads.carries_from_params),
+}
 
 
 @dataclass
@@ -114,14 +140,19 @@ class Member:
         """
         out: dict[str, Any] = {"mark": self.mark, "row": self.row}
         for name, value in self.values.items():
+            if name in DERIVED:
+                continue
             col = COLUMNS[name]
             if col.kind == "quantity" and value is not None:
                 out[name] = {"value": round(convert(value, col.compute, col.unit), 9), "unit": col.unit}
             elif col.kind == "size":
                 out[name] = value if value == "auto" else f"{value[0]:g}x{value[1]:g}"
+            elif col.kind in _PARAMS:
+                out[name] = _PARAMS[col.kind][0](value)
             else:
                 out[name] = value
         out["given"] = sorted(self.given)
+        out["carried"] = [c.params() for c in self.values.get("carried", ())]
         return out
 
     @classmethod
@@ -131,7 +162,7 @@ class Member:
         Refuses unknown or missing keys: papermill itself only warns about them,
         and a typo in a load name would otherwise silently use a default.
         """
-        expected = set(COLUMNS) | {"row", "given"}
+        expected = set(COLUMNS) | {"row", "given", *DERIVED}
         unknown, missing = set(params) - expected, expected - set(params)
         if unknown or missing:
             raise ParameterError(sorted(unknown), sorted(missing))
@@ -144,8 +175,13 @@ class Member:
                 values[name] = convert(float(raw["value"]), raw["unit"], col.compute)
             elif col.kind == "size":
                 values[name] = raw if raw == "auto" else parse_size(raw)
+            elif col.kind in _PARAMS:
+                values[name] = _PARAMS[col.kind][1](raw)
             else:
                 values[name] = raw
+        from .loadpath import CarriedLoad
+
+        values["carried"] = tuple(CarriedLoad.from_params(c) for c in params["carried"])
         return cls(params["mark"], int(params["row"]), values, frozenset(params.get("given", ())))
 
     @property
@@ -305,6 +341,8 @@ def _allowed(col: Column) -> str:
         return "b x d in mm, e.g. 38x235 or 130x228"
     if col.kind == "count":
         return "a whole number of at least 1"
+    if col.kind in beamloads.ALLOWED:
+        return beamloads.ALLOWED[col.kind]
     if col.kind == "quantity":
         bound = "greater than 0" if col.strict else "0 or more" if col.minimum is not None else "any sign"
         return f"a number in {col.unit} ({bound}), or with its own unit, e.g. '12 ft'"
@@ -331,6 +369,8 @@ def _read_cell(col: Column, text: str) -> Any:
             return parse_size(text)
         except ValueError:
             raise ValueError("is not a size") from None
+    if col.kind in beamloads.READERS:
+        return beamloads.READERS[col.kind](text)
     if col.kind == "count":
         if not re.fullmatch(r"\d+", text) or int(text) < 1:
             raise ValueError("is not a whole number of at least 1")
@@ -405,6 +445,9 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> li
         errs.append(ScheduleError(file, row, "net_area", f"{v['net_area']:g}",
                                   "leaves less than 75 % of the gross area; O86 does not allow designing on it",
                                   "a ratio from 0.75 to 1.0; reduce the holes or notches"))
+    beam_errors = beamloads.row_errors(file, row, v, given)
+    if beam_errors or v["length"] is None:
+        return errs + beam_errors
     for name in ("Lx", "Ly", "Lu"):
         if v[name] is not None and v[name] > v["length"] * (1 + 1e-9) and name in given:
             errs.append(ScheduleError(file, row, name, f"{v[name] / 1000:g} m", f"is longer than the member (length {v['length'] / 1000:g} m)",

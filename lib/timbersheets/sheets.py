@@ -16,8 +16,8 @@ from typing import Any
 from .calc import format_number, format_value, unit_latex, unit_text
 from .checks import CheckResult
 from .data import DataSet
-from .design import MemberDesign, design_member
-from .loads import EFFECT_UNITS, EFFECTS, LOAD_TYPES, kd_permanent
+from .design import MemberDesign, design_member, effects_of
+from .loads import EFFECT_UNITS, LOAD_TYPES, kd_permanent
 from .schedule import Member
 from .symbols import ACTION_WORDS, meaning, symbol_latex, symbol_unit
 from .tex import Cell, Table, escape, md_escape
@@ -26,7 +26,7 @@ from .units import to_display
 CAUTION = ("This calculation must be reviewed and sealed by a licensed professional engineer before it is "
            "used. The codes and editions adopted by the authority having jurisdiction govern.")
 LOAD_NAMES = {"D": "Dead", "L": "Live (use and occupancy)", "S": "Snow (with rain)", "W": "Wind", "E": "Earthquake"}
-EFFECT_NAMES = {"P": "P", "w": "w", "M": "M", "V": "V"}
+EFFECT_NAMES = {"P": "P", "w": "w", "M": "M", "V": "V", "F": "F"}
 RESULT_MIME = "application/vnd.timbersheets.result+json"
 
 
@@ -171,7 +171,7 @@ class Sheet:
     # 2 -------------------------------------------------------------------------
     def present_effects(self) -> list[str]:
         m = self.m
-        return [e for e in EFFECTS if any(m.values[f"{e}_{t}"] for t in LOAD_TYPES)]
+        return effects_of(m).present()
 
     def loads_section(self) -> Block:
         m = self.m
@@ -181,10 +181,11 @@ class Sheet:
         rows = []
         from .loads import DURATION_CLASS
 
+        specified = effects_of(m)
         for t in LOAD_TYPES:
-            if not any(m.values[f"{e}_{t}"] for e in effects):
+            if not any(specified.get(e, t) for e in effects):
                 continue
-            rows.append([LOAD_NAMES[t], Cell.math(t), *[q(m.values[f"{e}_{t}"], EFFECT_UNITS[e]) for e in effects],
+            rows.append([LOAD_NAMES[t], Cell.math(t), *[q(specified.get(e, t), EFFECT_UNITS[e]) for e in effects],
                          DURATION_CLASS[t] + " term"])
         sense = ("Line loads act downward on the span, negative values upward (uplift); moments and shears are "
                  "the frame model's, by load type." if m.type == "bending" else
