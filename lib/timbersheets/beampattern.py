@@ -107,12 +107,18 @@ class Combined:
         return self.model.parts(self.factors)
 
     def value(self, attr: str, index, sign: int) -> tuple[float, list[tuple[str, int]]]:
-        """The extreme of `attr` (M, V, D at station `index`, or R at support `index`) with sign +1 or -1."""
+        """The extreme of `attr` (M, V, D at station `index`, or R at support `index`) with sign +1 or -1.
+
+        `index` may also be (position, start, end): the value at a position between stations, interpolated
+        within the region from start to end (mm).
+        """
         fixed, variable = self._parts
-        total = float(getattr(fixed, attr)[index]) if fixed is not None else 0.0
+        pick = (lambda arr: float(arr[index])) if not isinstance(index, tuple) else \
+            (lambda arr: sample(self.model.x, arr, *index))
+        total = pick(getattr(fixed, attr)) if fixed is not None else 0.0
         chosen = []
         for t, i, r in variable:
-            c = float(getattr(r, attr)[index])
+            c = pick(getattr(r, attr))
             if c * sign > EPS * max(1.0, abs(c)):
                 total += c
                 chosen.append((t, i))
@@ -131,6 +137,12 @@ class Combined:
         value, chosen = self.value(attr, index, sign)
         _, variable = self._parts
         return Target(kind, region, x, value, self.model.arrangement_words(chosen, variable), **kw)
+
+
+def sample(x: np.ndarray, values: np.ndarray, position: float, start: float, end: float) -> float:
+    """`values` at `position`, interpolated between the stations of the region from `start` to `end` (mm)."""
+    idx = np.nonzero((x >= start - EPS) & (x <= end + EPS))[0]
+    return float(np.interp(position, x[idx], values[idx]))
 
 
 def _in(x: np.ndarray, a: float, b: float, closed: bool = True) -> np.ndarray:
@@ -175,15 +187,23 @@ def _shear_targets(comb: Combined, d: float) -> list[Target]:
     for name, a, b in g.regions:
         lo = a + d if any(abs(a - s) < EPS for s in supports) else a
         hi = b - d if any(abs(b - s) < EPS for s in supports) else b
-        idx = _in(x, lo, hi) if hi > lo else _in(x, (a + b) / 2, (a + b) / 2)
-        if not len(idx):
+        if hi <= lo:  # a region shorter than 2d: its shear is checked at its middle
+            lo = hi = (a + b) / 2
+        idx = _in(x, lo, hi, closed=False)
+        best = None  # (|V|, index or (position, a, b), sign, x)
+        for k in idx:
+            for sign, env in ((+1, vmax), (-1, vmin)):
+                if best is None or abs(env[k]) > best[0]:
+                    best = (abs(env[k]), int(k), sign, float(x[k]))
+        for pos in (lo, hi):  # the sections at d, between stations
+            for sign in (+1, -1):
+                v, _ = comb.value("V", (pos, a, b), sign)
+                if best is None or abs(v) > best[0] + EPS:
+                    best = (abs(v), (pos, a, b), sign, pos)
+        if best is None or best[0] <= EPS:
             continue
-        k_hi, k_lo = idx[int(np.argmax(vmax[idx]))], idx[int(np.argmin(vmin[idx]))]
-        k, sign = (k_hi, +1) if abs(vmax[k_hi]) >= abs(vmin[k_lo]) else (k_lo, -1)
-        if abs(comb.envelope("V", sign)[k]) <= EPS:
-            continue
-        near = min(range(len(supports)), key=lambda j: abs(supports[j] - x[k]))
-        out.append(comb.target("V", "V", k, sign, name, float(x[k]), support=near + 1, length=b - a))
+        near = min(range(len(supports)), key=lambda j: abs(supports[j] - best[3]))
+        out.append(comb.target("V", "V", best[1], best[2], name, best[3], support=near + 1, length=b - a))
     return out
 
 

@@ -105,8 +105,15 @@ def resolve(member, carries_designs: dict) -> object:
 def source_reactions(design, beam_reactions) -> dict[int, dict[str, float]]:
     """Specified reactions of a designed member by support and load type (N): a beam's supports, or a
     column's base (support 1, its axial load)."""
+    from .analysis import loading_mode
+    from .beamdesign import is_model
+    from .errors import DesignError
+
     m = design.member
     if m.type == "bending":
+        if not is_model(m) and loading_mode(m) == "forces":
+            raise DesignError(m.mark, "takes its moments and shears from a frame model, so its support reactions "
+                              "are not known here", "", "Give its loads (w_*, point_*, …) to carry its reactions")
         return beam_reactions(m)
     from .design import effects_of
 
