@@ -106,6 +106,8 @@ def effects_of(member: Member) -> Effects:
                 values["P"][t] += c.loads.get(t, 0.0)
     if not is_model(member):
         return Effects(values)
+    # a beam model's loads act together: K_D is taken on their total F, not on the line loads alone
+    values = {e: {t: 0.0 for t in LOAD_TYPES} for e in EFFECTS}
     values["F"] = {t: total_loads(member).get(t, 0.0) for t in LOAD_TYPES}
     geometry = geometry_of(member)
     return Effects(values, reversible=len(geometry.spans) > 1 or bool(geometry.left or geometry.right))

@@ -194,7 +194,10 @@ class Sheet:
         intro = para("Specified loads from the schedule, including importance factors and the member's own "
                      "weight (the tool adds none), by load type (NBC "
                      f"{escape(self.codes.get('nbc', '2020'))} Part 4). {sense}")
-        return heading("Specified loads") + intro + table(Table(header, rows, "ll" + "r" * len(effects) + "l", units))
+        from .modelsheet import loads_block
+
+        return (heading("Specified loads") + intro + table(Table(header, rows, "ll" + "r" * len(effects) + "l", units))
+                + loads_block(m))
 
     # 3 -------------------------------------------------------------------------
     def combinations_section(self) -> Block:
@@ -281,7 +284,8 @@ class Sheet:
         out = heading(f"{ACTION_WORDS.get(name, name)} ({gov.clause})", 2)
         kd = ("specified loads; $K_D$ does not apply to stiffness" if serviceability(gov)
               else f"$K_D = {format_number(gov.K_D)}$")
-        out += para(f"Shown in full for the governing combination {escape(gov.combination)} "
+        at = f" at {escape(gov.where)}" if gov.where else ""
+        out += para(f"Shown in full for the governing combination {escape(gov.combination)}{at} "
                     f"({kd}); every combination is listed after.")
         for step in gov.steps:
             if step.caption:
@@ -296,6 +300,12 @@ class Sheet:
         units = ["", "", unit_text(unit), unit_text(unit), ""]
         rows = [[c.combination, kd_cell(c), num(c.demand, unit), num(c.resistance, unit), util_cell(c.utilization)]
                 for c in all_cases]
+        if any(c.where for c in all_cases):  # a beam model: one row per place and combination
+            header.insert(1, "Where")
+            units.insert(1, "")
+            for row, c in zip(rows, all_cases):
+                row.insert(1, escape(c.where))
+            return out + table(Table(header, rows, "lXrrrr", units))
         return out + table(Table(header, rows, "lrrrr", units))
 
     @staticmethod

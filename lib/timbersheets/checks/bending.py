@@ -147,7 +147,9 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
     L_u = segment if segment is not None else m.length if negative else member.Lu
     edge = ("Negative moment: the bottom edge is in compression and is taken as laterally unsupported over the "
             "span, L_u = L. " if negative else "")
-    if negative and segment is not None:
+    if negative and segment is not None and member.values.get("restraint") == "both-edges":
+        edge = "Negative moment: the bottom edge is in compression. "
+    elif negative and segment is not None:
         edge = ("Negative moment: the bottom edge is in compression and is taken as laterally unsupported "
                 f"between supports, L_u = {L_u / 1000:g} m. ")
     ratio = s.d / s.b
