@@ -152,3 +152,26 @@ def test_a_change_follows_the_load_path(tmp_path):
     assert "G-1: changed because RB-1 changed" in text and "C-1: changed because G-1 changed" in text
     assert "X-1" not in text
     assert report.exit_code in (0, 1)
+
+
+def test_beam_model_refuses_frame_forces_as_well(tmp_path, data):
+    # common practice: a member's forces come from one analysis; mixing a frame model's M with a beam model is refused
+    rows = [{"mark": "B-1", **JOIST, "spans": "3+3", "w_D": "0.5", "M_D": "2", "V_D": "3"}]
+    d = designs(tmp_path, rows, data)["B-1"]
+    assert d.status == "error" and "M_D" in d.errors[0] and "V_D" in d.errors[0]
+
+
+def test_review_turns_stale_when_carried_loads_change(tmp_path):
+    from timbersheets.review import Review, append_reviews
+
+    job = write_job(tmp_path / "job", CHAIN)
+    run_job(job, out=tmp_path / "out", sheets=False)
+    checked = {m["mark"]: m for m in json.loads((tmp_path / "out" / "rev-A" / "results.json").read_text())["members"]}
+    append_reviews(job, [Review("G-1", "RD", "2026-12-01", "ok", "", checked["G-1"]["inputs_hash"], "A")])
+    changed = [dict(r) for r in CHAIN]
+    changed[0]["w_S"] = "3.6"  # the roof beam, not the girder
+    write_job(tmp_path / "job", changed, revision="B")
+    run_job(job, out=tmp_path / "out", sheets=False)
+    doc = json.loads((tmp_path / "out" / "rev-B" / "results.json").read_text())
+    review = {m["mark"]: m["review"]["status"] for m in doc["members"]}
+    assert review["G-1"] == "stale"

@@ -117,6 +117,12 @@ def design_model(ctx, cases) -> list:
     from .checks.shear import check_shear
 
     m = ctx.member
+    given = [f"{e}_{t}" for e in ("P", "M", "V") for t in LOAD_TYPES if m.values[f"{e}_{t}"]]
+    if given:
+        raise DesignError(m.mark, f"is analysed as a beam model (spans, overhangs, point, partial or carried "
+                          f"loads), which cannot also take {', '.join(given)}", "",
+                          "Give the loads on the beam only, or the frame model's forces only (then without spans, "
+                          "overhangs, point_*, part_* and carries)")
     model = model_of(m)
     out = {"bending": [], "shear": [], "bearing": []}
     for case in cases:
