@@ -95,7 +95,7 @@ def forces_block(design) -> Block:
     reactions = reactions_by_type(m)
     types = [t for t in "DLSWE" if any(r.get(t) for r in reactions.values())]
     rows = [[f"R{j}", *[q(r.get(t, 0.0), "N") for t in types]] for j, r in reactions.items()]
-    out += para(escape("Specified reactions by load type (upward positive; L and S at their largest over the "
+    out += para(escape("Specified reactions by load type (upward on this member positive, the same value acting downward on the member that carries it; L and S at their largest over the "
                        "arrangements): these are what a member that carries this one takes."))
     out += table(Table(["Support", *[Cell.math(t) for t in types]], rows, "l" + "r" * len(types),
                        ["", *["kN"] * len(types)]))
