@@ -123,6 +123,21 @@ class ServiceCase:
         return " + ".join(f"{f:.1f}{t}" for t, f in self.factors.items())
 
 
+def service_cases_for(member, data, present: list[str]) -> list[ServiceCase]:
+    """The SLS combinations of :func:`service_cases` for a beam model carrying the load types `present`;
+    `w_s` is not used (the model gives the deflection)."""
+    out = []
+    by_check: dict[str, list[tuple[str, Datum]]] = {}
+    for check, load, datum in data.sls_factors():
+        by_check.setdefault(check, []).append((load, datum))
+    for check, rows in by_check.items():
+        used = [(t, d) for t, d in rows if t in present]
+        if not used or (check == "deflection-live" and all(t == "D" for t, _ in used)):
+            continue
+        out.append(ServiceCase(check, {t: d.value for t, d in used}, 0.0, tuple(d for _, d in used)))
+    return out
+
+
 def service_cases(member, data) -> list[ServiceCase]:
     """The SLS combinations that load the member (loads it does not carry are left out).
 

@@ -12,6 +12,7 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 
 from .analysis import loading_mode, member_forces, service_cases
+from .beamdesign import design_model, geometry_of, is_model, total_loads
 from .checks import CheckResult
 from .checks.bearing import check_bearing
 from .checks.bending import check_bending
@@ -99,8 +100,20 @@ class Context:
 
 
 def effects_of(member: Member) -> Effects:
-    """Specified effects by type from the row's P_*, M_*, V_*, w_* columns."""
-    return Effects({e: {t: member.values[f"{e}_{t}"] for t in LOAD_TYPES} for e in EFFECTS})
+    """Specified effects by type from the row's P_*, M_*, V_*, w_* columns, the axial loads a column carries
+    from other members, and the total load F of a beam model."""
+    values = {e: {t: member.values[f"{e}_{t}"] for t in LOAD_TYPES} for e in EFFECTS}
+    if member.type != "bending":
+        for c in member.values.get("carried", ()):
+            for t in LOAD_TYPES:
+                values["P"][t] += c.loads.get(t, 0.0)
+    if not is_model(member):
+        return Effects(values)
+    # a beam model's loads act together: K_D is taken on their total F, not on the line loads alone
+    values = {e: {t: 0.0 for t in LOAD_TYPES} for e in EFFECTS}
+    values["F"] = {t: total_loads(member).get(t, 0.0) for t in LOAD_TYPES}
+    geometry = geometry_of(member)
+    return Effects(values, reversible=len(geometry.spans) > 1 or bool(geometry.left or geometry.right))
 
 
 def build_context(member: Member, data: DataSet, section: Section | None = None) -> Context:
@@ -137,6 +150,8 @@ def _axial(ctx: Context, cases: list[LoadCase], kind: MemberType) -> list[CheckR
 def _bending(ctx: Context, cases: list[LoadCase], kind: MemberType) -> list[CheckResult]:
     """Design function for a bending member on a simple span: strength per ULS
     combination (bending, shear, bearing), then deflection per SLS combination."""
+    if is_model(ctx.member):
+        return design_model(ctx, cases)
     mode = loading_mode(ctx.member)
     line = mode == "line"
     strength: dict[str, list[CheckResult]] = {"bending": [], "shear": [], "bearing": []}
@@ -266,5 +281,8 @@ def rejected(entry: RowError) -> MemberDesign:
 
 
 def design_all(entries: list[Member | RowError], data: DataSet) -> list[MemberDesign]:
-    return [design_member(e, data) if isinstance(e, Member) else rejected(e) for e in entries]
+    """Every entry designed, each member after the members it carries (:mod:`loadpath`)."""
+    from .loadpath import design_in_order
+
+    return design_in_order(entries, data)
 

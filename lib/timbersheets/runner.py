@@ -277,6 +277,10 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
 
         write_chart(stage / "summary.png", doc["members"],
                     f"{project.fields['title']} rev {project.revision}: governing utilization", jobdir / ".cache")
+        if opts.sheets and opts.fmt == "html":
+            from .htmlindex import index_html
+
+            write_atomic(stage / "index.html", index_html(project, doc, stage))
         if opts.sheets and opts.fmt == "pdf":
             from .package import build_package
             from .pipeline import ConversionError
