@@ -20,17 +20,17 @@ from pathlib import Path
 from . import __version__
 from .constants import SHORT_CAUTION
 from .data import DataSet
-from .design import MemberDesign, design_all
+from .design import MemberDesign
 from .errors import ExitCode
 from .membertypes import member_types
 from .fileio import write_atomic
 from .pipeline import templates_dir
-from .project import Project, load_project
+from .job import load_job
+from .project import Project
 from .fileio import write_csv
 from .results import member_json, results_doc, write_results
 from .review import latest, read_reviews, status, titleblock_text
 from .revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
-from .schedule import load_schedule
 from .sheetjobs import SheetOutcome, SheetTask, from_cache, run_sheet
 from .tex import escape
 
@@ -245,10 +245,8 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     """
     opts = opts or RunOptions(**kw)
     started = time.monotonic()
-    project = load_project(folder)
-    schedule = load_schedule(project.schedule_path)
-    data = DataSet(project.materials)
-    designs = design_all(schedule.entries, data)
+    job = load_job(folder)
+    project, schedule, data, designs = job.project, job.schedule, job.data, job.designs
     jobdir = job_dir(project, opts.out)
     prev_label = previous_revision(jobdir, project.revision)
     previous = load_results(jobdir / f"rev-{prev_label}") if prev_label else None

@@ -5,11 +5,10 @@ from __future__ import annotations
 from dataclasses import dataclass
 from pathlib import Path
 
-from .data import DataSet
 from .design import MemberDesign, design_all
+from .job import load_job
 from .loads import EFFECTS, LOAD_TYPES
-from .project import load_project
-from .schedule import Member, load_schedule
+from .schedule import Member
 
 
 @dataclass
@@ -53,9 +52,6 @@ def scaled(member: Member, scales: dict[str, float]) -> Member:
 
 def what_if(folder: Path, scales: dict[str, float]) -> list[WhatIf]:
     """Every member designed as scheduled and with its loads scaled."""
-    project = load_project(folder)
-    schedule = load_schedule(project.schedule_path)
-    data = DataSet(project.materials)
-    before = design_all(schedule.entries, data)
-    after = design_all([scaled(e, scales) if isinstance(e, Member) else e for e in schedule.entries], data)
-    return [WhatIf(b.mark, b, a) for b, a in zip(before, after)]
+    job = load_job(folder)
+    after = design_all([scaled(e, scales) if isinstance(e, Member) else e for e in job.schedule.entries], job.data)
+    return [WhatIf(b.mark, b, a) for b, a in zip(job.designs, after, strict=True)]
