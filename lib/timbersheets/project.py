@@ -96,6 +96,8 @@ o86 = "2019"
 '''
 
 SCHEDULE_TEMPLATE = (
-    "mark,type,material,species,grade,size,service,length,Ke,P_D,P_L,P_S,P_W,note\n"
-    "C-1,compression,sawn,S-P-F,No.1/No.2,140x140,dry,3.0,1.0,20,15,,,example post: replace with your members\n"
+    "mark,type,material,species,grade,size,service,length,Ke,Lx,Ly,Lu,restraint,bearing,P_D,P_L,P_S,w_D,w_L,w_S,note\n"
+    "C-1,compression,sawn,S-P-F,No.1,140x140,dry,3.0,1.0,3.0,3.0,,,,20,15,,,,,example post: replace with your members\n"
+    "B-1,bending,sawn,S-P-F,No.1/No.2,38x235,dry,3.6,,,,0,,89,,,,0.24,0.76,,"
+    "example floor joist at 400 mm centres (0.6 kPa dead and 1.9 kPa live); Lu = 0: top edge held by the nailed subfloor\n"
 )
