@@ -23,3 +23,27 @@ def test_new_scaffold_designs_as_written(tmp_path):
     members = results["members"]
     assert members and all(m["status"] == "pass" and not m["errors"] for m in members), members
     assert {m["checks"][0]["check"] for m in members} == {"compression", "bending"}  # a post and a joist
+
+
+def test_only_refuses_an_unknown_mark(tmp_path):
+    from conftest import member_row, write_job
+
+    job = write_job(tmp_path / "job", [member_row("C-1"), member_row("C-2")])
+    done = cli("run", str(job), "--no-pdf", "--out", str(tmp_path / "out"), "--only", "C-1,ZZZ")
+    assert done.returncode == 2
+    assert "ZZZ" in done.stderr and "C-2" in done.stderr  # names the unknown mark and the marks there are
+    assert not (tmp_path / "out" / "rev-A").exists()  # nothing was written
+
+
+def test_help_is_specific_to_each_command():
+    run_help = cli("run", "--help").stdout
+    assert "--out OUTDIR" in run_help and "OUTDIR/rev-<R>/" in run_help
+    assert "still designed" in " ".join(run_help.split())  # what --only does to the others
+    run_exit = "1 a member fails or has an error"
+    assert run_exit in " ".join(run_help.split())
+    for command in ("new", "size", "diff", "review"):
+        text = " ".join(cli(command, "--help").stdout.split())
+        assert run_exit not in text, command
+        assert "Exit status:" in text, command
+    for command in ("diff", "review"):
+        assert "--out OUTDIR" in cli(command, "--help").stdout, command

@@ -16,20 +16,25 @@ from .errors import TimbersheetsError
 from .review import VERDICTS
 
 EPILOG = "Exit status: 0 all members pass; 1 a member fails or has an error; 2 the job is unusable."
+SIZE_EPILOG = "Exit status: 0 every member named has a passing section; 1 one has none; 2 the job is unusable."
+DIFF_EPILOG = "Exit status: 0 the changes were listed; 2 a revision or the job is unusable."
+REVIEW_EPILOG = ("Exit status: 0 the verdicts were recorded (with --status: nothing left to check); "
+                 "1 with --status, something is left to check; 2 the verdict was refused or the job is unusable.")
 
 
 def _parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(
         prog="timbersheets",
         description="CSA O86 timber member calc sheets from a member schedule (NBC Part 4 load combinations).",
-        epilog=EPILOG,
+        epilog="Each command's --help gives its exit status.",
     )
     p.add_argument("--version", action="version", version=f"timbersheets {__version__}")
     sub = p.add_subparsers(dest="command", required=True, metavar="COMMAND")
 
     new = sub.add_parser("new", help="scaffold a job folder (project.toml, schedule.csv)",
-                         description="Create DIR with a project.toml and a one-row schedule.csv to fill in.",
-                         epilog=EPILOG)
+                         description="Create DIR with a project.toml and a schedule.csv of two example members "
+                                     "(a post and a floor joist) that design as written; replace them with yours.",
+                         epilog="Exit status: 0 created; 2 DIR already holds a job.")
     new.add_argument("dir", type=Path, help="the job folder to create, e.g. calcsheets/harbour-hall")
 
     run = sub.add_parser("run", help="validate the schedule, design every member, write the outputs",
@@ -38,8 +43,12 @@ def _parser() -> argparse.ArgumentParser:
                          epilog=EPILOG)
     run.add_argument("dir", type=Path, help="the job folder (holds project.toml and schedule.csv)")
     run.add_argument("--no-pdf", action="store_true", help="write results only; no notebooks or PDFs")
-    run.add_argument("--out", type=Path, help="put the revision folder in OUTDIR/rev-<R>/ instead of outputs/<job>/")
-    run.add_argument("--only", metavar="MARKS", help="comma-separated member marks to run (others are left out)")
+    run.add_argument("--out", type=Path, metavar="OUTDIR",
+                     help="put the revision folder in OUTDIR/rev-<R>/ instead of outputs/<job>/")
+    run.add_argument("--only", metavar="MARKS",
+                     help="comma-separated marks whose notebooks and sheets to make; every member is still designed "
+                          "and listed in results.json, and the others keep the sheets of the last run of this "
+                          "revision that are still current (out-of-date ones are removed and listed in run.log)")
     run.add_argument("--jobs", type=int, metavar="N", help="members executed at once (default: number of CPUs)")
     run.add_argument("--force", action="store_true", help="re-execute every member, ignoring the cache")
     run.add_argument("--format", choices=("pdf", "html"), default="pdf",
@@ -53,24 +62,24 @@ def _parser() -> argparse.ArgumentParser:
                                       "glulam widths by 38 mm laminations) for the lightest section that passes every "
                                       "check under every combination. Without --mark, sizes the members whose size is "
                                       "auto; with --mark, sizes those members whatever their scheduled size. Writes "
-                                      "nothing.", epilog=EPILOG)
+                                      "nothing.", epilog=SIZE_EPILOG)
     size.add_argument("dir", type=Path, help="the job folder")
     size.add_argument("--mark", action="append", metavar="M", help="member mark (repeatable)")
 
     diff = sub.add_parser("diff", help="what changed between two revisions",
                           description="Compare outputs/<job>/rev-R1 and rev-R2: members added and removed, changed "
                                       "inputs (old -> new), changed results, flipped verdicts. Prints the changes "
-                                      "and writes them to rev-R2/diff.csv.", epilog=EPILOG)
+                                      "and writes them to rev-R2/diff.csv.", epilog=DIFF_EPILOG)
     diff.add_argument("dir", type=Path, help="the job folder")
     diff.add_argument("--from", dest="r1", required=True, metavar="R1", help="the earlier revision, e.g. A")
     diff.add_argument("--to", dest="r2", required=True, metavar="R2", help="the later revision, e.g. B")
-    diff.add_argument("--out", type=Path, help="the folder holding rev-<R>/ (as given to run --out)")
+    diff.add_argument("--out", type=Path, metavar="OUTDIR", help="the folder holding rev-<R>/ (as given to run --out)")
 
     review = sub.add_parser("review", help="record a checker's verdict on members, or list what needs checking",
                             description="Append the checker's verdict to DIR/review.csv, tied to the inputs hash of "
                                         "the member as last run. A member whose inputs change afterwards shows as "
                                         "changed since check. With --status, list what is not checked, stale or to "
-                                        "revise; the exit status is 1 while anything is.", epilog=EPILOG)
+                                        "revise.", epilog=REVIEW_EPILOG)
     review.add_argument("dir", type=Path, help="the job folder")
     which = review.add_mutually_exclusive_group(required=True)
     which.add_argument("--mark", action="append", metavar="M", help="member mark (repeatable)")
@@ -79,7 +88,7 @@ def _parser() -> argparse.ArgumentParser:
     review.add_argument("--by", metavar="INITIALS", help="the checker's initials or name")
     review.add_argument("--verdict", choices=VERDICTS, help="ok, or revise (needs changes)")
     review.add_argument("--comment", default="", help="a note for the designer")
-    review.add_argument("--out", type=Path, help="the folder holding rev-<R>/ (as given to run --out)")
+    review.add_argument("--out", type=Path, metavar="OUTDIR", help="the folder holding rev-<R>/ (as given to run --out)")
     return p
 
 
@@ -118,6 +127,8 @@ def cmd_run(args: argparse.Namespace) -> int:
         print(f"  {d.mark:<12} {d.size:<12} {d.status:<6} {util}  {gov}")
         for e in d.errors:
             print(f"      error: {e}")
+    for line in report.carried.log_lines():
+        print(f"note: {line}")
     if report.package_error:
         print(f"error: package.pdf was not written: {report.package_error}", file=sys.stderr)
     c = report.counts()

@@ -81,6 +81,8 @@ def member_rows(members: list[dict[str, Any]], outdir: Path, first: int = 1,
         flags = []
         if m.get("changed_since"):
             flags.append(f"changed since {m['changed_since']}")
+        if not sheet.exists() and m["status"] != "error":
+            flags.append("no current sheet")
         rows.append({
             "mark": escape(m["mark"]), "plain": m["mark"], "anchor": f"m{i}",
             "description": escape(note[:110] + ("..." if len(note) > 110 else "")),

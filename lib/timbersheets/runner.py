@@ -19,7 +19,9 @@ from pathlib import Path
 from . import __version__
 from .data import DataSet
 from .design import MemberDesign, design_all, member_types
+from .errors import JobError
 from .fileio import write_atomic
+from .keep import Carried, carry_package, carry_sheets, package_key, write_package_key
 from .pipeline import templates_dir
 from .progress import Progress
 from .project import Project, load_project
@@ -55,6 +57,7 @@ class RunReport:
     log: list[str] = field(default_factory=list)
     package: Path | None = None
     package_error: str | None = None
+    carried: Carried = field(default_factory=Carried)
 
     @property
     def exit_code(self) -> int:
@@ -204,16 +207,22 @@ def member_extras(project: Project, designs: list[MemberDesign], previous: dict 
 
 
 def stage_dir(project: Project, opts: RunOptions) -> tuple[Path, Path]:
-    """A staging folder beside the revision folder; with --only it starts as a copy of it."""
+    """An empty staging folder beside the revision folder (what stays of the old one: keep.py)."""
     final = revision_dir(project, opts.out)
     final.parent.mkdir(parents=True, exist_ok=True)
     stage = final.parent / f".{final.name}.staging-{os.getpid()}"
     shutil.rmtree(stage, ignore_errors=True)
-    if opts.only and final.exists():
-        shutil.copytree(final, stage)
-    else:
-        stage.mkdir()
+    stage.mkdir()
     return stage, final
+
+
+def check_only(project: Project, entries: list, only: list[str] | None) -> None:
+    """Refuse an --only mark the schedule does not have (a typo would otherwise run nothing, silently)."""
+    known = {e.mark for e in entries}
+    unknown = [m for m in only or () if m not in known]
+    if unknown:
+        raise JobError(f"--only {','.join(only)}", f"no member {', '.join(unknown)} in {project.schedule_path}",
+                       f"Marks in the schedule: {', '.join(sorted(known)) or 'none'}")
 
 
 def swap_into_place(stage: Path, final: Path) -> None:
@@ -244,6 +253,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     started = time.monotonic()
     project = load_project(folder)
     schedule = load_schedule(project.schedule_path)
+    check_only(project, schedule.entries, opts.only)
     data = DataSet(project.materials)
     designs = design_all(schedule.entries, data)
     jobdir = job_dir(project, opts.out)
@@ -254,8 +264,8 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     stage, final = stage_dir(project, opts)
     try:
         report = RunReport(project, final, designs, schedule.warnings)
-        chosen = designs if not opts.only else [d for d in designs if d.mark in set(opts.only)]
-        tasks = sheet_tasks(project, chosen, data, stage, opts, extra)
+        every = sheet_tasks(project, designs, data, stage, opts, extra)
+        tasks = every if not opts.only else [t for t in every if t.mark in set(opts.only)]
         if tasks and opts.sheets:
             mark = time.monotonic()
             report.sheets = run_sheets(tasks, opts.jobs, opts.progress)
@@ -268,6 +278,9 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         doc["run_at"] = dt.datetime.now().isoformat(timespec="seconds")
         doc["previous_revision"] = prev_label
         changes = diff(previous, doc) if previous else []
+        carried = Carried()
+        carry_sheets(every, final, stage, carried)
+        key = package_key(doc, every)
         write_csv(stage / "diff.csv", DIFF_HEADER, diff_rows(changes))
         from .charts import write_chart
 
@@ -282,10 +295,16 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                 report.package = final / "package.pdf"
                 build_package(project, doc, data, stage, changes, hint=final,
                               pages={m: o.pages for m, o in report.sheets.items() if o.pages})
+                write_package_key(stage, key)
                 phases["package"] = time.monotonic() - mark
             except ConversionError as exc:
                 report.package, report.package_error = None, str(exc)
                 report.log.append(f"package.pdf was not written: {exc}")
+        else:
+            carry_package(key, final, stage, carried)
+            report.package = final / "package.pdf" if (stage / "package.pdf").exists() else None
+        report.carried = carried
+        doc["carried_over"] = carried.to_json()
         write_results(stage, doc)
         snapshot_inputs(project, stage)
         counts = report.counts()
@@ -294,6 +313,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                              f"{len(report.executed)} executed, {len(report.converted)} converted "
                              f"({time.monotonic() - started:.1f} s: "
                              + ", ".join(f"{k} {v:.1f} s" for k, v in phases.items()) + ")")
+        report.log += carried.log_lines()
         report.log += schedule.warnings
         for d in designs:
             report.log += [f"{d.mark}: {e}" for e in d.errors]
