@@ -87,7 +87,9 @@ def _parser() -> argparse.ArgumentParser:
     which.add_argument("--status", action="store_true", help="list what still needs checking")
     review.add_argument("--by", metavar="INITIALS", help="the checker's initials or name")
     review.add_argument("--verdict", choices=VERDICTS, help="ok, or revise (needs changes)")
-    review.add_argument("--comment", default="", help="a note for the designer")
+    review.add_argument("--comment", default="",
+                        help="a note for the designer, printed on the sheet; required for ok on a member that "
+                             "fails or has an error")
     review.add_argument("--out", type=Path, metavar="OUTDIR", help="the folder holding rev-<R>/ (as given to run --out)")
     return p
 
@@ -220,7 +222,8 @@ def cmd_diff(args: argparse.Namespace) -> int:
 
 def cmd_review(args: argparse.Namespace) -> int:
     from .project import load_project
-    from .review import Review, append_reviews, latest, read_reviews, status, today
+    from .review import (Review, append_reviews, comment_text, count_text, latest, read_reviews,
+                         refuse_unexplained_ok, standing, status, today)
     from .revisions import load_results
     from .runner import job_dir
     from .schedule import load_schedule
@@ -230,13 +233,14 @@ def cmd_review(args: argparse.Namespace) -> int:
     members = {m["mark"]: m for m in results["members"]}
     if args.status:
         reviews = latest(read_reviews(project.folder))
+        states = {mark: status(reviews.get(mark), m.get("inputs_hash")) for mark, m in members.items()}
         pending = []
-        for mark, m in members.items():
-            state = status(reviews.get(mark), m.get("inputs_hash"))
-            if state["status"] != "checked" or state.get("verdict") == "revise":
-                word = "revise" if state.get("verdict") == "revise" and state["status"] == "checked" else state["status"]
-                pending.append(f"  {mark:<12} {word}")
-        print(f"rev {project.revision}: {len(members) - len(pending)} of {len(members)} members checked")
+        for mark, state in states.items():
+            word = standing(state)
+            if word != "ok":
+                comment = comment_text(state)
+                pending.append(f"  {mark:<12} {word:<11} {comment}".rstrip())
+        print(f"rev {project.revision}: {count_text(list(states.values()))}")
         print("\n".join(pending) if pending else "  nothing left to check")
         return 1 if pending else 0
     if not args.by or not args.verdict:
@@ -253,6 +257,7 @@ def cmd_review(args: argparse.Namespace) -> int:
         print(f"timbersheets: the schedule changed after the last run for {', '.join(stale)}; "
               f"run it again so the sheets show what you check", file=sys.stderr)
         return 2
+    refuse_unexplained_ok(args.verdict, args.comment, {m: members[m]["status"] for m in marks})
     records = [Review(m, args.by, today(), args.verdict, args.comment, members[m]["inputs_hash"], project.revision)
                for m in marks]
     append_reviews(project.folder, records)

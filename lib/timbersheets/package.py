@@ -23,7 +23,7 @@ from . import __version__
 from .data import DataSet
 from .pipeline import XELATEX, ConversionError, templates_dir
 from .project import Project
-from .review import titleblock_text
+from .review import count_text, standing, titleblock_text
 from .revisions import MemberChange
 from .sheets import CAUTION
 from .symbols import ACTION_WORDS
@@ -131,8 +131,8 @@ def package_tex(project: Project, doc: dict[str, Any], data: DataSet, outdir: Pa
         "codes": {k: escape(v) for k, v in project.codes.items()},
         "counts": counts, "members": rows, "notes": notes,
         "unverified": len({w for m in members for w in m["data_warnings"]}),
-        "unchecked": sum(1 for m in members if (m.get("review") or {}).get("status") != "checked"),
-        "checked": sum(1 for m in members if (m.get("review") or {}).get("status") == "checked"),
+        "review_counts": escape(count_text([m.get("review") or {"status": "not-checked"} for m in members])),
+        "all_checked_ok": all(standing(m.get("review") or {"status": "not-checked"}) == "ok" for m in members),
         "previous": escape(doc.get("previous_revision") or ""), "changes": change_rows(changes),
         "chart": chart, "caution": escape(SHORT_CAUTION), "caution_long": escape(CAUTION),
         "tool_version": f"timbersheets {__version__}", "data_hash": data.hash.split(":")[1][:12],

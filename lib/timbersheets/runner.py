@@ -27,7 +27,7 @@ from .progress import Progress
 from .project import Project, load_project
 from .fileio import write_csv
 from .results import member_json, results_doc, write_results
-from .review import latest, read_reviews, status, titleblock_text
+from .review import comment_text, latest, read_reviews, status, titleblock_text
 from .revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
 from .schedule import load_schedule
 from .sheetjobs import SheetOutcome, SheetTask, from_cache, run_sheet
@@ -96,7 +96,7 @@ def revision_dir(project: Project, out: Path | None) -> Path:
 
 
 def titleblock(project: Project, design: MemberDesign, data: DataSet, checked: str = "not checked",
-               changed_since: str | None = None) -> dict[str, str]:
+               changed_since: str | None = None, review_comment: str = "") -> dict[str, str]:
     """Title block fields for one sheet, escaped for LaTeX."""
     f = project.fields
     m = design.member
@@ -107,6 +107,7 @@ def titleblock(project: Project, design: MemberDesign, data: DataSet, checked: s
         "mark": design.mark, "description": short, "date": f["date"],
         "revision": f["revision"] + (f", changed since {changed_since}" if changed_since else ""),
         "designed": f["designer"], "checked": checked, "engineer": f["engineer"],
+        "review_comment": review_comment,
         "tool_version": f"timbersheets {__version__}",
         "inputs_hash": (m.inputs_hash.split(":")[1][:12] if m else ""),
         "data_hash": data.hash.split(":")[1][:12],
@@ -129,8 +130,8 @@ def sheet_tasks(project: Project, designs: list[MemberDesign], data: DataSet, ou
                   "materials": str(project.materials) if project.materials else ""}
         sheet = outdir / "sheets" / f"{d.mark}.{opts.fmt}" if opts.sheets else None
         info = (extra or {}).get(d.mark, {})
-        block = titleblock(project, d, data, titleblock_text(info.get("review", {"status": "not-checked"})),
-                           info.get("changed_since"))
+        review = info.get("review", {"status": "not-checked"})
+        block = titleblock(project, d, data, titleblock_text(review), info.get("changed_since"), comment_text(review))
         tasks.append(SheetTask(d.mark, template, params, block, data.hash, cache,
                                outdir / "notebooks" / f"{d.mark}.ipynb", sheet, opts.fmt, opts.force,
                                project.folder.resolve()))
