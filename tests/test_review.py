@@ -50,7 +50,7 @@ def test_revise_counts_the_same_on_cover_index_and_status(job, capsys):
     assert review(job, "--mark", "OK-2", "--by", "RD", "--verdict", "revise", "--comment", "use 38x184") == 0
     run_job(folder, RunOptions(out=out, sheets=False, progress=False))  # the verdicts into results.json
     doc = json.loads((out / "rev-A" / "results.json").read_text())
-    expected = "1 of 4 members checked ok; 1 to revise; 2 not checked"
+    expected = "1 of 4 members checked ok, 1 to revise, 2 not checked"
     assert count_text([m["review"] for m in doc["members"]]) == expected
 
     capsys.readouterr()

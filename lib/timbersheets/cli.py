@@ -91,6 +91,12 @@ def _parser() -> argparse.ArgumentParser:
                         help="a note for the designer, printed on the sheet; required for ok on a member that "
                              "fails or has an error")
     review.add_argument("--out", type=Path, metavar="OUTDIR", help="the folder holding rev-<R>/ (as given to run --out)")
+
+    columns = sub.add_parser("columns", help="the schedule column reference: meaning, unit, default, allowed values",
+                             description="Print every schedule column with its meaning, unit, default and allowed "
+                                         "values, from the column table in the code.",
+                             epilog="Exit status: 0.")
+    columns.add_argument("--markdown", action="store_true", help="print it as the Markdown table of docs/columns.md")
     return p
 
 
@@ -266,7 +272,15 @@ def cmd_review(args: argparse.Namespace) -> int:
     return 0
 
 
-COMMANDS = {"new": cmd_new, "run": cmd_run, "size": cmd_size, "diff": cmd_diff, "review": cmd_review}
+def cmd_columns(args: argparse.Namespace) -> int:
+    from .columnref import markdown, text
+
+    print(markdown() if args.markdown else text(), end="")
+    return 0
+
+
+COMMANDS = {"new": cmd_new, "run": cmd_run, "size": cmd_size, "diff": cmd_diff, "review": cmd_review,
+            "columns": cmd_columns}
 
 
 def main(argv: list[str] | None = None) -> int:

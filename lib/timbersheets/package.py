@@ -81,11 +81,9 @@ def member_rows(members: list[dict[str, Any]], outdir: Path, first: int = 1,
         flags = []
         if m.get("changed_since"):
             flags.append(f"changed since {m['changed_since']}")
-        if not sheet.exists() and m["status"] != "error":
-            flags.append("no current sheet")
         rows.append({
             "mark": escape(m["mark"]), "plain": m["mark"], "anchor": f"m{i}",
-            "description": escape(note[:110] + ("..." if len(note) > 110 else "")),
+            "description": escape(shorten(note)),
             "size": escape(m.get("size") or ""),
             "governing": _governing(m),
             "utilization": "--" if m.get("utilization") is None or m["status"] == "error" else f"{m['utilization']:.3f}",
@@ -100,6 +98,34 @@ def member_rows(members: list[dict[str, Any]], outdir: Path, first: int = 1,
         if m["errors"]:
             notes.append(f"{escape(m['mark'])}: {escape(m['errors'][0])}")
     return rows, notes
+
+
+def shorten(text: str, limit: int = 200) -> str:
+    """Text of at most `limit` characters, cut only between words (then an ellipsis)."""
+    if len(text) <= limit:
+        return text
+    return text[:limit - 1].rsplit(" ", 1)[0].rstrip(" ,;:") + "\u2026"
+
+
+def plural(n: int, one: str, many: str) -> str:
+    """'1 member', '2 members'."""
+    return f"{n} {one if n == 1 else many}"
+
+
+def cover_lines(project: Project, counts: dict[str, int], review_counts: str) -> dict[str, str]:
+    """The cover's and index's sentences about the members, in plain grammar (escaped).
+
+    `review_counts` is review.count_text: the one count of verdicts, also used by review --status.
+    """
+    total = counts["total"]
+    checker = project.fields["checker"] or "not named"
+    members = (f"{plural(total, 'member', 'members')}: {counts['pass']} {'passes' if counts['pass'] == 1 else 'pass'}, "
+               f"{counts['fail']} {'does' if counts['fail'] == 1 else 'do'} not pass, {counts['error']} not designed")
+    return {
+        "checker": escape(f"{checker} ({review_counts})"),
+        "members": escape(members),
+        "unchecked": escape(f"Review: {review_counts}."),
+    }
 
 
 def change_rows(changes: list[MemberChange]) -> list[dict[str, str]]:
@@ -126,13 +152,15 @@ def package_tex(project: Project, doc: dict[str, Any], data: DataSet, outdir: Pa
     counts = {"total": len(members), "pass": 0, "fail": 0, "error": 0}
     for m in members:
         counts[m["status"]] += 1
+    states = [m.get("review") or {"status": "not-checked"} for m in members]
+    review_counts = count_text(states)
+    all_ok = all(standing(s) == "ok" for s in states)
     context: dict[str, Any] = {
         "project": {k: escape(v) for k, v in project.fields.items()},
         "codes": {k: escape(v) for k, v in project.codes.items()},
         "counts": counts, "members": rows, "notes": notes,
         "unverified": len({w for m in members for w in m["data_warnings"]}),
-        "review_counts": escape(count_text([m.get("review") or {"status": "not-checked"} for m in members])),
-        "all_checked_ok": all(standing(m.get("review") or {"status": "not-checked"}) == "ok" for m in members),
+        "unchecked": not all_ok, "lines": cover_lines(project, counts, review_counts),
         "previous": escape(doc.get("previous_revision") or ""), "changes": change_rows(changes),
         "chart": chart, "caution": escape(SHORT_CAUTION), "caution_long": escape(CAUTION),
         "tool_version": f"timbersheets {__version__}", "data_hash": data.hash.split(":")[1][:12],

@@ -111,14 +111,14 @@ def standing(state: dict[str, str]) -> str:
 
 
 def count_text(states: list[dict[str, str]]) -> str:
-    """"3 of 5 members checked ok; 1 to revise; 1 not checked", as the cover, index and review --status say it."""
+    """"3 of 5 members checked ok, 1 to revise, 1 not checked", as the cover, index and review --status say it."""
     counts = {k: 0 for k in STANDINGS}
     for state in states:
         counts[standing(state)] += 1
     noun = "member" if len(states) == 1 else "members"
     parts = [f"{counts['ok']} of {len(states)} {noun} checked ok"]
     parts += [f"{counts[k]} {STANDING_WORDS[k]}" for k in STANDINGS[1:] if counts[k]]
-    return "; ".join(parts)
+    return ", ".join(parts)
 
 
 def comment_text(state: dict[str, str]) -> str:

@@ -15,9 +15,14 @@ from functools import lru_cache
 
 import pint
 
-ureg = pint.UnitRegistry()
-ureg.formatter.default_format = "~"
-Q_ = ureg.Quantity
+
+@lru_cache(maxsize=1)
+def registry() -> pint.UnitRegistry:
+    """The program's one pint registry, built on first use (building it takes a noticeable fraction of a second)."""
+    ureg = pint.UnitRegistry()
+    ureg.formatter.default_format = "~"
+    return ureg
+
 
 #: Units the engineering arithmetic works in, by dimension name.
 COMPUTE_UNITS = {
@@ -78,6 +83,7 @@ class UnitParseError(ValueError):
 @lru_cache(maxsize=256)
 def unit(text: str) -> pint.Unit:
     """The pint unit for `text` ("" is dimensionless)."""
+    ureg = registry()
     return ureg.Unit(text) if text else ureg.dimensionless
 
 
@@ -120,7 +126,7 @@ def parse_quantity(text: str, default_unit: str) -> float:
         raise UnitParseError(
             f"has unit '{unit_text}', which is not a {_dimension(default_unit)[0]}; write e.g. {example(default_unit)}"
         )
-    return float(Q_(number, given).to(target).magnitude)
+    return float(registry().Quantity(number, given).to(target).magnitude)
 
 
 def _read_unit(text: str, default_unit: str) -> pint.Unit:
@@ -132,7 +138,7 @@ def _read_unit(text: str, default_unit: str) -> pint.Unit:
     unknown = UnitParseError(f"has an unknown unit '{text}'; write e.g. {example(default_unit)}")
     text = _ALIASES.get(text, text)
     parts = _UNIT_JOIN.split(text)
-    result = ureg.dimensionless
+    result = registry().dimensionless
     for position, part in enumerate(parts):
         if position % 2:
             continue
@@ -142,7 +148,7 @@ def _read_unit(text: str, default_unit: str) -> pint.Unit:
         name, power, superscript = factor.groups()
         name = _ALIASES.get(name, name)
         try:
-            named = ureg.Unit(name)
+            named = registry().Unit(name)
         except Exception:  # pint raises several kinds for a name it does not know
             raise unknown from None
         power_value = int(power) if power else {"²": 2, "³": 3}.get(superscript, 1)
@@ -163,7 +169,7 @@ def _dimension(default_unit: str) -> tuple[str, str]:
 @lru_cache(maxsize=256)
 def _factor(from_unit: str, to_unit: str) -> float:
     """The multiplier from one unit to another (pint, once per pair)."""
-    return float(Q_(1.0, unit(from_unit)).to(unit(to_unit)).magnitude)
+    return float(registry().Quantity(1.0, unit(from_unit)).to(unit(to_unit)).magnitude)
 
 
 def convert(value: float, from_unit: str, to_unit: str) -> float:
