@@ -55,7 +55,10 @@ def _parser() -> argparse.ArgumentParser:
                      help="sheet format: pdf (xelatex) or html (needs no TeX); default pdf")
     run.add_argument("--scale", action="append", metavar="TYPE=FACTOR", default=[],
                      help="what-if: scale a load type (D, L, S, W, E), e.g. S=1.2; repeatable. Reports which "
-                          "members would fail or change governing case, and writes nothing")
+                          "members would fail or change governing case, and writes nothing. Members with size = auto "
+                          "keep the sections sized for the scheduled loads")
+    run.add_argument("--resize", action="store_true",
+                     help="with --scale: size the auto members again for the scaled loads and show the new sections")
 
     size = sub.add_parser("size", help="size members: the lightest standard section that passes, and runners-up",
                           description="Search the standard catalogue (sawn dimension lumber in 1 to 4 plies, timbers, "
@@ -121,6 +124,9 @@ def cmd_run(args: argparse.Namespace) -> int:
 
     if args.scale:
         return cmd_what_if(args)
+    if args.resize:
+        print("timbersheets: --resize goes with --scale (a what-if); a run always sizes auto members", file=sys.stderr)
+        return 2
     only = [m.strip() for m in args.only.split(",") if m.strip()] if args.only else None
     from .runner import RunOptions
 
@@ -153,15 +159,25 @@ def cmd_what_if(args: argparse.Namespace) -> int:
     except ValueError as exc:
         print(f"timbersheets: {exc}", file=sys.stderr)
         return 2
-    rows = what_if(args.dir, scales)
+    rows = what_if(args.dir, scales, resize=args.resize)
     label = ", ".join(f"{k} x {v:g}" for k, v in scales.items())
     print(f"what-if ({label}); nothing is written")
-    changed = [r for r in rows if r.flipped or r.governing_changed]
+    auto = [r for r in rows if r.auto and r.before.size]
+    if auto and args.resize:
+        print("auto members sized again for the scaled loads: "
+              + ", ".join(f"{r.mark} {r.before.size} -> {r.after.size}" for r in auto))
+    elif auto:
+        print("auto members keep the sections sized for the scheduled loads (--resize sizes them again): "
+              + ", ".join(f"{r.mark} {r.before.size}" for r in auto))
+    changed = [r for r in rows if r.flipped or r.governing_changed or r.resized]
     for r in rows:
         b, a = r.before.governing, r.after.governing
         if not (b and a) or r.before.errors or r.after.errors:
             continue
         note = "VERDICT FLIPS" if r.flipped else "governing case changes" if r.governing_changed else ""
+        if r.resized:
+            note = f"{note}; " if note else ""
+            note += f"section {r.before.size} -> {r.after.size}"
         print(f"  {r.mark:<12} {round_utilization(b.utilization):6.3f} -> {round_utilization(a.utilization):6.3f}  "
               f"{r.before.status:>4} -> {r.after.status:<4} {a.check} under {a.combination}  {note}")
     print(f"{sum(r.flipped for r in rows)} verdict(s) flip, {len(changed)} member(s) change")
