@@ -47,3 +47,19 @@ def test_help_is_specific_to_each_command():
         assert "Exit status:" in text, command
     for command in ("diff", "review"):
         assert "--out OUTDIR" in cli(command, "--help").stdout, command
+
+
+def test_outputs_go_by_where_the_job_is_never_by_where_the_command_runs(tmp_path):
+    from conftest import member_row, write_job
+
+    elsewhere = tmp_path / "somewhere-else"
+    elsewhere.mkdir()
+    loose = write_job(tmp_path / "jobs" / "loose-job", [member_row("C-1")])
+    kept = write_job(tmp_path / "repo" / "calcsheets" / "kept-job", [member_row("C-1")])
+    for job, expected in ((loose, loose / "outputs" / "rev-A"),
+                          (kept, tmp_path / "repo" / "outputs" / "kept-job" / "rev-A")):
+        done = cli("run", str(job), "--no-pdf", cwd=elsewhere)
+        assert done.returncode == 0, done.stderr
+        assert (expected / "results.json").exists()
+        assert done.stdout.splitlines()[-1] == f"outputs: {expected.resolve()}"  # printed at the end
+    assert not any(elsewhere.iterdir())  # nothing where the command was run

@@ -14,6 +14,7 @@ from pathlib import Path
 from . import __version__
 from .errors import TimbersheetsError
 from .review import VERDICTS
+from .project import OUTPUT_RULE
 
 EPILOG = "Exit status: 0 all members pass; 1 a member fails or has an error; 2 the job is unusable."
 SIZE_EPILOG = "Exit status: 0 every member named has a passing section; 1 one has none; 2 the job is unusable."
@@ -39,12 +40,13 @@ def _parser() -> argparse.ArgumentParser:
 
     run = sub.add_parser("run", help="validate the schedule, design every member, write the outputs",
                          description="Validate every row of DIR/schedule.csv, design every member and write "
-                                     "outputs/<job>/rev-<R>/: results.json, summary.csv, run.log.",
+                                     "rev-<R>/ (results.json, summary.csv, run.log, sheets, package.pdf) in "
+                                     f"{OUTPUT_RULE}. The folder is printed at the end.",
                          epilog=EPILOG)
     run.add_argument("dir", type=Path, help="the job folder (holds project.toml and schedule.csv)")
     run.add_argument("--no-pdf", action="store_true", help="write results only; no notebooks or PDFs")
     run.add_argument("--out", type=Path, metavar="OUTDIR",
-                     help="put the revision folder in OUTDIR/rev-<R>/ instead of outputs/<job>/")
+                     help="put the revision folder in OUTDIR/rev-<R>/ instead")
     run.add_argument("--only", metavar="MARKS",
                      help="comma-separated marks whose notebooks and sheets to make; every member is still designed "
                           "and listed in results.json, and the others keep the sheets of the last run of this "
@@ -146,7 +148,8 @@ def cmd_run(args: argparse.Namespace) -> int:
     if report.package_error:
         print(f"error: package.pdf was not written: {report.package_error}", file=sys.stderr)
     c = report.counts()
-    print(f"{c['pass']} pass, {c['fail']} fail, {c['error']} error -> {report.outdir}")
+    print(f"{c['pass']} pass, {c['fail']} fail, {c['error']} error")
+    print(f"outputs: {report.outdir.resolve()}")
     return report.exit_code
 
 

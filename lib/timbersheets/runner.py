@@ -79,16 +79,18 @@ class RunReport:
         return [m for m, s in self.sheets.items() if s.converted]
 
 
-def default_outputs(folder: Path) -> Path:
-    """``outputs/`` beside ``calcsheets/`` for a job kept there, else ./outputs."""
-    folder = folder.resolve()
-    if folder.parent.name == "calcsheets":
-        return folder.parent.parent / "outputs"
-    return Path.cwd() / "outputs"
-
-
 def job_dir(project: Project, out: Path | None) -> Path:
-    return out if out is not None else default_outputs(project.folder) / project.name
+    """The folder holding a job's rev-<R>/ folders: `out`, else project.OUTPUT_RULE.
+
+    The rule depends only on where the job folder is, never on where the command
+    is run from, so run, diff and review always agree.
+    """
+    if out is not None:
+        return out
+    folder = project.folder.resolve()
+    if folder.parent.name == "calcsheets":
+        return folder.parent.parent / "outputs" / folder.name
+    return folder / "outputs"
 
 
 def revision_dir(project: Project, out: Path | None) -> Path:
