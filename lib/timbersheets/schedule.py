@@ -23,7 +23,7 @@ from .errors import JobError, ParameterError, ScheduleError
 from .membertypes import member_type, member_types
 from .materials import GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, sawn_table_grade
 from .sections import Section, parse_size, sawn_category
-from .units import UnitParseError, convert, parse_quantity
+from .units import UnitParseError, convert, example, parse_quantity
 
 LOAD_TYPES = ("D", "L", "S", "W", "E")
 MARK = re.compile(r"^[A-Za-z0-9._-]+$")
@@ -401,7 +401,7 @@ def _allowed(col: Column) -> str:
         return beamloads.ALLOWED[col.kind]
     if col.kind == "quantity":
         bound = "greater than 0" if col.strict else "0 or more" if col.minimum is not None else "any sign"
-        return f"a number in {col.unit} ({bound}), or with its own unit, e.g. '12 ft'"
+        return f"a number in {col.unit} ({bound}), or with its own unit, e.g. {example(col.unit)}"
     if col.kind == "number":
         bound = "greater than 0" if col.strict else "0 or more"
         return f"a plain number ({bound})"
