@@ -159,8 +159,8 @@ def cmd_size(args: argparse.Namespace) -> int:
     from .sizing import size
 
     project = load_project(args.dir)
-    schedule = load_schedule(project.schedule_path)
     data = DataSet(project.materials)
+    schedule = load_schedule(project.schedule_path, data)
     members = {m.mark: m for m in schedule.members}
     marks = args.mark or [m.mark for m in schedule.members if m.size == "auto"]
     unknown = [m for m in marks if m not in members]
@@ -236,7 +236,9 @@ def cmd_review(args: argparse.Namespace) -> int:
     if unknown:
         print(f"timbersheets: not in rev {project.revision}: {', '.join(unknown)}", file=sys.stderr)
         return 2
-    current = {m.mark: m.inputs_hash for m in load_schedule(project.schedule_path).members}
+    from .data import DataSet
+
+    current = {m.mark: m.inputs_hash for m in load_schedule(project.schedule_path, DataSet(project.materials)).members}
     stale = [m for m in marks if current.get(m) != members[m].get("inputs_hash")]
     if stale:
         print(f"timbersheets: the schedule changed after the last run for {', '.join(stale)}; "

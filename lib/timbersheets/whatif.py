@@ -54,8 +54,8 @@ def scaled(member: Member, scales: dict[str, float]) -> Member:
 def what_if(folder: Path, scales: dict[str, float]) -> list[WhatIf]:
     """Every member designed as scheduled and with its loads scaled."""
     project = load_project(folder)
-    schedule = load_schedule(project.schedule_path)
     data = DataSet(project.materials)
+    schedule = load_schedule(project.schedule_path, data)
     before = design_all(schedule.entries, data)
     after = design_all([scaled(e, scales) if isinstance(e, Member) else e for e in schedule.entries], data)
     return [WhatIf(b.mark, b, a) for b, a in zip(before, after)]
