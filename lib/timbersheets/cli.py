@@ -80,6 +80,23 @@ def _parser() -> argparse.ArgumentParser:
     review.add_argument("--verdict", choices=VERDICTS, help="ok, or revise (needs changes)")
     review.add_argument("--comment", default="", help="a note for the designer")
     review.add_argument("--out", type=Path, help="the folder holding rev-<R>/ (as given to run --out)")
+
+    data = sub.add_parser("data", help="list the data values a job uses, for checking against the standard",
+                          description="List every tabled value (specified strengths, modification and resistance "
+                                      "factors, load combination rows) the job's members use, grouped by table, with "
+                                      "its source, status and the members that use it. A firm checks them once, in "
+                                      "the file --firm-file writes, and names it in project.toml ([data] materials).",
+                          epilog=EPILOG)
+    data.add_argument("dir", type=Path, nargs="?", help="the job folder (not needed with --all or --compare)")
+    data.add_argument("--all", action="store_true", help="list every value of the built-in tables instead")
+    data.add_argument("--csv", action="store_true", help="write the list as CSV to standard output")
+    data.add_argument("--sheet", action="store_true",
+                      help="typeset the list as a verification sheet (PDF) with columns for the checker")
+    data.add_argument("--firm-file", type=Path, metavar="FILE",
+                      help="write a firm data file holding the values the job uses, status to-verify")
+    data.add_argument("--compare", type=Path, metavar="FILE",
+                      help="list where a firm data file differs from the built-in data")
+    data.add_argument("--out", type=Path, help="with --sheet: the folder for the PDF (default outputs/<job>/)")
     return p
 
 
@@ -252,7 +269,53 @@ def cmd_review(args: argparse.Namespace) -> int:
     return 0
 
 
-COMMANDS = {"new": cmd_new, "run": cmd_run, "size": cmd_size, "diff": cmd_diff, "review": cmd_review}
+def cmd_data(args: argparse.Namespace) -> int:
+    from .data import DataSet
+    from .datacheck import all_items, compare, csv_text, format_list, job_designs, used_items, write_firm_file
+
+    if args.compare:
+        lines, _ = compare(args.compare)
+        print("\n".join(lines))
+        return 0
+    if args.all:
+        data, items, title, project = DataSet(), all_items(DataSet()), "built-in data", None
+    elif args.dir is None:
+        print("timbersheets: data needs a job folder DIR (or --all, or --compare FILE)", file=sys.stderr)
+        return 2
+    else:
+        from .project import load_project
+
+        project = load_project(args.dir)
+        data, designs = job_designs(project)
+        items = used_items(data, designs)
+        title = f"{project.name} rev {project.revision}: data values used by {len(designs)} members"
+        if data.firm:
+            for e in data.firm.errors:
+                print(f"error: {e}", file=sys.stderr)
+    if args.csv:
+        sys.stdout.write(csv_text(items))
+    elif not (args.firm_file or args.sheet):
+        print(format_list(items, title))
+    if args.firm_file:
+        count = write_firm_file(args.firm_file, items)
+        print(f"wrote {count} values to {args.firm_file}, each with status to-verify")
+        print("next: check each value against your licensed copy of the standard; correct it where the standard "
+              "differs; set status verified with verified_by, verified_on and edition; then name the file in "
+              "project.toml: [data] materials = \"...\"")
+    if args.sheet:
+        if project is None:
+            print("timbersheets: --sheet needs a job folder DIR", file=sys.stderr)
+            return 2
+        from .datasheet import write_sheet
+        from .runner import job_dir
+
+        pdf = write_sheet(project, data, items, job_dir(project, args.out))
+        print(f"written: {pdf}")
+    return 0
+
+
+COMMANDS = {"new": cmd_new, "run": cmd_run, "size": cmd_size, "diff": cmd_diff, "review": cmd_review,
+            "data": cmd_data}
 
 
 def main(argv: list[str] | None = None) -> int:

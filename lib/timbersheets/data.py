@@ -97,6 +97,7 @@ class Datum:
     key: str = ""  # the row's key in that table (see key_text)
     column: str = "value"
     unit: str = "-"
+    edition: str = ""
     firm: str = ""  # the firm file that supplied the value, if one did
     builtin: float | None = None  # the built-in value, when the firm's value differs from it
     verified_by: str = ""
@@ -251,8 +252,34 @@ class DataSet:
         spec = TABLES.get(file.name)
         unit = row.get("unit", "").strip() or (spec.unit if spec else "-")
         base = Datum(value, label, _table(row), row.get("source", "").strip(), row.get("status", "").strip(),
-                     file.name, symbol or label.split(" ")[0], file.name, key_text(file.name, row), column, unit)
+                     file.name, symbol or label.split(" ")[0], file.name, key_text(file.name, row), column, unit,
+                     row.get("edition", "").strip())
         return provenance(base, row, spec)
+
+    def value_datums(self, datum: Datum) -> list[Datum]:
+        """The values a checker ticks for `datum`: itself, the parts of a derived value, or
+        each load factor of a combination row."""
+        out = []
+        for d in datum.tabled():
+            spec = TABLES.get(d.data)
+            if spec is None or d.column in spec.values:
+                out.append(d)
+                continue
+            file = self.files[d.data]
+            row = next(r for r in file.rows if key_text(d.data, r) == d.key)
+            out += [self._datum(file, row, f"{d.label}, factor on {c}", c, c) for c in spec.values]
+        return out
+
+    def all_datums(self) -> list[Datum]:
+        """Every value of every table a firm file can supply, in file order."""
+        out = []
+        for name, spec in TABLES.items():
+            file = self.files[name]
+            for row in file.rows:
+                label = " ".join(row.get(k, "").strip() for k in spec.keys)
+                out += [self._datum(file, row, f"{label} {c}" if len(spec.values) > 1 else label, c, c)
+                        for c in spec.values]
+        return out
 
     def _find(self, file_name: str, label: str, column: str = "value", **key: str) -> Datum:
         memo = self.__dict__.setdefault("_memo", {})

@@ -354,7 +354,7 @@ def provenance(base: Datum, row: dict, spec: TableSpec | None) -> Datum:
     original = row.get("_builtin", {}).get(base.column)
     builtin = float(original) if original is not None and float(original) != base.value else None
     first = rows[0]
-    return replace(base, table=first.where or base.table, source=first.source or "firm data file",
+    return replace(base, table=first.where or base.table, edition=first.edition or base.edition, source=first.source or "firm data file",
                    status=status, file=first.file, firm=first.file, builtin=builtin,
                    verified_by="; ".join(dict.fromkeys(r.verified_by for r in rows if r.verified_by)),
                    verified_on="; ".join(dict.fromkeys(r.verified_on for r in rows if r.verified_on)))

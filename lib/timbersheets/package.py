@@ -129,6 +129,8 @@ def package_tex(project: Project, doc: dict[str, Any], data: DataSet, outdir: Pa
         "codes": {k: escape(v) for k, v in project.codes.items()},
         "counts": counts, "members": rows, "notes": notes,
         "unverified": len({w for m in members for w in m["data_warnings"]}),
+        "firm": escape(data.firm.description) if data.firm else "",
+        "corrections": len({c for m in members for c in m.get("data_corrections", [])}),
         "unchecked": sum(1 for m in members if (m.get("review") or {}).get("status") != "checked"),
         "checked": sum(1 for m in members if (m.get("review") or {}).get("status") == "checked"),
         "previous": escape(doc.get("previous_revision") or ""), "changes": change_rows(changes),
