@@ -93,7 +93,8 @@ def ordered(data: DataSet, items: list[Item]) -> list[Item]:
     def sort_key(item: Item):
         d = item.datum
         col = columns.get(d.data, (d.column,))
-        return (_natural(d.table), d.data, position.get((d.data, d.key), 0),
+        number = d.table.removeprefix(d.edition).strip().removeprefix("Table ").removeprefix("Cl. ")
+        return (d.edition, _natural(number), d.data, position.get((d.data, d.key), 0),
                 col.index(d.column) if d.column in col else 0)
 
     return sorted(items, key=sort_key)
@@ -111,7 +112,7 @@ def groups(items: list[Item]) -> list[tuple[str, list[Item]]]:
 
 
 def counts(items: list[Item]) -> dict[str, int]:
-    out = {"values": len(items), "unverified": 0, "verified": 0, "sourced": 0}
+    out = {"total": len(items), "unverified": 0, "verified": 0, "sourced": 0}
     for i in items:
         out["verified" if i.datum.status == "verified" else "sourced" if i.datum.verified else "unverified"] += 1
     return out
@@ -120,7 +121,7 @@ def counts(items: list[Item]) -> dict[str, int]:
 def format_list(items: list[Item], title: str) -> str:
     """The list as text, one block per table."""
     c = counts(items)
-    lines = [f"{title}: {c['values']} values; {c['unverified']} unverified, {c['verified']} verified by the firm, "
+    lines = [f"{title}: {c['total']} values; {c['unverified']} unverified, {c['verified']} verified by the firm, "
              f"{c['sourced']} read in a published source"]
     for heading, members in groups(items):
         lines += ["", heading]
