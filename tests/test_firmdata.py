@@ -56,7 +56,7 @@ def all_verified(job: Path, drop: str = "") -> None:
     """Write the job's firm file with the tool, then mark every row verified (what the engineer does)."""
     project = load_project(job)
     data, designs = job_designs(project)
-    rows = [verified(r) for r in firm_rows(used_items(data, designs)) if r["item"] != drop]
+    rows = [verified(r, edition=r["edition"]) for r in firm_rows(used_items(data, designs)) if r["item"] != drop]
     (job / "firm.csv").write_text(firm_csv(rows), encoding="utf-8")
     with (job / "project.toml").open("a", encoding="utf-8") as f:
         f.write("\n" + FIRM_LINE)

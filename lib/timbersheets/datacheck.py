@@ -151,7 +151,7 @@ def firm_rows(items: list[Item]) -> list[dict[str, object]]:
         d = i.datum
         if d.data not in TABLES:
             continue  # sizes are a catalogue, not values of the standard
-        table = d.table.removeprefix(d.edition).strip().removeprefix("Table ").removeprefix("Cl. ")
+        table = d.table.removeprefix(d.edition).strip().removeprefix("Table ")
         done = d.firm and d.status == "verified"
         out.append({"data": d.data.removesuffix(".csv"), "key": d.key, "column": d.column, "value": d.value,
                     "unit": d.unit, "edition": d.edition, "table": table, "source": d.source,
