@@ -81,6 +81,11 @@ def _parser() -> argparse.ArgumentParser:
     review.add_argument("--comment", default="", help="a note for the designer")
     review.add_argument("--out", type=Path, help="the folder holding rev-<R>/ (as given to run --out)")
 
+    columns = sub.add_parser("columns", help="the schedule column reference: meaning, unit, default, allowed values",
+                             description="Print every schedule column with its meaning, unit, default and allowed "
+                                         "values, from the column table in the code.", epilog=EPILOG)
+    columns.add_argument("--markdown", action="store_true", help="print it as the Markdown table of docs/columns.md")
+
     data = sub.add_parser("data", help="list the data values a job uses, for checking against the standard",
                           description="List every tabled value (specified strengths, modification and resistance "
                                       "factors, load combination rows) the job's members use, grouped by table, with "
@@ -314,8 +319,15 @@ def cmd_data(args: argparse.Namespace) -> int:
     return 0
 
 
+def cmd_columns(args: argparse.Namespace) -> int:
+    from .columnref import markdown, text
+
+    print(markdown() if args.markdown else text(), end="")
+    return 0
+
+
 COMMANDS = {"new": cmd_new, "run": cmd_run, "size": cmd_size, "diff": cmd_diff, "review": cmd_review,
-            "data": cmd_data}
+            "columns": cmd_columns, "data": cmd_data}
 
 
 def main(argv: list[str] | None = None) -> int:
