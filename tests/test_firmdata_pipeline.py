@@ -2,12 +2,17 @@
 
 from __future__ import annotations
 
+import csv
+import json
 import re
+import shutil
 import subprocess
+import sys
 from pathlib import Path
 
 import pytest
 
+from conftest import REPO
 from test_firmdata import firm_csv, tension_job, verified
 from timbersheets.datacheck import firm_rows, job_designs, used_items
 from timbersheets.datasheet import write_sheet
@@ -70,3 +75,35 @@ def test_verification_sheet_holds_every_value_the_job_uses(verified_job, tmp_pat
                 if keys.get("species") else item.what)
         pattern = re.compile(re.escape(what) + r"\s+" + re.escape(f"{item.datum.value:g}") + r"\s")
         assert any(pattern.search(line) for line in lines), (what, item.datum.value)
+
+
+def readme_data_steps() -> list[str]:
+    text = (REPO / "README.md").read_text(encoding="utf-8")
+    section = text.split("## Verified data", 1)[1]
+    block = re.search(r"```sh\n(.*?)```", section, re.S).group(1)
+    return [line.split("  #")[0].strip() for line in block.splitlines() if line.strip()]
+
+
+def test_readme_steps_reach_zero_unverified_values(tmp_path):
+    root = tmp_path / "repo"
+    shutil.copytree(REPO / "calcsheets", root / "calcsheets")
+    venv_bin = Path(sys.executable).parent
+    outputs = []
+    for step in readme_data_steps():
+        if step.startswith("# edit"):  # what the engineer does: verify every row (values as the standard gives)
+            firm = root / "calcsheets" / "data-demo" / "firm-data.csv"
+            rows = list(csv.DictReader(firm.open(encoding="utf-8")))
+            firm.write_text(firm_csv([verified(r, edition=r["edition"]) for r in rows]), encoding="utf-8")
+            continue
+        command = step.replace(".venv/bin/", f"{venv_bin}/")
+        if " run " in command:
+            command += " --no-pdf"  # the typeset sheets and cover are checked above, on a smaller job
+        done = subprocess.run(command, shell=True, cwd=root, capture_output=True, text=True)
+        assert done.returncode in (0, 1), (step, done.stderr)  # the demo has one deliberately failing member
+        outputs.append(done.stdout)
+    assert "; 0 unverified" not in outputs[1].splitlines()[0]
+    assert (root / "outputs" / "data-demo" / "data-verification-rev-A.pdf").exists()
+    assert "; 0 unverified," in outputs[-2].splitlines()[0]
+    results = json.loads((root / "outputs" / "data-demo" / "rev-A" / "results.json").read_text())
+    assert all(m["data_warnings"] == [] for m in results["members"])
+    assert any(f.get("name") == "firm-data.csv" for f in results["data"]["files"])
