@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import csv
 import io
+import json
 import shutil
 from pathlib import Path
 
@@ -149,6 +150,17 @@ def test_each_bad_firm_row_is_an_error_naming_file_row_column_and_other_members_
     assert by_mark["T-1"].status == "error"
     assert f"firm.csv, row {bad_row}, column '{column}'" in by_mark["T-1"].errors[0]
     assert by_mark["C-1"].status == "pass"  # Hem-Fir: no value from the bad row
+
+
+def test_run_reports_a_bad_firm_row_and_exits_1_while_the_good_members_are_designed(tmp_path, capsys):
+    job = tension_job(tmp_path, [verified(strength_row("f_v", 1.5)), strength_row("f_t", 5.5, status="")])
+    assert main(["run", str(job), "--no-pdf", "--out", str(tmp_path / "out")]) == 1
+    err = capsys.readouterr().err
+    assert "error: firm.csv, row 3, column 'status'" in err
+    results = json.loads((tmp_path / "out" / "rev-A" / "results.json").read_text())
+    assert {m["mark"]: m["status"] for m in results["members"]} == {"T-1": "error", "C-1": "pass"}
+    firm = next(f for f in results["data"]["files"] if f.get("name") == "firm.csv")
+    assert firm["role"] == "firm data" and firm["values"] == 1 and "row 3" in firm["errors"][0]
 
 
 BAD_FILES = [

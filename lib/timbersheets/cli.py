@@ -134,6 +134,8 @@ def cmd_run(args: argparse.Namespace) -> int:
     report = run_job(args.dir, opts)
     for line in report.schedule_warnings:
         print(f"warning: {line}", file=sys.stderr)
+    for line in report.data_errors:
+        print(f"error: {line}", file=sys.stderr)
     for d in report.designs:
         util = f"{round_utilization(d.governing.utilization):6.3f}" if d.governing and not d.errors else "     -"
         gov = f"{d.governing.check} under {d.governing.combination}" if d.governing and not d.errors else ""
@@ -281,7 +283,7 @@ def cmd_data(args: argparse.Namespace) -> int:
     if args.compare:
         lines, _ = compare(args.compare)
         print("\n".join(lines))
-        return 0
+        return 1 if any(line.startswith("  error:") for line in lines) else 0
     if args.all:
         data, items, title, project = DataSet(), all_items(DataSet()), "built-in data", None
     elif args.dir is None:
@@ -316,7 +318,7 @@ def cmd_data(args: argparse.Namespace) -> int:
 
         pdf = write_sheet(project, data, items, job_dir(project, args.out))
         print(f"written: {pdf}")
-    return 0
+    return 1 if data.firm and data.firm.errors else 0
 
 
 def cmd_columns(args: argparse.Namespace) -> int:

@@ -55,10 +55,11 @@ class RunReport:
     log: list[str] = field(default_factory=list)
     package: Path | None = None
     package_error: str | None = None
+    data_errors: list[str] = field(default_factory=list)  # bad rows of the firm data file
 
     @property
     def exit_code(self) -> int:
-        ok = all(d.status == "pass" for d in self.designs) and not self.package_error
+        ok = all(d.status == "pass" for d in self.designs) and not self.package_error and not self.data_errors
         return EXIT_PASS if ok else EXIT_MEMBERS
 
     def counts(self) -> dict[str, int]:
@@ -254,7 +255,8 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     stage, final = stage_dir(project, opts)
     try:
         warnings = project.warnings + schedule.warnings
-        report = RunReport(project, final, designs, warnings)
+        report = RunReport(project, final, designs, warnings,
+                           data_errors=[str(e) for e in data.firm.errors] if data.firm else [])
         chosen = designs if not opts.only else [d for d in designs if d.mark in set(opts.only)]
         tasks = sheet_tasks(project, chosen, data, stage, opts, extra)
         if tasks and opts.sheets:
@@ -295,7 +297,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                              f"{len(report.executed)} executed, {len(report.converted)} converted "
                              f"({time.monotonic() - started:.1f} s: "
                              + ", ".join(f"{k} {v:.1f} s" for k, v in phases.items()) + ")")
-        report.log += warnings
+        report.log += warnings + report.data_errors
         for d in designs:
             report.log += [f"{d.mark}: {e}" for e in d.errors]
         write_atomic(stage / "run.log", "\n".join(report.log) + "\n")
