@@ -171,6 +171,8 @@ BAD_FILES = [
     ("header-only", ",".join(HEADER) + "\n", "supplies no usable data value"),
     ("empty", "", "supplies no data values"),
     ("no-good-row", firm_csv([strength_row("f_t", 5.5, status="")]), "supplies no usable data value"),
+    ("unclosed-quote", ",".join(HEADER) + f"\nsawn_strengths,{SPF}f_t,value,5.5,MPa,,6.3.1A,S1,to-verify,,,f_t,\"see\n"
+     f"sawn_strengths,{SPF}f_c,value,11.5,MPa,,6.3.1A,S1,to-verify,,,f_c,\n", "runs across lines"),
 ]
 
 

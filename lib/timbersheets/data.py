@@ -428,7 +428,7 @@ class DataSet:
         """One line per unverified value used; the load combinations together on one line."""
         seen: dict[str, None] = {}
         combos: dict[str, Datum] = {}
-        for d in used:
+        for d in (t for u in used for t in u.tabled()):  # a derived value: the tabled values behind it
             if d.verified:
                 continue
             if d.label.startswith("NBC combination "):

@@ -192,6 +192,10 @@ def _validate_row(name: str, number: int, v: dict[str, str], cells: list[str], h
 
     if len(cells) > len(header) and any(c.strip() for c in cells[len(header):]):
         return None, [err("", "", "has more cells than the header has columns")]
+    broken = next((h for h, c in zip(header, cells) if "\n" in c or "\r" in c), None)
+    if broken:  # an unclosed quote swallows the rows after it
+        return None, [err(broken, "", "holds a quoted cell that runs across lines (an unclosed quote?)",
+                          "one line per row; close the quote")]
     data = table_name(v["data"]) if v.get("data") else (f"{v['material']}_strengths.csv" if v.get("material") else "")
     spec = TABLES.get(data)
     if spec is None:
