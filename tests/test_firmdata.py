@@ -135,6 +135,7 @@ BAD_ROWS = [
                        verified(strength_row("f_t", 5.6))], "key", "repeats the value of row 4"),
     ("strength-in-kPa", [verified(strength_row("f_t", 5500))], "value", "out of scale"),
     ("wrong-sign", [verified(strength_row("f_t", -5.5))], "value", "wrong sign"),
+    ("not-a-number", [verified(strength_row("f_t", "nan"))], "value", "not a finite number"),
     ("unknown-unit", [verified(strength_row("f_t", 5.5, unit="psi"))], "unit", "is not the unit"),
 ]
 
@@ -187,19 +188,22 @@ def test_a_firm_file_that_supplies_nothing_is_refused(tmp_path, text, problem, c
     assert not (tmp_path / "out").exists()
 
 
-def test_firm_file_may_add_a_species_that_the_schedule_then_accepts(tmp_path):
+@pytest.mark.parametrize("species,grade", [("Firm-Cedar", "No.1/No.2"), ("S-P-F", "Select")],
+                         ids=["firm-species", "firm-grade"])
+def test_firm_file_may_add_a_species_or_grade_that_the_schedule_then_accepts(tmp_path, species, grade):
     values = {"f_b": 9.0, "f_v": 1.2, "f_c": 10.0, "f_cp": 4.0, "f_t": 5.0, "E": 8000, "E05": 5500}
-    key = "species=Firm-Cedar; grade=No.1/No.2; category=dimension; property="
+    key = f"species={species}; grade={grade}; category=dimension; property="
     rows = [verified({"data": "sawn_strengths", "key": key + p, "value": v, "unit": "MPa"}) for p, v in values.items()]
-    job = write_job(tmp_path / "job", [member_row("T-1", type="tension", species="Firm-Cedar", P_D="5", Ly="")],
-                    extra=FIRM_LINE)
+    job = write_job(tmp_path / "job", [member_row("T-1", type="tension", species=species, grade=grade, P_D="5",
+                                                  Ly="")], extra=FIRM_LINE)
     (job / "firm.csv").write_text(firm_csv(rows), encoding="utf-8")
     data, designs = job_designs(load_project(job))
     assert designs[0].status == "pass", designs[0].errors
     assert designs[0].context.strengths.values["f_t"].value == 5.0
+    assert designs[0].context.strengths.values["f_t"].firm == "firm.csv"
     (job / "project.toml").write_text((job / "project.toml").read_text().replace(FIRM_LINE, ""))
     _, designs = job_designs(load_project(job))
-    assert designs[0].status == "error" and "species" in designs[0].errors[0]
+    assert designs[0].status == "error" and ("species" in designs[0].errors[0] or "grade" in designs[0].errors[0])
 
 
 def test_compare_lists_the_differences_from_the_built_in_data(tmp_path):
