@@ -13,7 +13,7 @@ from __future__ import annotations
 import csv
 import hashlib
 from collections.abc import Iterator, Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import cached_property
 from importlib import resources
 from pathlib import Path
@@ -425,19 +425,20 @@ class DataSet:
     # -- recording -------------------------------------------------------------
     @staticmethod
     def warnings_for(used: list[Datum]) -> list[str]:
-        """One line per unverified value used; the load combinations together on one line."""
+        """One line per unverified value used; the load combinations together on one line
+        (one line per provenance, when a firm file supplies some of them)."""
         seen: dict[str, None] = {}
-        combos: dict[str, Datum] = {}
+        combos: dict[tuple[str, str, str, str], dict[str, Datum]] = {}
         for d in (t for u in used for t in u.tabled()):  # a derived value: the tabled values behind it
             if d.verified:
                 continue
             if d.label.startswith("NBC combination "):
-                combos.setdefault(d.label.split(" ", 2)[2], d)
+                combos.setdefault((d.firm, d.status, d.table, d.file), {}).setdefault(d.label.split(" ", 2)[2], d)
             else:
                 seen[d.warning] = None
-        if combos:
-            first = next(iter(combos.values()))
-            seen[f"NBC combinations {', '.join(combos)}: memory, unverified ({first.table}; {first.file})"] = None
+        for group in combos.values():
+            first = next(iter(group.values()))
+            seen[replace(first, label=f"NBC combinations {', '.join(group)}").warning] = None
         return list(seen)
 
 
