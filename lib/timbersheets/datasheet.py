@@ -12,16 +12,14 @@ import tempfile
 from pathlib import Path
 
 from . import __version__
+from .constants import CAUTION, SHORT_CAUTION
 from .data import DataSet
 from .datacheck import Item, counts, groups
 from .fileio import write_atomic
 from .pipeline import XELATEX, ConversionError, templates_dir
 from .project import Project
-from .sheets import CAUTION
 from .tex import escape
 
-SHORT_CAUTION = ("Review and seal by a licensed professional engineer required; the codes adopted by the "
-                 "authority having jurisdiction govern.")
 MEMBERS_SHOWN = 6
 
 
