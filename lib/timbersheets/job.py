@@ -1,4 +1,4 @@
-"""A job loaded once: project.toml, the schedule, the data tables, every member designed.
+"""A job loaded once: project.toml, the data tables, the schedule, every member designed.
 
 The run, the what-if and the sizing command all start here, so they read and
 design a job the same way (carried loads included).
@@ -7,6 +7,7 @@ design a job the same way (carried loads included).
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import cached_property
 from pathlib import Path
 
 from .data import DataSet
@@ -20,7 +21,11 @@ class Job:
     project: Project
     schedule: Schedule
     data: DataSet
-    designs: list[MemberDesign]  # one per schedule row, in schedule order
+
+    @cached_property
+    def designs(self) -> list[MemberDesign]:
+        """One design per schedule row, in schedule order, made on first use."""
+        return design_all(self.schedule.entries, self.data)
 
     def members(self) -> dict[str, Member]:
         """Valid members by mark, with their carried loads filled in where the design resolved them."""
@@ -30,8 +35,10 @@ class Job:
 
 
 def load_job(folder: Path) -> Job:
-    """Read and validate the job in `folder` and design every member. Raises JobError when unusable."""
+    """Read and validate the job in `folder`; its members are designed when `designs` is first read.
+
+    Raises JobError when the job is unusable.
+    """
     project = load_project(folder)
-    schedule = load_schedule(project.schedule_path)
     data = DataSet(project.materials)
-    return Job(project, schedule, data, design_all(schedule.entries, data))
+    return Job(project, load_schedule(project.schedule_path, data), data)
