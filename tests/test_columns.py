@@ -45,3 +45,10 @@ def test_the_docs_stand_alone():
         for target in re.findall(r"\]\(([^)#\s]+)\)", text):
             if not target.startswith(("http://", "https://")):
                 assert (path.parent / target).exists(), (name, target)
+
+
+def test_results_reference_names_every_command():
+    from timbersheets.cli import COMMANDS
+
+    text = (REPO / "docs" / "results.md").read_text(encoding="utf-8")
+    assert all(f"`{name}`" in text for name in COMMANDS)
