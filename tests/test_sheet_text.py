@@ -2,11 +2,12 @@
 
 from __future__ import annotations
 
+import csv
 import re
 
 import pytest
 
-from conftest import DEMO
+from conftest import DEMO, write_schedule
 from timbersheets.data import DataSet
 from timbersheets.design import design_member
 from timbersheets.schedule import load_schedule
@@ -58,3 +59,45 @@ def test_cautions_name_combinations_as_the_combination_table_numbers_them(demo_m
     body = table[table.index("\\midrule"):table.index("\\bottomrule")]  # the first table
     first_column = [line.split(" & ")[0] for line in body.splitlines() if " & " in line]
     assert first_column == numbers  # the same labels, in the same order (NBC Table 4.1.3.2.-A cases)
+
+
+def demo_variant(tmp_path, mark: str, **cells: str):
+    """A demo member with some cells rewritten, through the real schedule reader."""
+    rows = list(csv.DictReader((DEMO / "schedule.csv").open(encoding="utf-8")))
+    row = {**next(r for r in rows if r["mark"] == mark), **cells}
+    schedule = load_schedule(write_schedule(tmp_path, [row]))
+    assert not schedule.rejected, [str(e) for r in schedule.rejected for e in r.errors]
+    return schedule.members[0]
+
+
+def whole_sheet(sheet: Sheet) -> str:
+    return "".join(getattr(sheet, name)().latex for name in (
+        "member_section", "loads_section", "combinations_section", "factors_section", "checks_section",
+        "summary_section", "cautions"))
+
+
+def test_dimensions_show_as_used_so_products_reproduce(tmp_path):
+    # A 6 in (152.4 mm) deep glulam: hand calculation 175 mm x 152.4 mm = 26670 mm², which a
+    # checker can only reproduce if d is printed as 152.4, not 152.
+    member = demo_variant(tmp_path, "C-1", size="175x152.4")
+    size_row = sheet_of(member).member_section().latex
+    b, d, area = (float(v) for v in re.search(
+        r"\$b = ([\d.]+)\\ \\mathrm\{mm\}\$, \$d = ([\d.]+)\\ \\mathrm\{mm\}\$, \$A_g = ([\d.]+)", size_row).groups())
+    assert (b, d) == (175, 152.4)
+    assert b * d == pytest.approx(area, abs=0.5)
+
+
+def test_imperial_entry_is_shown_as_entered_beside_its_si_value(tmp_path):
+    # 316 in x 25.4 mm/in = 8026.4 mm (exact conversion, common practice)
+    member = demo_variant(tmp_path, "C-1", length="316 inch", Ly="")
+    table = sheet_of(member).member_section().latex
+    assert "As entered & \\texttt{length} 316 inch $= 8026.4\\ \\mathrm{mm}$" in table
+    assert "$L = 8026.4\\ \\mathrm{mm}$" in table
+
+
+@pytest.mark.parametrize("mark", ["J-1", "H-1"])
+def test_no_raw_floats_on_the_sheet(tmp_path, mark):
+    # 1.3335 ft x 304.8 mm/ft = 406.45 mm: printed to 0.1 mm (0.4065 m), never as 0.406451.
+    text = whole_sheet(sheet_of(demo_variant(tmp_path, mark, Lu="1.3335 ft", restraint="")))
+    assert "0.4065 m" in text
+    assert not re.findall(r"\d+\.\d{5,}", text)

@@ -114,6 +114,8 @@ class Sheet:
             rows += self._axial_rows(m, section)
         elif m.type != "bending" and section is not None:
             rows += self._axial_rows(m, section)[:1]  # the span rows above already give the net area
+        if m.entered:
+            rows.append(["As entered", entered_cell(m)])
         if m.note:
             rows.append(["Note", m.note])
         rows.append(["Schedule", f"row {m.row}"])
@@ -377,6 +379,19 @@ def caption_latex(text: str) -> str:
         out += [escape(text[pos:match.start()]), f"${symbol_latex(match.group(0))}$"]
         pos = match.end()
     return "".join(out) + escape(text[pos:])
+
+
+def entered_cell(m: Member) -> Cell:
+    """Cells the schedule wrote in another unit (12 ft, 4.5 kip), as written, beside the value used."""
+    from .schedule import COLUMNS
+
+    latex, text = [], []
+    for name, written in m.entered.items():
+        unit = COLUMNS[name].compute
+        latex.append(f"\\texttt{{{escape(name)}}} {escape(written)} $= {format_value(m.values[name], unit)}$")
+        shown, shown_unit = to_display(m.values[name], unit)
+        text.append(f"{name} {written} = {format_number(shown, shown_unit)} {unit_text(shown_unit)}")
+    return Cell("; ".join(latex), md_escape("; ".join(text)))
 
 
 def basis_cell(basis: str) -> Cell:
