@@ -15,8 +15,12 @@ from .tex import Cell, Table, escape
 from .units import to_display
 
 
-def member_rows(m, section) -> list[list[object]]:
-    """Rows of section 1 that describe the span, its supports and the limits."""
+def member_rows(m, section, checks: set[str] | None = None) -> list[list[object]]:
+    """Rows of section 1 that describe the span, its supports and the limits.
+
+    `checks` names the checks the design ran: deflection limits are listed only
+    for the deflection checks made (all scheduled limits when not known).
+    """
     try:
         frame = loading_mode(m) == "forces"
     except TimbersheetsError:
@@ -36,7 +40,9 @@ def member_rows(m, section) -> list[list[object]]:
     else:
         lateral = (f"compression edge laterally unsupported over $L_u = {format_value(m.Lu, 'mm')}$",
                    f"compression edge unsupported over Lu = {m.Lu:g} mm")
-    lateral_text = lateral[0] + "; ends held in position and against rotation at the bearings"
+    ends = ("; ends held in position and against rotation at the bearings" if m.type == "bending"
+            else "; ends held in position")  # a beam's bearings restrain twist; a column's ends are only held
+    lateral_text = lateral[0] + ends
     bearing = (Cell(f"$l_b = {format_value(m.bearing, 'mm')}$ at each end support",
                     f"l_b = {m.bearing:g} mm at each end support") if m.bearing is not None
                else "not given: no bearing check")
@@ -51,12 +57,21 @@ def member_rows(m, section) -> list[list[object]]:
         ["Lateral support", Cell(lateral_text, lateral[1])],
         ["Bearing", bearing],
         ["Loading", loading],
-        ["Deflection limits", Cell(f"$L/{format_number(m.defl_L, 'mm')}$ under live load, "
-                                   f"$L/{format_number(m.defl_total, 'mm')}$ under total load",
-                                   f"L/{m.defl_L:g} live, L/{m.defl_total:g} total")],
+        ["Deflection limits", deflection_limits(m, checks)],
         ["Net area", Cell(f"$A_n = {format_number(m.net_area)}\\,A_g = {format_value(section.A * m.net_area, 'mm**2')}$",
                           f"A_n = {m.net_area:g} A_g")],
     ]
+
+
+def deflection_limits(m, checks: set[str] | None) -> Cell | str:
+    """The limits of the deflection checks made; none when the member is not checked for deflection."""
+    limits = [(f"$L/{format_number(m.values[column], 'mm')}$ under {words} load", f"L/{m.values[column]:g} {words}")
+              for check, column, words in (("deflection-live", "defl_L", "live"),
+                                           ("deflection-total", "defl_total", "total"))
+              if checks is None or check in checks]
+    if not limits:
+        return "none checked: no SLS combination applies (they combine gravity line loads on the span only)"
+    return Cell(", ".join(latex for latex, _ in limits), ", ".join(text for _, text in limits))
 
 
 def forces_block(design) -> Block:

@@ -152,16 +152,18 @@ def unit_text(u: str) -> str:
 
 
 FORCE_UNITS = ("kN", "kN*m", "kN/m")
+#: Lengths to 0.1 mm at least, so that a dimension prints as used.
+LEAST_DECIMALS = {"mm": 1, "m": 4}
 
 
 def _decimals(value: float, unit: str, sig: int) -> int:
-    """Decimal places for `sig` significant figures; forces, moments and lengths (mm) to at least 0.1.
+    """Decimal places for `sig` significant figures; forces and moments to 0.1 at least, lengths to 0.1 mm.
 
     A length keeps its tenth so that a dimension shows as used: 152.4 mm (6 in), not 152 mm,
     and 175 mm x 152.4 mm = 26670 mm² reproduces on a calculator.
     """
     digits = sig - 1 - math.floor(math.log10(abs(value)))
-    return max(digits, 1) if unit in FORCE_UNITS or unit == "mm" else digits
+    return max(digits, LEAST_DECIMALS.get(unit, 1 if unit in FORCE_UNITS else digits))
 
 
 def round_sig(value: float, unit: str = "", sig: int = 3) -> float:

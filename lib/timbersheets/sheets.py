@@ -109,7 +109,7 @@ class Sheet:
         if m.type in ("bending", "beam-column", "tension-bending") and section is not None:
             from .beamsheet import member_rows
 
-            rows += member_rows(m, section)
+            rows += member_rows(m, section, {c.check for c in d.checks} if not d.errors else None)
         if m.type in ("tension", "compression") and section is not None:
             rows += self._axial_rows(m, section)
         elif m.type != "bending" and section is not None:
@@ -158,7 +158,9 @@ class Sheet:
         rows = []
         if sz.chosen is not None:
             rows.append(row(sz.chosen, "chosen"))
-        rows += [row(c, "runner-up") for c in sz.runners_up]
+        rows += [row(c, f"lighter; passed over for prefer = {self.m.prefer}"
+                      if sz.chosen is not None and c.section.A < sz.chosen.section.A else "runner-up")
+                 for c in sz.runners_up]
         if sz.chosen is None and sz.best is not None:
             rows.append(row(sz.best, "best reached; does not pass"))
         words = (f"The schedule asks for the size (size = auto). The catalogue of standard sections "
