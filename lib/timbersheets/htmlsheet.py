@@ -20,6 +20,8 @@ from typing import Any
 
 from latex2mathml.converter import convert as mathml
 
+from .constants import CAUTION
+
 #: Escapes of tex.escape and the few text commands of the sheet, as characters.
 _CHARS = {"textbackslash": "\\", "textasciicircum": "^", "textasciitilde": "~", "textless": "<",
           "textgreater": ">", "textbar": "|", "quad": "\u2003", "qquad": "\u2003\u2003", "hfill": " ",
@@ -414,9 +416,7 @@ def sheet_html(nb: Any, tb: dict[str, str]) -> str:
                 png = data["image/png"]
                 png = png if isinstance(png, str) else base64.b64encode(png).decode()
                 parts.append(f'<img alt="figure" src="data:image/png;base64,{png.strip()}">')
-    caution = _field(tb, "caution") or ("This calculation must be reviewed and sealed by a licensed professional "
-                                        "engineer. The code editions adopted by the authority having jurisdiction "
-                                        "govern.")
+    caution = _field(tb, "caution") or html.escape(CAUTION)
     stop = "<p><strong>INCOMPLETE: the calculation stopped with an error. Not for use.</strong></p>" if incomplete else ""
     title = f"{_field(tb, 'mark')} \u2014 {_field(tb, 'project')}"
     return (f'<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8"><title>{title}</title>'
