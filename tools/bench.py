@@ -81,7 +81,7 @@ def naive_loop(job: Path, out: Path, count: int) -> tuple[float, int]:
     work is organised (a process and a kernel per member, three TeX passes, no cache).
     """
     sys.path.insert(0, str(REPO / "lib"))
-    from timbersheets.design import member_types
+    from timbersheets.membertypes import member_types
     from timbersheets.schedule import load_schedule
 
     members = load_schedule(job / "schedule.csv").members[:count]
@@ -103,7 +103,8 @@ def sizing_times(job: Path) -> list[str]:
     """Sizing time of every auto member, and of a full-catalogue sweep (the worst case)."""
     sys.path.insert(0, str(REPO / "lib"))
     from timbersheets.data import DataSet
-    from timbersheets.design import effects_of, member_types
+    from timbersheets.design import design_function, effects_of
+    from timbersheets.membertypes import member_type
     from timbersheets.loads import apply_combinations
     from timbersheets.schedule import load_schedule
     from timbersheets.sizing import catalogue, evaluate, size
@@ -112,7 +113,7 @@ def sizing_times(job: Path) -> list[str]:
     members = [m for m in load_schedule(job / "schedule.csv").members if m.size == "auto"]
     lines, worst = [], 0.0
     for m in members:
-        design = member_types()[m.type].design
+        design = design_function(member_type(m.type))
         size(m, data, design)  # warm the data look-ups once
         start = time.perf_counter()
         result = size(m, data, design)

@@ -21,6 +21,7 @@ from .calc import calc
 from .data import Datum
 from .errors import DesignError
 from .loads import LOAD_TYPES, LoadCase
+from .membertypes import member_type
 
 SPAN_CLAUSE = "simply supported span, uniform load"
 #: Deflection under specified loads (CSA O86:19 5.4.2; memory, unverified clause number).
@@ -60,7 +61,7 @@ def loading_mode(member) -> str:
     def given(prefix: str) -> bool:
         return any(member.values[f"{prefix}_{t}"] for t in LOAD_TYPES)
 
-    combined = member.type in ("beam-column", "tension-bending")
+    combined = member_type(member.type).axial is not None  # a type that takes axial force with its bending
     if given("P") and not combined:
         raise DesignError(member.mark, "a bending member with axial load P_* needs the combined check", "",
                           "Give type beam-column (compression) or tension-bending, or remove P_*")

@@ -25,6 +25,7 @@ from .beampattern import BeamModel, deflection_targets, strength_targets
 from .calc import calc
 from .errors import DesignError
 from .loads import LOAD_TYPES
+from .membertypes import member_type
 
 #: Deflection under specified loads (CSA O86:19 5.4.2; memory, unverified clause number).
 SLS_CLAUSE = "O86:19 5.4.2"
@@ -56,7 +57,7 @@ def loads_of(member) -> dict[str, tuple]:
 def is_model(member) -> bool:
     """True where the closed-form simple span under uniform load does not describe the beam."""
     v = member.values
-    if member.type != "bending":
+    if member_type(member.type).routine != "bending":
         return False
     return (len(v.get("spans") or ()) > 1 or bool(v.get("overhang_left")) or bool(v.get("overhang_right"))
             or any(v.get(f"{p}_{t}") for p in ("point", "part") for t in LOAD_TYPES) or bool(v.get("carried")))

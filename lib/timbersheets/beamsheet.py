@@ -11,6 +11,7 @@ from .analysis import loading_mode, member_forces, service_cases
 from .beamdesign import is_model
 from .calc import format_number, format_value
 from .errors import TimbersheetsError
+from .membertypes import member_type
 from .sheets import Block, heading, para, q, table
 from .tex import Cell, Table, escape
 from .units import to_display
@@ -25,7 +26,7 @@ def member_rows(m, section) -> list[list[object]]:
     if frame:
         span = Cell(f"$L = {format_value(m.length, 'mm')}$; moments and shears from the frame model (the length "
                     "sets lateral stability and the glulam size factor)", f"L = {m.length:g} mm, frame-model forces")
-    elif m.type == "bending":
+    elif member_type(m.type).axial is None:  # a beam on its supports, no axial force
         span = Cell(f"$L = {format_value(m.length, 'mm')}$, simply supported; the design span between the centres of "
                     "the bearings", f"L = {m.length:g} mm, simply supported")
     else:

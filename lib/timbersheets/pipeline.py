@@ -18,7 +18,9 @@ from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
+from .constants import SHORT_CAUTION
 from .errors import ParameterError, TimbersheetsError
+from .tex import escape
 
 XELATEX = ["xelatex", "-interaction=nonstopmode", "-halt-on-error", "-no-shell-escape"]
 
@@ -201,7 +203,7 @@ def to_latex(notebook: Path, titleblock: dict[str, str]) -> tuple[str, dict[str,
     from nbconvert import LatexExporter
 
     nb = nbformat.read(str(notebook), as_version=4)
-    nb.metadata.setdefault("timbersheets", {})["titleblock"] = titleblock
+    nb.metadata.setdefault("timbersheets", {})["titleblock"] = {"caution": escape(SHORT_CAUTION), **titleblock}
     exporter = LatexExporter(template_name="sheet", extra_template_basedirs=[str(templates_dir() / "latex")])
     body, resources = exporter.from_notebook_node(nb)
     return body, dict(resources.get("outputs", {}))
@@ -240,7 +242,7 @@ def to_html(notebook: Path, html: Path, titleblock: dict[str, str]) -> None:
     from nbconvert import HTMLExporter
 
     nb = nbformat.read(str(notebook), as_version=4)
-    nb.metadata.setdefault("timbersheets", {})["titleblock"] = titleblock
+    nb.metadata.setdefault("timbersheets", {})["titleblock"] = {"caution": escape(SHORT_CAUTION), **titleblock}
     exporter = HTMLExporter(exclude_input=True, exclude_input_prompt=True, exclude_output_prompt=True)
     body, _ = exporter.from_notebook_node(nb)
     html.parent.mkdir(parents=True, exist_ok=True)

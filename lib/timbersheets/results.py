@@ -14,6 +14,7 @@ from typing import Any
 from . import __version__
 from .calc import round_sig
 from .checks import CheckResult
+from .constants import UNIT_TEXT
 from .design import MemberDesign
 from .errors import TimbersheetsError
 from .fileio import write_csv, write_json
@@ -33,7 +34,7 @@ def _num(value: float, unit: str) -> float:
 
 
 def check_json(c: CheckResult) -> dict[str, Any]:
-    unit = {"kN*m": "kN·m"}.get(c.unit, c.unit)
+    unit = UNIT_TEXT.get(c.unit, c.unit)
     return {
         "check": c.check,
         "combination": c.combination,

@@ -13,6 +13,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+from .constants import UNIT_TEXT
 from .errors import JobError
 
 DIFF_HEADER = ["mark", "what", "item", "old", "new"]
@@ -40,7 +41,7 @@ def previous_revision(jobdir: Path, current: str) -> str | None:
 
 def show_input(value: Any) -> str:
     if isinstance(value, dict) and "value" in value:
-        unit = {"kN*m": "kN·m"}.get(value["unit"], value["unit"])
+        unit = UNIT_TEXT.get(value["unit"], value["unit"])
         return f"{value['value']:g} {unit}".strip()
     if value is None:
         return "(blank)"

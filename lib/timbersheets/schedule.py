@@ -20,12 +20,12 @@ from typing import Any
 
 from . import beamloads
 from .errors import JobError, ParameterError, ScheduleError
+from .membertypes import member_type, member_types
 from .materials import GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, sawn_table_grade
 from .sections import Section, parse_size, sawn_category
 from .units import UnitParseError, convert, parse_quantity
 
 LOAD_TYPES = ("D", "L", "S", "W", "E")
-MEMBER_TYPES = ("tension", "compression", "bending", "beam-column", "tension-bending")
 MARK = re.compile(r"^[A-Za-z0-9._-]+$")
 LOAD_NAMES = {"D": "dead", "L": "live", "S": "snow (with rain)", "W": "wind", "E": "earthquake"}
 LOAD_MEANING = {
@@ -62,7 +62,7 @@ def _columns() -> tuple[Column, ...]:
     cols = [
         Column("mark", "text", required=True,
                meaning="member mark, unique in the job"),
-        Column("type", "choice", required=True, choices=MEMBER_TYPES,
+        Column("type", "choice", required=True,  # choices: the member type registry
                meaning="member type: what it carries and which checks it runs (beam-column = bending + axial compression)"),
         Column("material", "choice", required=True, choices=("sawn", "glulam"),
                meaning="sawn lumber or timber, or glulam"),
@@ -145,9 +145,6 @@ def _columns() -> tuple[Column, ...]:
 
 COLUMNS = {c.name: c for c in _columns()}
 REQUIRED = tuple(c.name for c in COLUMNS.values() if c.required)
-#: Loads and geometry only a bending member analysed as a beam takes.
-BEAM_ONLY = ("spans", "overhang_left", "overhang_right", "trib", *(f"{p}_{t}" for p in ("q", "point", "part")
-                                                                   for t in LOAD_TYPES))
 #: Set by the load path (reactions of the members this one carries), not by the schedule.
 DERIVED = ("carried",)
 
@@ -383,11 +380,16 @@ def _validate_row(file: str, row: int, cells: dict[str, str]) -> tuple[list[Sche
     return errors, values, given
 
 
+def choices(col: Column) -> tuple[str, ...]:
+    """The allowed values of a choice column; `type` takes them from the member type registry."""
+    return tuple(member_types()) if col.name == "type" else col.choices
+
+
 def _allowed(col: Column) -> str:
     if col.name == "mark":
         return "letters, digits, '-', '_' and '.'"
     if col.kind == "choice":
-        return ", ".join(col.choices)
+        return ", ".join(choices(col))
     if col.kind == "size":
         return "b x d in mm, e.g. 38x235 or 130x228"
     if col.kind == "count":
@@ -409,7 +411,7 @@ def _read_cell(col: Column, text: str) -> Any:
             raise ValueError("has characters a mark may not have")
         return text
     if col.kind == "choice":
-        folded = {c.casefold(): c for c in col.choices}
+        folded = {c.casefold(): c for c in choices(col)}
         if text.casefold() not in folded:
             raise ValueError("is not one of the allowed values")
         return folded[text.casefold()]
@@ -497,21 +499,39 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> li
                                   "leaves less than 75 % of the gross area; O86 does not allow designing on it",
                                   "a ratio from 0.75 to 1.0; reduce the holes or notches"))
     beam_errors = beamloads.row_errors(file, row, v, given)
-    if beam_errors or v["length"] is None:
+    if beam_errors:
         return errs + beam_errors
+    if v["length"] is None:
+        return errs + _type_rules(file, row, v, given)
     for name in ("Lx", "Ly", "Lu"):
         if v[name] is not None and v[name] > v["length"] * (1 + 1e-9) and name in given:
             errs.append(ScheduleError(file, row, name, f"{v[name] / 1000:g} m", f"is longer than the member (length {v['length'] / 1000:g} m)",
                                       f"at most the length, {v['length'] / 1000:g} m"))
-    for name in ("Lx", "Ly"):
-        if v[name] is None:
-            v[name] = v["length"]
-    if v["type"] in ("beam-column", "tension-bending") and "Lu" not in given:
-        v["Lu"] = v["length"]  # a column's compression edge is not held unless the row says so
+    errs += _type_rules(file, row, v, given)
     if v["K_H"] is not None and v["K_H"] > 1.4:
         errs.append(ScheduleError(file, row, "K_H", f"{v['K_H']:g}", "exceeds the largest system factor of O86 "
                                   "(1.4, Case 2 for bending and shear)", "1.0 to 1.4"))
     return errs
+
+
+def _type_rules(file: str, row: int, v: dict[str, Any], given: set[str]) -> list[ScheduleError]:
+    """The member type's own rules: columns it requires or refuses, and what its blank lengths mean."""
+    kind = member_type(v["type"])
+    errs = [ScheduleError(file, row, name, "", f"is blank, but a {kind.name} member needs it", _allowed(COLUMNS[name]))
+            for name in kind.requires if name not in given]
+    errs += [ScheduleError(file, row, name, _shown(COLUMNS[name], v[name]), f"does not apply to a {kind.name} member",
+                           "leave it blank") for name in kind.refuses if name in given]
+    for name, blank in kind.blank.items():
+        if name not in given:
+            v[name] = v["length"] if blank == "length" else float(blank)
+    return errs
+
+
+def _shown(col: Column, value: Any) -> str:
+    """A value as the row gave it, in the column's entry unit."""
+    if col.kind == "quantity" and value is not None:
+        return f"{convert(value, col.compute, col.unit):g} {col.unit}"
+    return str(value)
 
 
 def _size_checks(file: str, row: int, v: dict[str, Any], data) -> list[ScheduleError]:

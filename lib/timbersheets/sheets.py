@@ -15,19 +15,18 @@ from typing import Any
 
 from .calc import format_number, format_value, unit_latex, unit_text
 from .checks import CheckResult
+from .constants import CAUTION, RESULT_MIME
 from .data import DataSet
 from .design import MemberDesign, design_member, effects_of
 from .loads import EFFECT_UNITS, LOAD_TYPES, kd_permanent
+from .membertypes import MemberType, member_type
 from .schedule import Member
 from .symbols import ACTION_WORDS, meaning, symbol_latex, symbol_unit
 from .tex import Cell, Table, escape, md_escape
 from .units import to_display
 
-CAUTION = ("This calculation must be reviewed and sealed by a licensed professional engineer before it is "
-           "used. The codes and editions adopted by the authority having jurisdiction govern.")
 LOAD_NAMES = {"D": "Dead", "L": "Live (use and occupancy)", "S": "Snow (with rain)", "W": "Wind", "E": "Earthquake"}
 EFFECT_NAMES = {"P": "P", "w": "w", "M": "M", "V": "V", "F": "F"}
-RESULT_MIME = "application/vnd.timbersheets.result+json"
 
 
 @dataclass
@@ -91,6 +90,10 @@ class Sheet:
         assert self.design.member is not None
         return self.design.member
 
+    @property
+    def kind(self) -> MemberType:
+        return member_type(self.m.type)
+
     # 1 -------------------------------------------------------------------------
     def member_section(self) -> Block:
         m, d = self.m, self.design
@@ -106,14 +109,13 @@ class Sheet:
             ["Service condition", Cell(f"{m.service}; $K_T = {format_number(m.K_T)}$, $K_H = {format_number(m.K_H)}$ "
                                        "from the schedule", f"{m.service}; K_T = {m.K_T:g}, K_H = {m.K_H:g}")],
         ]
-        if m.type in ("bending", "beam-column", "tension-bending") and section is not None:
+        if self.kind.shows("span") and section is not None:
             from .beamsheet import member_rows
 
             rows += member_rows(m, section)
-        if m.type in ("tension", "compression") and section is not None:
-            rows += self._axial_rows(m, section)
-        elif m.type != "bending" and section is not None:
-            rows += self._axial_rows(m, section)[:1]  # the span rows above already give the net area
+        if section is not None:
+            length, net_area = self._axial_rows(m, section)
+            rows += [row for name, row in (("length", length), ("net-area", net_area)) if self.kind.shows(name)]
         if m.note:
             rows.append(["Note", m.note])
         rows.append(["Schedule", f"row {m.row}"])
@@ -188,7 +190,7 @@ class Sheet:
             rows.append([LOAD_NAMES[t], Cell.math(t), *[q(specified.get(e, t), EFFECT_UNITS[e]) for e in effects],
                          DURATION_CLASS[t] + " term"])
         sense = ("Line loads act downward on the span, negative values upward (uplift); moments and shears are "
-                 "the frame model's, by load type." if m.type == "bending" else
+                 "the frame model's, by load type." if self.kind.axial is None else
                  "Positive axial force acts in the member's own sense (tension for a tension member, compression "
                  "otherwise).")
         intro = para("Specified loads from the schedule, including importance factors and the member's own "
@@ -224,7 +226,7 @@ class Sheet:
                 out += para(f"For {escape(case.label)} the long-term (dead) part exceeds the standard-term part, "
                             f"so (CSA O86:19 5.3.2.3, on ${case.kd_effect}$):")
                 out += math_block(latex)
-        if self.m.type == "bending":
+        if self.kind.shows("forces"):
             from .beamsheet import forces_block
 
             out += forces_block(d)
@@ -234,13 +236,13 @@ class Sheet:
         """Bending members: the shear and moment diagram of the governing combination (else nothing)."""
         from .beamsheet import diagram
 
-        return diagram(self.design) if self.m.type == "bending" else []
+        return diagram(self.design) if self.kind.shows("diagram") else []
 
     def serviceability_section(self) -> Block:
         """Bending members: the SLS combinations used for deflection, with their sources."""
         from .beamsheet import serviceability_block
 
-        return serviceability_block(self.design, self.data) if self.m.type == "bending" else Block("", "")
+        return serviceability_block(self.design, self.data) if self.kind.shows("serviceability") else Block("", "")
 
     # 4 -------------------------------------------------------------------------
     def factors_section(self) -> Block:
@@ -257,7 +259,7 @@ class Sheet:
             rows.append([Cell.math(symbol_latex(datum.symbol)), Cell(f"${value}$", value),
                          meaning(datum.symbol) or datum.label, f"{datum.table}", datum.status_text])
         m = self.m
-        given = (("K_H", m.K_H), ("K_T", m.K_T)) + ((("K_e", m.Ke),) if m.type != "bending" else ())
+        given = (("K_H", m.K_H), ("K_T", m.K_T)) + ((("K_e", m.Ke),) if self.kind.shows("length") else ())
         for name, value in given:
             rows.append([Cell.math(symbol_latex(name)), Cell(f"${format_number(value)}$", format_number(value)),
                          meaning(name), "schedule", "as given"])
