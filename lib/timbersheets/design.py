@@ -103,7 +103,7 @@ def effects_of(member: Member) -> Effects:
     """Specified effects by type from the row's P_*, M_*, V_*, w_* columns, the axial loads a column carries
     from other members, and the total load F of a beam model."""
     values = {e: {t: member.values[f"{e}_{t}"] for t in LOAD_TYPES} for e in EFFECTS}
-    if member.type != "bending":
+    if member_type(member.type).axial is not None:
         for c in member.values.get("carried", ()):
             for t in LOAD_TYPES:
                 values["P"][t] += c.loads.get(t, 0.0)

@@ -109,8 +109,11 @@ def source_reactions(design, beam_reactions) -> dict[int, dict[str, float]]:
     from .beamdesign import is_model
     from .errors import DesignError
 
-    m = design.member
-    if m.type == "bending":
+    from .membertypes import member_type
+
+    # the member as designed: with its own weight in the dead load where the design adds it
+    m = design.context.member if design.context is not None else design.member
+    if member_type(m.type).routine == "bending":
         if not is_model(m) and loading_mode(m) == "forces":
             raise DesignError(m.mark, "takes its moments and shears from a frame model, so its support reactions "
                               "are not known here", "", "Give its loads (w_*, point_*, …) to carry its reactions")

@@ -79,7 +79,8 @@ def loads_block(m) -> Block:
 
 def forces_block(design) -> Block:
     """The analysis: package, method, arrangements; specified reactions; the governing factored extremes."""
-    m, ctx = design.member, design.context
+    ctx = design.context
+    m = ctx.member  # as designed (own weight in the dead load where the design adds it)
     model = model_of(m)
     out = heading("Member forces (beam model)", 2)
     patterned = [t for t in PATTERNED if t in model.present()]
@@ -121,7 +122,8 @@ def diagram(design) -> list[object]:
 
     from .diagrams import beam_model_png
 
-    m, ctx = design.member, design.context
+    ctx = design.context
+    m = ctx.member
     gov = design.governing_by_check().get("bending")
     if gov is None:
         return []
@@ -139,7 +141,7 @@ def diagram(design) -> list[object]:
 def serviceability_block(design, data) -> Block:
     from .analysis import service_cases_for
 
-    m = design.member
+    m = design.context.member
     model = model_of(m)
     cases = service_cases_for(m, data, model.present())
     out = heading("Serviceability combinations", 2)
