@@ -175,3 +175,15 @@ def test_review_turns_stale_when_carried_loads_change(tmp_path):
     doc = json.loads((tmp_path / "out" / "rev-B" / "results.json").read_text())
     review = {m["mark"]: m["review"]["status"] for m in doc["members"]}
     assert review["G-1"] == "stale"
+
+
+def test_what_if_scales_point_loads_and_follows_the_path(tmp_path):
+    from timbersheets.whatif import what_if
+
+    rows = [*CHAIN, {"mark": "H-1", **JOIST, "plies": "2", "length": "2.4", "w_D": "0.5", "point_S": "6@1.2"}]
+    job = write_job(tmp_path / "job", rows)
+    out = {w.mark: w for w in what_if(job, {"S": 2.0})}
+    # hand calculation: with S doubled, C-1 takes G-1.R1 = D 4.68, S 9.0 kN: 1.25 × 4.68 + 1.5 × 9.0 = 19.35 kN
+    assert out["C-1"].after.governing.demand == pytest.approx(19.35, rel=1e-3)
+    # H-1: M under the point at midspan, PL/4: S part 1.5 × 12 × 2.4 / 4 = 10.8 kN·m, D 1.25 × 0.5 × 2.4² / 8 = 0.45
+    assert out["H-1"].after.governing_by_check()["bending"].demand == pytest.approx(11.25, rel=1e-3)

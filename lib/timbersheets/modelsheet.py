@@ -113,6 +113,9 @@ def forces_block(design) -> Block:
             for case, t in best.values()]
     out += table(Table(["Effect", "Where", "x", "Value", "Combination", "Live/snow on"], rows, "llrrlX",
                        ["", "", "m", "kN·m or kN", "", ""]))
+    if any(t.kind == "R-" for _, t in best.values()):
+        out += para("Uplift at a support (a negative reaction): no bearing demand there, but the connection must "
+                    "hold the member down; it is not checked on this sheet.")
     return out
 
 
