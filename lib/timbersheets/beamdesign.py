@@ -21,7 +21,7 @@ from dataclasses import dataclass, field, replace
 from functools import lru_cache
 
 from .beammodel import Geometry
-from .beampattern import BeamModel, deflection_targets, strength_targets
+from .beampattern import BeamModel
 from .calc import calc
 from .errors import DesignError
 from .loads import LOAD_TYPES
@@ -127,7 +127,7 @@ def design_model(ctx, cases) -> list:
     model = model_of(m)
     out = {"bending": [], "shear": [], "bearing": []}
     for case in cases:
-        for t in strength_targets(model, case.combination.factors, ctx.section.d):
+        for t in model.targets("strength", case.combination.factors, ctx.section.d):
             where = _where(t)
             if t.kind in ("M+", "M-"):
                 negative = t.kind == "M-"
@@ -166,7 +166,7 @@ def model_deflections(ctx, model) -> list:
     for sc in service_cases_for(m, ctx.data, model.present()):
         n_lim = m.values["defl_L" if sc.check == "deflection-live" else "defl_total"]
         ctx.used += list(sc.datums)
-        for t in deflection_targets(model, sc.factors):
+        for t in model.targets("deflection", sc.factors):
             overhang = "overhang" in t.region
             L_d = 2 * t.length if overhang else t.length
             values = model_deflection(EI_Delta=abs(t.value), E=ctx.f["E"], K_SE=ctx.K_S["K_SE"], K_T=ctx.K_T,

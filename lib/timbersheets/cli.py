@@ -165,7 +165,9 @@ def cmd_size(args: argparse.Namespace) -> int:
     project = load_project(args.dir)
     schedule = load_schedule(project.schedule_path)
     data = DataSet(project.materials)
-    members = {m.mark: m for m in schedule.members}
+    from .loadpath import resolved_members
+
+    members = resolved_members(schedule, data)  # with the reactions they carry
     marks = args.mark or [m.mark for m in schedule.members if m.size == "auto"]
     unknown = [m for m in marks if m not in members]
     if unknown:

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from .beamdesign import geometry_of, loads_of, model_of, reactions_by_type
 from .beammodel import PATTERNED, library
-from .beampattern import Combined, strength_targets
+from .beampattern import Combined
 from .calc import format_number
 from .sheets import Block, heading, para, q, table
 from .tex import Cell, Table, escape
@@ -104,7 +104,7 @@ def forces_block(design) -> Block:
                 "combination is checked; section 5 lists them all):")
     best: dict[tuple[str, str], tuple] = {}
     for case in design.cases:
-        for t in strength_targets(model, case.combination.factors, ctx.section.d):
+        for t in model.targets("strength", case.combination.factors, ctx.section.d):
             key = (t.kind, t.region)
             if key not in best or abs(t.value) > abs(best[key][1].value):
                 best[key] = (case, t)
