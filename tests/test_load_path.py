@@ -81,6 +81,16 @@ BAD = [
     ("carries-missing", {"mark": "B-1", **POST, "P_D": "10", "carries": "RB-9.R1"}, "carries", "'RB-9'"),
     ("area-load-without-trib", {"mark": "B-1", **JOIST, "length": "3.6", "q_L": "1.9"}, "q_L", "tributary"),
     ("part-backwards", {"mark": "B-1", **JOIST, "length": "3.6", "part_L": "2@3-1"}, "part_L", "larger end"),
+    ("point-without-position", {"mark": "B-1", **JOIST, "length": "3.6", "point_D": "5"}, "point_D",
+     "value@position"),
+    ("point-bad-unit", {"mark": "B-1", **JOIST, "length": "3.6", "point_D": "5 kN@2 kPa"}, "point_D", "not a length"),
+    ("length-disagrees", {"mark": "B-1", **JOIST, "length": "7", "spans": "3.6+3.6"}, "length", "7.2 m"),
+    ("carries-position-on-column", {"mark": "B-1", **POST, "P_D": "10", "carries": "OK-1.R1@2"}, "carries",
+     "axial force"),
+    ("carries-beam-without-position", {"mark": "B-1", **JOIST, "length": "3.6", "carries": "OK-1.R1"}, "carries",
+     "position"),
+    ("carries-no-such-support", {"mark": "B-1", **POST, "P_D": "10", "carries": "OK-1.R3"}, "carries",
+     "OK-1 has 2 support(s)"),
 ]
 
 
