@@ -197,3 +197,14 @@ def test_what_if_scales_point_loads_and_follows_the_path(tmp_path):
     assert out["C-1"].after.governing.demand == pytest.approx(19.35, rel=1e-3)
     # H-1: M under the point at midspan, PL/4: S part 1.5 × 12 × 2.4 / 4 = 10.8 kN·m, D 1.25 × 0.5 × 2.4² / 8 = 0.45
     assert out["H-1"].after.governing_by_check()["bending"].demand == pytest.approx(11.25, rel=1e-3)
+
+
+def test_review_command_accepts_a_member_that_carries_others(tmp_path):
+    # the review ties to the inputs as the run hashed them, carried reactions included
+    from timbersheets.cli import main
+
+    job = write_job(tmp_path / "job", CHAIN)
+    run_job(job, out=tmp_path / "out", sheets=False)
+    code = main(["review", str(job), "--mark", "G-1", "--by", "RD", "--verdict", "ok", "--out", str(tmp_path / "out")])
+    assert code == 0
+    assert "G-1,RD" in (job / "review.csv").read_text()

@@ -142,7 +142,7 @@ def beam_times() -> list[str]:
     from timbersheets.schedule import load_schedule
 
     data = DataSet()
-    schedule = load_schedule(DEMO / "schedule.csv")
+    schedule = load_schedule(DEMO / "schedule.csv", data)
     designs = design_all(schedule.entries, data)  # resolves carried loads; imports PyCBA once
     members = [d.member for d in designs if d.member is not None and beamdesign.is_model(d.member)]
     lines, worst = [], 0.0

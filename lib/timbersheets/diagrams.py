@@ -42,7 +42,8 @@ def shear_moment_png(w_f: float, span: float, d: float) -> bytes:
             ax.tick_params(length=2, pad=1.5)
         v0, vd = shear[0], w_f * max(span / 2 - d, 0.0)
         up = 1 if v0 >= 0 else -1  # uplift draws the diagram the other way up
-        ax_v.set_ylim(-1.35 * abs(v0), 1.35 * abs(v0))
+        reach = abs(v0) or 1.0  # no load: an empty diagram, not a degenerate axis
+        ax_v.set_ylim(-1.35 * reach, 1.35 * reach)
         ax_v.plot([d], [vd], marker="o", markersize=2.5, color="black")
         ax_v.annotate(f"$V_f = {v0:.1f}$", (0, v0), xytext=(5, 2 * up), textcoords="offset points",
                       va="bottom" if up > 0 else "top")
@@ -54,7 +55,7 @@ def shear_moment_png(w_f: float, span: float, d: float) -> bytes:
         peak = w_f * span**2 / 8
         ax_m.annotate(f"$M_f = {peak:.1f}$", (span / 2, peak), xytext=(0, -10 if peak >= 0 else 10),
                       textcoords="offset points", ha="center", va="top" if peak >= 0 else "bottom")
-        lo, hi = sorted((0.0, peak))
+        lo, hi = sorted((0.0, peak)) if peak else (-1.0, 1.0)
         ax_m.set_ylim(lo * 1.08, hi * 1.08)
         fig.tight_layout(pad=0.3, w_pad=2.0)
         buffer = io.BytesIO()

@@ -23,7 +23,7 @@ from .errors import JobError, ParameterError, ScheduleError
 from .membertypes import member_type, member_types
 from .materials import GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, sawn_table_grade
 from .sections import Section, parse_size, sawn_category
-from .units import UnitParseError, convert, parse_quantity
+from .units import UnitParseError, convert, example, parse_quantity
 
 LOAD_TYPES = ("D", "L", "S", "W", "E")
 MARK = re.compile(r"^[A-Za-z0-9._-]+$")
@@ -320,8 +320,14 @@ def _read_xlsx(path: Path) -> tuple[list[str], list[tuple[int, dict[str, str]]],
 
 
 # --------------------------------------------------------------------------- validating
-def load_schedule(path: Path) -> Schedule:
-    """Read and validate every row of the schedule at `path`."""
+def load_schedule(path: Path, data=None) -> Schedule:
+    """Read and validate every row of the schedule at `path`.
+
+    `data` is the job's DataSet (the built-in data unless given): species and
+    grades a firm data file adds are valid."""
+    from .data import default_data
+
+    data = data or default_data()
     header, rows, notes = read_rows(path)
     name = path.name
     warnings = list(notes)
@@ -339,7 +345,7 @@ def load_schedule(path: Path) -> Schedule:
     first_row: dict[str, int] = {}
     for number, cells in rows:
         mark = cells.get("mark", "")
-        errors, values, given = _validate_row(name, number, cells)
+        errors, values, given = _validate_row(name, number, cells, data)
         if mark and MARK.match(mark):
             if mark in first_row:
                 errors.insert(0, ScheduleError(name, number, "mark", mark,
@@ -356,7 +362,7 @@ def load_schedule(path: Path) -> Schedule:
     return Schedule(path, members, rejected, warnings)
 
 
-def _validate_row(file: str, row: int, cells: dict[str, str]) -> tuple[list[ScheduleError], dict[str, Any], set[str]]:
+def _validate_row(file: str, row: int, cells: dict[str, str], data) -> tuple[list[ScheduleError], dict[str, Any], set[str]]:
     errors: list[ScheduleError] = []
     values: dict[str, Any] = {}
     given: set[str] = set()
@@ -376,7 +382,7 @@ def _validate_row(file: str, row: int, cells: dict[str, str]) -> tuple[list[Sche
         except ValueError as exc:
             errors.append(ScheduleError(file, row, name, text, str(exc), _allowed(col)))
     if not errors:
-        errors += _cross_checks(file, row, values, given)
+        errors += _cross_checks(file, row, values, given, data)
     return errors, values, given
 
 
@@ -398,7 +404,7 @@ def _allowed(col: Column) -> str:
         return beamloads.ALLOWED[col.kind]
     if col.kind == "quantity":
         bound = "greater than 0" if col.strict else "0 or more" if col.minimum is not None else "any sign"
-        return f"a number in {col.unit} ({bound}), or with its own unit, e.g. '12 ft'"
+        return f"a number in {col.unit} ({bound}), or with its own unit, e.g. {example(col.unit)}"
     if col.kind == "number":
         bound = "greater than 0" if col.strict else "0 or more"
         return f"a plain number ({bound})"
@@ -454,11 +460,11 @@ def _check_bound(col: Column, value: float) -> None:
         raise ValueError("must not be negative" if col.minimum == 0 else f"must be at least {col.minimum:g}")
 
 
-def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> list[ScheduleError]:
+def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str], data) -> list[ScheduleError]:
     """Rules that involve more than one cell: species/grade/size against the material."""
     errs: list[ScheduleError] = []
     material = v["material"]
-    table = GLULAM_SPECIES if material == "glulam" else SAWN_SPECIES
+    table = {**(GLULAM_SPECIES if material == "glulam" else SAWN_SPECIES), **{s: s for s in data.species(material)}}
     species = canonical(v["species"], table)
     if species is None:
         names = sorted(set(table.values()))
@@ -467,9 +473,6 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> li
                                   f"{', '.join(names)} (or {', '.join(shorts)})"))
     else:
         v["species"] = species
-    from .data import default_data
-
-    data = default_data()
     if material == "glulam":
         grades = sorted(data.glulam_grades().get(species or "", ()))
         grade = canonical_grade(v["grade"], tuple(grades))
@@ -484,9 +487,10 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> li
         if v["plies"] != 1:
             errs.append(ScheduleError(file, row, "plies", str(v["plies"]), "applies to built-up sawn members only", "1 for glulam"))
     else:
-        grade = canonical_grade(v["grade"], SAWN_GRADES)
+        grades = SAWN_GRADES + tuple(sorted({g for g, _ in data.firm_sawn_grades} - set(SAWN_GRADES)))
+        grade = canonical_grade(v["grade"], grades)
         if grade is None:
-            errs.append(ScheduleError(file, row, "grade", v["grade"], "is not a sawn lumber grade", ", ".join(SAWN_GRADES)))
+            errs.append(ScheduleError(file, row, "grade", v["grade"], "is not a sawn lumber grade", ", ".join(grades)))
         else:
             v["grade"] = grade
     if v["size"] != "auto":
@@ -556,7 +560,7 @@ def _size_checks(file: str, row: int, v: dict[str, Any], data) -> list[ScheduleE
                               f"timbers {'/'.join(f'{t:g}' for t in timbers)} mm")]
     section = Section(b, d, v["plies"])
     category = sawn_category(section)
-    if sawn_table_grade(v["grade"], category) is None:
+    if sawn_table_grade(v["grade"], category, data.firm_sawn_grades) is None:
         return [ScheduleError(file, row, "grade", v["grade"], f"is not a grade of {category.replace('-', ' and ')} sizes",
                               "SS, No.1, No.2 for timbers; SS, No.1, No.2, No.1/No.2, No.3, Stud for dimension lumber")]
     return []
