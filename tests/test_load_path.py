@@ -208,3 +208,17 @@ def test_review_command_accepts_a_member_that_carries_others(tmp_path):
     code = main(["review", str(job), "--mark", "G-1", "--by", "RD", "--verdict", "ok", "--out", str(tmp_path / "out")])
     assert code == 0
     assert "G-1,RD" in (job / "review.csv").read_text()
+
+
+def test_purlins_hold_the_top_edge_only(tmp_path, data):
+    # common practice: purlins or decking on top hold the compression edge of positive moment; under the negative
+    # moment over a support the bottom edge is in compression and K_L is computed from its unsupported length
+    rows = [{"mark": "B-1", **JOIST, "size": "38x184", "spans": "3.0", "overhang_right": "1.0", "Lu": "0.6",
+             "restraint": "purlins", "w_D": "0.5", "w_S": "1.5"}]
+    d = designs(tmp_path, rows, data)["B-1"]
+    bending = [c for c in d.checks if c.check == "bending"]
+    positive = next(c for c in bending if c.demand > 0)
+    negative = next(c for c in bending if c.demand < 0)
+    assert positive.factors["K_L"] == 1.0 and "C_B" not in positive.factors
+    # bottom edge between supports: L_u = the overhang's length for the overhang, or the span for span 1
+    assert "C_B" in negative.factors and negative.factors["L_u"] in (1000.0, 3000.0)
