@@ -9,9 +9,9 @@ against span/n and of each overhang tip against 2 × overhang/n.
 
 Lateral stability: a positive moment puts the top edge in compression, held as
 the row's `Lu` says (at most the span); a negative moment puts the bottom edge
-in compression, taken as laterally unsupported between supports (the adjacent
-span; an overhang's own length), the member being held in position at every
-support. The effective length factor is that for "any other loading" (the
+in compression, taken as laterally unsupported between supports (over a
+support, the longer of the span or overhang beside it), unless the row gives
+`Lu_bottom`, the member being held in position at every support. The effective length factor is that for "any other loading" (the
 largest of the table): the model's loading is not the simple-span uniform case.
 """
 

@@ -176,7 +176,9 @@ def strength_targets(model: BeamModel, factors: dict[str, float], d: float) -> l
         k = idx[int(np.argmin(mmin[idx]))]
         if mmin[k] < -EPS and round(float(x[k])) not in seen_negative:
             seen_negative.add(round(float(x[k])))
-            out.append(comb.target("M-", "M", k, -1, name, float(x[k]), length=b - a))
+            # over a support the bottom edge is in compression on both sides: the longer region sets L_u
+            beside = [bb - aa for _, aa, bb in g.regions if min(abs(aa - x[k]), abs(bb - x[k])) < EPS]
+            out.append(comb.target("M-", "M", k, -1, name, float(x[k]), length=max([b - a, *beside])))
     out += _shear_targets(comb, d)
     rmax, rmin = comb.envelope("R", +1), comb.envelope("R", -1)
     for j, s in enumerate(g.supports):
