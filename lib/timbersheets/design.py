@@ -296,9 +296,10 @@ def rejected(entry: RowError) -> MemberDesign:
     return MemberDesign(entry.mark, entry.row, None, errors=[str(e) for e in entry.errors], warnings=entry.warnings)
 
 
-def design_all(entries: list[Member | RowError], data: DataSet) -> list[MemberDesign]:
-    """Every entry designed, each member after the members it carries (:mod:`loadpath`)."""
+def design_all(entries: list[Member | RowError], data: DataSet, file: str = "schedule.csv") -> list[MemberDesign]:
+    """Every entry designed, each member after the members it carries (:mod:`loadpath`); `file` is the
+    schedule's name, for the load path's row errors."""
     from .loadpath import design_in_order
 
-    return design_in_order(entries, data)
+    return design_in_order(entries, data, file)
 

@@ -82,7 +82,7 @@ def order(members: list, file: str) -> tuple[list, dict[str, list[ScheduleError]
     return out, errors
 
 
-def resolve(member, carries_designs: dict) -> object:
+def resolve(member, carries_designs: dict, file: str = "schedule.csv") -> object:
     """`member` with its carried loads filled in from the designs of the members it carries."""
     from .beamdesign import reactions_by_type
 
@@ -95,7 +95,7 @@ def resolve(member, carries_designs: dict) -> object:
         elif c.reaction in reactions:
             n = c.reaction
         else:
-            raise ScheduleError("schedule.csv", member.row, "carries", c.label, f"asks for reaction {c.reaction}, "
+            raise ScheduleError(file, member.row, "carries", c.label, f"asks for reaction {c.reaction}, "
                                 f"but {c.mark} has {len(reactions)} support(s)",
                                 ", ".join(f"{c.mark}.R{j}" for j in reactions))
         loads.append(CarriedLoad(c.mark, n, c.at, dict(reactions[n]), c.reaction is None))
@@ -144,7 +144,7 @@ def design_in_order(entries: list, data, file: str = "schedule.csv") -> list:
                 "the loads it hands down are not known", "fix that member first")], list(m.warnings)))
             continue
         try:
-            resolved = resolve(m, designs) if m.values.get("carries") else m
+            resolved = resolve(m, designs, file) if m.values.get("carries") else m
         except TimbersheetsError as exc:
             designs[m.mark] = MemberDesign(m.mark, m.row, None, errors=[str(exc)], warnings=list(m.warnings))
             continue

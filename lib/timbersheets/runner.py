@@ -261,7 +261,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     data = DataSet(project.materials)
     schedule = load_schedule(project.schedule_path, data)
     check_only(project, schedule.entries, opts.only)
-    designs = design_all(schedule.entries, data)
+    designs = design_all(schedule.entries, data, schedule.path.name)
     jobdir = job_dir(project, opts.out)
     prev_label = previous_revision(jobdir, project.revision)
     previous = load_results(jobdir / f"rev-{prev_label}") if prev_label else None
