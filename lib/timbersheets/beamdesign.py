@@ -185,6 +185,9 @@ def reactions_by_type(member) -> dict[int, dict[str, float]]:
     Dead, wind and earthquake on every region; live and snow at their largest
     downward reaction over the arrangements (for a simple span, the full load).
     """
+    if not is_model(member):  # simple span under uniform load: R = wL/2 at each end
+        half = {t: member.values[f"w_{t}"] * member.length / 2 for t in LOAD_TYPES if member.values[f"w_{t}"]}
+        return {1: dict(half), 2: dict(half)}
     model = model_of(member)
     out: dict[int, dict[str, float]] = {}
     for t in model.present():
