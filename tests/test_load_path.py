@@ -222,3 +222,14 @@ def test_purlins_hold_the_top_edge_only(tmp_path, data):
     assert positive.factors["K_L"] == 1.0 and "C_B" not in positive.factors
     # bottom edge unsupported between supports and to the tip: over the support, the longer of span and overhang
     assert "C_B" in negative.factors and negative.factors["L_u"] == 3000.0  # the longer side of the support
+
+
+def test_package_change_list_names_the_cause():
+    # the package's "changes since" table carries the same cause as the diff
+    from timbersheets.package import change_rows
+    from timbersheets.revisions import MemberChange
+
+    change = MemberChange("G-1", "changed", inputs=[("carried", "RB-1.R2: S 9 kN", "RB-1.R2: S 10.8 kN")],
+                          because=["RB-1"])
+    rows = change_rows([change])
+    assert rows[0]["what"] == "because" and rows[0]["new"] == "RB-1 changed" and rows[1]["item"] == "carried"
