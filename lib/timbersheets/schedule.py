@@ -8,7 +8,6 @@ allowed. A bad row is kept as an error entry; the other rows go on.
 
 from __future__ import annotations
 
-import csv
 import difflib
 import hashlib
 import json
@@ -18,6 +17,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+from .csvtext import cell_problem, clean, physical_lines, split_records
 from .errors import JobError, ParameterError, ScheduleError
 from .materials import GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, sawn_table_grade
 from .sections import Section, parse_size, sawn_category
@@ -26,7 +26,9 @@ from .units import UnitParseError, convert, parse_quantity
 LOAD_TYPES = ("D", "L", "S", "W", "E")
 MEMBER_TYPES = ("tension", "compression", "bending", "beam-column", "tension-bending")
 MARK = re.compile(r"^[A-Za-z0-9._-]+$")
-EXTRA = "\x00extra"  # key marking a row with more cells than the header
+EXTRA = "\x00extra"  # key marking a row with cells beyond the header (their column numbers)
+BAD = "\x00bad:"  # key prefix marking a cell the file holds no usable value for (the problem)
+UNREAD = "\x00unread"  # key marking a row that could not be read whole (the problem)
 
 
 @dataclass(frozen=True)
@@ -181,58 +183,117 @@ class Schedule:
 
 # --------------------------------------------------------------------------- reading
 def read_rows(path: Path) -> tuple[list[str], list[tuple[int, dict[str, str]]], list[str]]:
-    """Header, rows as (spreadsheet row number, {column: text}), and notes."""
+    """Header, rows as (spreadsheet row number, {column: text}), and notes.
+
+    A row that cannot be read whole (a runaway quote) comes back as ``{UNREAD: problem}``.
+    """
     if not path.exists():
         raise JobError(str(path), "no schedule file", "Create schedule.csv (timbersheets new DIR makes one)")
+    if not path.is_file():
+        raise JobError(str(path), "is not a file", "The schedule is a CSV or .xlsx file in the job folder")
     if path.suffix.lower() == ".xlsx":
         return _read_xlsx(path)
-    raw = path.read_bytes()
-    try:
-        text = raw.decode("utf-8-sig")
-    except UnicodeDecodeError as exc:
-        raise JobError(str(path), f"is not UTF-8 text (byte {exc.start})", "Save it as CSV UTF-8") from None
-    lines = text.splitlines()
+    text = decode_text(path)
     notes: list[str] = []
-    first = next((ln for ln in lines if ln.strip()), "")
+    first = next((ln for ln in physical_lines(text) if ln.strip()), "")
     delimiter = ","
     if first.count(";") > first.count(","):
         delimiter = ";"
         notes.append(f"{path.name}: read as semicolon-separated (decimal commas accepted)")
-    reader = csv.reader(lines, delimiter=delimiter)
-    table = list(reader)
-    if not table:
+    table = split_records(text, delimiter)
+    if not table or not any(c.strip() for c in table[0].cells):
         raise JobError(str(path), "is empty", "The first row must name the columns (mark, type, ...)")
-    header = [h.strip() for h in table[0]]
+    if table[0].problem:
+        raise JobError(f"{path.name}, row 1", table[0].problem)
+    header = [h.strip() for h in table[0].cells]
+    _refuse_duplicates(path.name, header)
     rows = []
-    for number, cells in enumerate(table[1:], start=2):
+    for record in table[1:]:
+        cells = record.cells
+        if record.problem:
+            rows.append((record.row, {"mark": cells[0].strip() if cells else "", UNREAD: record.problem}))
+            continue
         if not any(c.strip() for c in cells):
             continue
         if delimiter == ";":
             cells = [re.sub(r"^(\s*[-+]?\d+),(\d+)", r"\1.\2", c) for c in cells]
-        row = {h: (cells[i].strip() if i < len(cells) else "") for i, h in enumerate(header)}
-        if any(c.strip() for c in cells[len(header):]):
-            row[EXTRA] = "yes"
-        rows.append((number, row))
+        rows.append((record.row, _row_dict(header, cells)))
     return header, rows, notes
 
 
+def decode_text(path: Path) -> str:
+    """The text of a file saved as UTF-8 (with or without BOM) or UTF-16 (with BOM)."""
+    raw = path.read_bytes()
+    if raw[:2] in (b"\xff\xfe", b"\xfe\xff"):
+        try:
+            return raw.decode("utf-16")
+        except UnicodeDecodeError:
+            raise JobError(str(path), "is not valid UTF-16 text", "Save it as CSV UTF-8") from None
+    try:
+        return raw.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        line = raw[:exc.start].count(b"\n") + 1
+        raise JobError(str(path), f"is not UTF-8 text (line {line}, byte {exc.start})", "Save it as CSV UTF-8") from None
+
+
+def _refuse_duplicates(file: str, header: list[str]) -> None:
+    seen: dict[str, int] = {}
+    for number, name in enumerate(header, start=1):
+        if name and name in seen:
+            raise JobError(f"{file}, row 1, column '{name}'",
+                           f"appears twice (columns {seen[name]} and {number}); which one holds the value is unclear",
+                           "Keep one column of each name")
+        seen.setdefault(name, number)
+
+
+def _row_dict(header: list[str], cells: list[str]) -> dict[str, str]:
+    row = {h: (clean(cells[i]) if i < len(cells) else "") for i, h in enumerate(header) if h}
+    beyond = [i for i, c in enumerate(cells) if c.strip() and (i >= len(header) or not header[i])]
+    if beyond:
+        row[EXTRA] = ", ".join(str(i + 1) for i in beyond)
+    return row
+
+
 def _read_xlsx(path: Path) -> tuple[list[str], list[tuple[int, dict[str, str]]], list[str]]:
+    """The first sheet, numbers at full precision. A formula with no saved value and a
+    cell hidden under a merge are errors of their cell: both would read as blank."""
     import openpyxl
 
     try:
-        book = openpyxl.load_workbook(path, read_only=True, data_only=True)
+        book = openpyxl.load_workbook(path, data_only=True)
+        formulas = openpyxl.load_workbook(path, data_only=False).worksheets[0]
     except Exception as exc:  # openpyxl raises many kinds for a bad file
         raise JobError(str(path), f"cannot be read as .xlsx ({exc})") from None
     sheet = book.worksheets[0]
-    table = [["" if v is None else (f"{v:g}" if isinstance(v, float) else str(v)) for v in row]
-             for row in sheet.iter_rows(values_only=True)]
-    book.close()
+    table = [[_xlsx_text(v) for v in row] for row in sheet.iter_rows(values_only=True)]
     if not table:
         raise JobError(str(path), "is empty")
     header = [h.strip() for h in table[0]]
-    rows = [(n, {h: (cells[i].strip() if i < len(cells) else "") for i, h in enumerate(header) if h})
-            for n, cells in enumerate(table[1:], start=2) if any(c.strip() for c in cells)]
+    _refuse_duplicates(path.name, header)
+    hidden = {cell: str(r) for r in sheet.merged_cells.ranges for cell in list(r.cells)[1:]}
+    rows = []
+    for n, cells in enumerate(table[1:], start=2):
+        row = _row_dict(header, cells)
+        for i, name in enumerate(header):
+            if not name:
+                continue
+            if (n, i + 1) in hidden:
+                row[BAD + name] = (f"is inside merged cells {hidden[(n, i + 1)]}; only the first cell of a merge "
+                                   "holds a value. Unmerge and fill every row")
+            elif cells[i:i + 1] == [""] and formulas.cell(n, i + 1).data_type == "f":
+                row[BAD + name] = ("is a formula with no saved value; open the file in a spreadsheet program "
+                                   "and save it, so the value is stored")
+        if any(c.strip() for c in cells) or any(k.startswith(BAD) for k in row):
+            rows.append((n, row))
     return header, rows, []
+
+
+def _xlsx_text(value: Any) -> str:
+    if value is None:
+        return ""
+    if isinstance(value, float):
+        return repr(value)
+    return str(value)
 
 
 # --------------------------------------------------------------------------- validating
@@ -240,6 +301,8 @@ def load_schedule(path: Path) -> Schedule:
     """Read and validate every row of the schedule at `path`."""
     header, rows, notes = read_rows(path)
     name = path.name
+    if not rows:
+        raise JobError(str(path), "has no member rows", "Give one row per member below the header")
     warnings = list(notes)
     missing = [c for c in REQUIRED if c not in header]
     if missing:
@@ -276,17 +339,26 @@ def _validate_row(file: str, row: int, cells: dict[str, str]) -> tuple[list[Sche
     errors: list[ScheduleError] = []
     values: dict[str, Any] = {}
     given: set[str] = set()
+    if UNREAD in cells:
+        return [ScheduleError(file, row, None, None, cells[UNREAD])], values, given
     if EXTRA in cells:
-        errors.append(ScheduleError(file, row, None, None, "has more cells than the header has columns",
-                                    "one cell per header column (quote text that contains commas)"))
+        errors.append(ScheduleError(file, row, None, None, f"has a value in column(s) {cells[EXTRA]}, beyond the "
+                                    "named columns", "one cell per header column (quote text that contains commas)"))
     for name, col in COLUMNS.items():
         text = cells.get(name, "")
+        if BAD + name in cells:
+            errors.append(ScheduleError(file, row, name, None, cells[BAD + name]))
+            continue
         if not text:
             if col.required:
                 errors.append(ScheduleError(file, row, name, "", "is blank, but the column is required", _allowed(col)))
             values[name] = col.default
             continue
         given.add(name)
+        problem = cell_problem(text)
+        if problem:
+            errors.append(ScheduleError(file, row, name, text[:40] + ("..." if len(text) > 40 else ""), problem))
+            continue
         try:
             values[name] = _read_cell(col, text)
         except ValueError as exc:
