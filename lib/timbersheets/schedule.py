@@ -44,9 +44,15 @@ class Column:
     choices: tuple[str, ...] = ()
     minimum: float | None = None  # values must be >= minimum (or > when strict)
     strict: bool = False
+    maximum: float | None = None  # values must be <= maximum
 
 
 def _columns() -> tuple[Column, ...]:
+    """The columns and their physical bounds, in entry units (a value outside is a row error).
+
+    Bounds are the range real members have, not the range the formulas accept: a
+    factor or a length outside them is a typing slip that would change the verdict.
+    """
     cols = [
         Column("mark", "text", required=True),
         Column("type", "choice", required=True, choices=MEMBER_TYPES),
@@ -54,28 +60,37 @@ def _columns() -> tuple[Column, ...]:
         Column("species", "text", required=True),
         Column("grade", "text", required=True),
         Column("size", "size", required=True),
-        Column("plies", "count", default=1, minimum=1),
+        Column("plies", "count", default=1, minimum=1, maximum=5),  # common practice: built-up of 2 to 5 plies
         Column("service", "choice", default="dry", choices=("dry", "wet")),
-        Column("K_T", "number", default=1.0, minimum=0, strict=True),
-        Column("K_H", "number", default=1.0, minimum=0, strict=True),
-        Column("length", "quantity", "m", "mm", required=True, minimum=0, strict=True),
-        Column("Ke", "number", default=1.0, minimum=0, strict=True),
-        Column("Lx", "quantity", "m", "mm", minimum=0),  # 0 = braced about x over the length
-        Column("Ly", "quantity", "m", "mm", minimum=0),  # 0 = braced about y (e.g. sheathing)
-        Column("Lu", "quantity", "m", "mm", default=0.0, minimum=0),
+        # K_T reduces strength for incised or fire-retardant-treated wood and never raises it (O86 5.4.3, 6.4.3)
+        Column("K_T", "number", default=1.0, minimum=0.5, maximum=1.0),
+        Column("K_H", "number", default=1.0, minimum=1.0, maximum=1.4),  # O86 5.4.4: 1.0 to 1.4
+        # common practice: longer than 60 m is no single timber member; shorter than 0.1 m is no member
+        Column("length", "quantity", "m", "mm", required=True, minimum=0.1, maximum=60),
+        # O86 Annex A (from memory): recommended Ke from 0.65 (both ends fixed) to 2.4 (sway, far end
+        # pinned); 0.5 is the theoretical least
+        Column("Ke", "number", default=1.0, minimum=0.5, maximum=2.4),
+        Column("Lx", "quantity", "m", "mm", minimum=0, maximum=60),  # 0 = braced about x over the length
+        Column("Ly", "quantity", "m", "mm", minimum=0, maximum=60),  # 0 = braced about y (e.g. sheathing)
+        Column("Lu", "quantity", "m", "mm", default=0.0, minimum=0, maximum=60),
         # lateral restraint beyond what Lu says (bending members): bridging or blocking at 8d, or both edges held
         Column("restraint", "choice", choices=("purlins", "blocking", "both-edges")),
-        Column("net_area", "number", default=1.0, minimum=0, strict=True),
-        Column("bearing", "quantity", "mm", "mm", minimum=0, strict=True),
+        Column("net_area", "number", default=1.0, minimum=0, strict=True),  # 0.75 to 1.0 in the cross-checks
+        Column("bearing", "quantity", "mm", "mm", minimum=0, strict=True, maximum=2000),
     ]
-    for prefix, unit, compute in (("P", "kN", "N"), ("w", "kN/m", "N/mm"), ("M", "kN*m", "N*mm"), ("V", "kN", "N")):
-        cols += [Column(f"{prefix}_{t}", "quantity", unit, compute, default=0.0) for t in LOAD_TYPES]
+    # common practice: a timber member carries well under 10 MN, 1 MN/m or 10 MN·m; beyond is a unit slip
+    for prefix, unit, compute, bound in (("P", "kN", "N", 1e4), ("w", "kN/m", "N/mm", 1e3),
+                                         ("M", "kN*m", "N*mm", 1e4), ("V", "kN", "N", 1e4)):
+        cols += [Column(f"{prefix}_{t}", "quantity", unit, compute, default=0.0, minimum=-bound, maximum=bound)
+                 for t in LOAD_TYPES]
     cols += [
-        Column("defl_L", "number", default=360.0, minimum=0, strict=True),
-        Column("defl_total", "number", default=240.0, minimum=0, strict=True),
+        # span divisors: common practice from L/120 (cantilevers, roofs without ceilings) to L/2000 (vibration)
+        Column("defl_L", "number", default=360.0, minimum=120, maximum=2000),
+        Column("defl_total", "number", default=240.0, minimum=120, maximum=2000),
         Column("K_D", "number", minimum=0, strict=True),
-        Column("width", "quantity", "mm", "mm", minimum=0, strict=True),
-        Column("max_depth", "quantity", "mm", "mm", minimum=0, strict=True),
+        # sizing constraints, common practice: no glulam is wider than 365 mm or deeper than 2.5 m
+        Column("width", "quantity", "mm", "mm", minimum=0, strict=True, maximum=365),
+        Column("max_depth", "quantity", "mm", "mm", minimum=0, strict=True, maximum=2500),
         Column("prefer", "choice", choices=("deep", "square")),
         Column("note", "text", default=""),
     ]
@@ -376,14 +391,25 @@ def _allowed(col: Column) -> str:
     if col.kind == "size":
         return "b x d in mm, e.g. 38x235 or 130x228"
     if col.kind == "count":
-        return "a whole number of at least 1"
+        return f"a whole number from {col.minimum:g} to {col.maximum:g}"
     if col.kind == "quantity":
-        bound = "greater than 0" if col.strict else "0 or more" if col.minimum is not None else "any sign"
-        return f"a number in {col.unit} ({bound}), or with its own unit, e.g. '12 ft'"
+        return f"a number in {col.unit} ({bound_text(col)}), or with its own unit, e.g. '12 ft'"
     if col.kind == "number":
-        bound = "greater than 0" if col.strict else "0 or more"
-        return f"a plain number ({bound})"
+        return f"a plain number ({bound_text(col)})"
     return ""
+
+
+def bound_text(col: Column) -> str:
+    """The column's bounds in words, as the column reference states them."""
+    low = col.minimum
+    if low is None:
+        return "any value"
+    if col.maximum is not None and low == -col.maximum:
+        return f"from {low:g} to {col.maximum:g}"
+    if col.maximum is None:
+        return "greater than 0" if col.strict and low == 0 else f"greater than {low:g}" if col.strict \
+            else "0 or more" if low == 0 else f"at least {low:g}"
+    return f"{'over' if col.strict else 'from'} {low:g} {'up ' if col.strict else ''}to {col.maximum:g}"
 
 
 def _read_cell(col: Column, text: str) -> Any:
@@ -404,8 +430,8 @@ def _read_cell(col: Column, text: str) -> Any:
         except ValueError:
             raise ValueError("is not a size") from None
     if col.kind == "count":
-        if not re.fullmatch(r"\d+", text) or int(text) < 1:
-            raise ValueError("is not a whole number of at least 1")
+        if not re.fullmatch(r"\d{1,6}", text) or not col.minimum <= int(text) <= col.maximum:
+            raise ValueError(f"is not a whole number from {col.minimum:g} to {col.maximum:g}")
         return int(text)
     if col.kind == "quantity":
         try:
@@ -425,12 +451,13 @@ def _read_cell(col: Column, text: str) -> Any:
 
 
 def _check_bound(col: Column, value: float) -> None:
-    if col.minimum is None:
-        return
-    if col.strict and value <= col.minimum:
-        raise ValueError("must be greater than 0" if col.minimum == 0 else f"must exceed {col.minimum:g}")
-    if value < col.minimum:
-        raise ValueError("must not be negative" if col.minimum == 0 else f"must be at least {col.minimum:g}")
+    if col.minimum is not None:
+        if col.strict and value <= col.minimum:
+            raise ValueError("must be greater than 0" if col.minimum == 0 else f"must exceed {col.minimum:g}")
+        if value < col.minimum:
+            raise ValueError("must not be negative" if col.minimum == 0 else f"must be at least {col.minimum:g}")
+    if col.maximum is not None and value > col.maximum:
+        raise ValueError(f"exceeds {col.maximum:g}, more than any real member has")
 
 
 def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> list[ScheduleError]:
@@ -486,9 +513,6 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> li
             v[name] = v["length"]
     if v["type"] in ("beam-column", "tension-bending") and "Lu" not in given:
         v["Lu"] = v["length"]  # a column's compression edge is not held unless the row says so
-    if v["K_H"] is not None and v["K_H"] > 1.4:
-        errs.append(ScheduleError(file, row, "K_H", f"{v['K_H']:g}", "exceeds the largest system factor of O86 "
-                                  "(1.4, Case 2 for bending and shear)", "1.0 to 1.4"))
     return errs
 
 
