@@ -5,6 +5,7 @@ from __future__ import annotations
 import csv
 import io
 import json
+import math
 import os
 import tempfile
 from pathlib import Path
@@ -28,7 +29,19 @@ def write_atomic(path: Path, data: bytes | str) -> None:
 
 
 def write_json(path: Path, doc: Any) -> None:
-    write_atomic(path, json.dumps(doc, indent=2, ensure_ascii=False) + "\n")
+    """Strict JSON: a NaN or infinity that reached the document is written as null, never bare."""
+    write_atomic(path, json.dumps(finite(doc), indent=2, ensure_ascii=False, allow_nan=False) + "\n")
+
+
+def finite(doc: Any) -> Any:
+    """`doc` with every non-finite float replaced by None."""
+    if isinstance(doc, float):
+        return doc if math.isfinite(doc) else None
+    if isinstance(doc, dict):
+        return {k: finite(v) for k, v in doc.items()}
+    if isinstance(doc, (list, tuple)):
+        return [finite(v) for v in doc]
+    return doc
 
 
 def spreadsheet_safe(value: Any) -> Any:
