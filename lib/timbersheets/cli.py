@@ -209,7 +209,7 @@ def cmd_diff(args: argparse.Namespace) -> int:
 
 def cmd_review(args: argparse.Namespace) -> int:
     from .project import load_project
-    from .review import Review, append_reviews, latest, read_reviews, status, today
+    from .review import Review, append_reviews, latest, load_review_file, status, today
     from .revisions import load_results
     from .runner import job_dir
     from .schedule import load_schedule
@@ -217,8 +217,11 @@ def cmd_review(args: argparse.Namespace) -> int:
     project = load_project(args.dir)
     results = load_results(job_dir(project, args.out) / f"rev-{project.revision}")
     members = {m["mark"]: m for m in results["members"]}
+    record = load_review_file(project.folder)
+    for problem in record.problems:
+        print(f"warning: {problem}", file=sys.stderr)
     if args.status:
-        reviews = latest(read_reviews(project.folder))
+        reviews = latest(record.reviews)
         pending = []
         for mark, m in members.items():
             state = status(reviews.get(mark), m.get("inputs_hash"))

@@ -19,13 +19,13 @@ from pathlib import Path
 from . import __version__
 from .data import DataSet
 from .design import MemberDesign, design_all, member_types
-from .fileio import write_atomic
+from .fileio import copy_atomic, write_atomic
 from .pipeline import templates_dir
 from .progress import Progress
 from .project import Project, load_project
 from .fileio import write_csv
 from .results import member_json, results_doc, write_results
-from .review import latest, read_reviews, status, titleblock_text
+from .review import latest, load_review_file, read_reviews, status, titleblock_text
 from .revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
 from .schedule import load_schedule
 from .sheetjobs import SheetOutcome, SheetTask, from_cache, run_sheet
@@ -231,7 +231,7 @@ def snapshot_inputs(project: Project, stage: Path) -> None:
     for path in (project.folder / "project.toml", project.schedule_path, project.folder / "review.csv",
                  project.materials):
         if path and path.exists():
-            shutil.copyfile(path, inputs / path.name)
+            copy_atomic(path, inputs / path.name)
 
 
 def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
@@ -244,6 +244,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     started = time.monotonic()
     project = load_project(folder)
     schedule = load_schedule(project.schedule_path)
+    schedule.warnings += load_review_file(project.folder).problems
     data = DataSet(project.materials)
     designs = design_all(schedule.entries, data)
     jobdir = job_dir(project, opts.out)

@@ -10,13 +10,12 @@ from __future__ import annotations
 
 import hashlib
 import json
-import os
-import shutil
 from dataclasses import dataclass, field
 from functools import cached_property
 from pathlib import Path
 from typing import Any
 
+from .fileio import copy_atomic
 from .pipeline import ConversionError, execute, file_hash, library_fingerprint, notebook_to_pdf, to_html
 
 RESULT_MIME = "application/vnd.timbersheets.result+json"
@@ -56,13 +55,6 @@ class SheetOutcome:
     error: str | None = None  # notebook error (the notebook is kept, error marked)
     pages: int = 0  # pages of the PDF sheet (0: not known)
     record: dict[str, Any] | None = field(default=None, repr=False)
-
-
-def copy_atomic(src: Path, dst: Path) -> None:
-    dst.parent.mkdir(parents=True, exist_ok=True)
-    staged = dst.with_name(f".{dst.name}.part")
-    shutil.copyfile(src, staged)
-    os.replace(staged, dst)
 
 
 def read_record(notebook: Path) -> tuple[dict[str, Any] | None, str | None]:
