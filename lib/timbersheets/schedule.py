@@ -26,6 +26,13 @@ from .units import UnitParseError, convert, parse_quantity
 LOAD_TYPES = ("D", "L", "S", "W", "E")
 MEMBER_TYPES = ("tension", "compression", "bending", "beam-column", "tension-bending")
 MARK = re.compile(r"^[A-Za-z0-9._-]+$")
+LOAD_NAMES = {"D": "dead", "L": "live", "S": "snow (with rain)", "W": "wind", "E": "earthquake"}
+LOAD_MEANING = {
+    "P": "axial force (positive = the member's own sense: tension for tension members, compression otherwise)",
+    "w": "uniform line load on the simple span `length`",
+    "M": "strong-axis moment, where a frame model gives it",
+    "V": "shear, where a frame model gives it",
+}
 EXTRA = "\x00extra"  # key marking a row with cells beyond the header (their column numbers)
 BAD = "\x00bad:"  # key prefix marking a cell the file holds no usable value for (the problem)
 UNREAD = "\x00unread"  # key marking a row that could not be read whole (the problem)
@@ -33,7 +40,11 @@ UNREAD = "\x00unread"  # key marking a row that could not be read whole (the pro
 
 @dataclass(frozen=True)
 class Column:
-    """One schedule column: how to read it and what it defaults to."""
+    """One schedule column: what it means, how to read it and what it defaults to.
+
+    `meaning` is what `timbersheets columns` and docs/columns.md print; every
+    column has one.
+    """
 
     name: str
     kind: str  # text | choice | quantity | number | count | size
@@ -45,6 +56,8 @@ class Column:
     minimum: float | None = None  # values must be >= minimum (or > when strict)
     strict: bool = False
     maximum: float | None = None  # values must be <= maximum
+    meaning: str = ""
+    blank: str = ""  # what a blank cell means, where that is not simply `default`
 
 
 def _columns() -> tuple[Column, ...]:
@@ -54,45 +67,72 @@ def _columns() -> tuple[Column, ...]:
     factor or a length outside them is a typing slip that would change the verdict.
     """
     cols = [
-        Column("mark", "text", required=True),
-        Column("type", "choice", required=True, choices=MEMBER_TYPES),
-        Column("material", "choice", required=True, choices=("sawn", "glulam")),
-        Column("species", "text", required=True),
-        Column("grade", "text", required=True),
-        Column("size", "size", required=True),
-        Column("plies", "count", default=1, minimum=1, maximum=5),  # common practice: built-up of 2 to 5 plies
-        Column("service", "choice", default="dry", choices=("dry", "wet")),
-        # K_T reduces strength for incised or fire-retardant-treated wood and never raises it (O86 5.4.3, 6.4.3)
-        Column("K_T", "number", default=1.0, minimum=0.5, maximum=1.0),
-        Column("K_H", "number", default=1.0, minimum=1.0, maximum=1.4),  # O86 5.4.4: 1.0 to 1.4
+        Column("mark", "text", required=True,
+               meaning="member mark, unique in the job"),
+        Column("type", "choice", required=True, choices=MEMBER_TYPES,
+               meaning="member type: what it carries and which checks it runs (beam-column = bending + axial compression)"),
+        Column("material", "choice", required=True, choices=("sawn", "glulam"),
+               meaning="sawn lumber or timber, or glulam"),
+        Column("species", "text", required=True,
+               meaning="species group: sawn D.Fir-L, Hem-Fir, S-P-F, Northern; glulam D.Fir-L, Spruce-Pine (short forms DFL, HF, SPF, NOR, SP accepted)"),
+        Column("grade", "text", required=True,
+               meaning="stress grade: sawn SS, No.1, No.2, No.1/No.2, No.3, Stud; glulam 20f-E, 20f-EX, 24f-E, 24f-EX, 16c-E, 12c-E, 18t-E, 14t-E"),
+        Column("size", "size", required=True,
+               meaning="dressed size b x d in mm (38x235, 130x228); auto = the tool picks the lightest passing section"),
+        # common practice: built-up members of 2 to 5 plies
+        Column("plies", "count", default=1, minimum=1, maximum=5,
+               meaning="number of laminations of a built-up sawn member"),
+        Column("service", "choice", default="dry", choices=("dry", "wet"),
+               meaning="service condition (O86 K_S)"),
+        # K_T reduces strength for incised or fire-retardant-treated wood, never raises it (O86 5.4.3)
+        Column("K_T", "number", default=1.0, minimum=0.5, maximum=1.0,
+               meaning="treatment factor"),
+        # O86 5.4.4: system factors from 1.0 to 1.4 (Case 2 for bending and shear)
+        Column("K_H", "number", default=1.0, minimum=1.0, maximum=1.4,
+               meaning="system factor (load sharing), sawn lumber only"),
         # common practice: longer than 60 m is no single timber member; shorter than 0.1 m is no member
-        Column("length", "quantity", "m", "mm", required=True, minimum=0.1, maximum=60),
+        Column("length", "quantity", "m", "mm", required=True, minimum=0.1, maximum=60,
+               meaning="member length (the span of a beam)"),
         # O86 Annex A (from memory): recommended Ke from 0.65 (both ends fixed) to 2.4 (sway, far end
         # pinned); 0.5 is the theoretical least
-        Column("Ke", "number", default=1.0, minimum=0.5, maximum=2.4),
-        Column("Lx", "quantity", "m", "mm", minimum=0, maximum=60),  # 0 = braced about x over the length
-        Column("Ly", "quantity", "m", "mm", minimum=0, maximum=60),  # 0 = braced about y (e.g. sheathing)
-        Column("Lu", "quantity", "m", "mm", default=0.0, minimum=0, maximum=60),
-        # lateral restraint beyond what Lu says (bending members): bridging or blocking at 8d, or both edges held
-        Column("restraint", "choice", choices=("purlins", "blocking", "both-edges")),
-        Column("net_area", "number", default=1.0, minimum=0, strict=True),  # 0.75 to 1.0 in the cross-checks
-        Column("bearing", "quantity", "mm", "mm", minimum=0, strict=True, maximum=2000),
+        Column("Ke", "number", default=1.0, minimum=0.5, maximum=2.4,
+               meaning="effective length factor, both axes"),
+        Column("Lx", "quantity", "m", "mm", minimum=0, maximum=60,
+               meaning="unbraced length about the strong (x) axis; 0 = braced over the length", blank="length"),
+        Column("Ly", "quantity", "m", "mm", minimum=0, maximum=60,
+               meaning="unbraced length about the weak (y) axis; 0 = braced (e.g. by sheathing)", blank="length"),
+        Column("Lu", "quantity", "m", "mm", default=0.0, minimum=0, maximum=60,
+               meaning="laterally unsupported length of the compression edge (0 = held continuously by decking or joists)",
+               blank="0 on a bending member; length on a beam-column or tension-bending member"),
+        Column("restraint", "choice", choices=("purlins", "blocking", "both-edges"),
+               meaning="lateral bracing beyond what Lu says: purlins, bridging or blocking at 8d, or both edges held"),
+        Column("net_area", "number", default=1.0, minimum=0, strict=True,
+               meaning="A_n / A_g at the worst cross-section (holes, notches)"),
+        Column("bearing", "quantity", "mm", "mm", minimum=0, strict=True, maximum=2000,
+               meaning="bearing length at each support", blank="none (no bearing check)"),
     ]
     # common practice: a timber member carries well under 10 MN, 1 MN/m or 10 MN·m; beyond is a unit slip
     for prefix, unit, compute, bound in (("P", "kN", "N", 1e4), ("w", "kN/m", "N/mm", 1e3),
                                          ("M", "kN*m", "N*mm", 1e4), ("V", "kN", "N", 1e4)):
-        cols += [Column(f"{prefix}_{t}", "quantity", unit, compute, default=0.0, minimum=-bound, maximum=bound)
-                 for t in LOAD_TYPES]
+        cols += [Column(f"{prefix}_{t}", "quantity", unit, compute, default=0.0, minimum=-bound, maximum=bound,
+                        meaning=f"specified {LOAD_MEANING[prefix]} from {LOAD_NAMES[t]} load") for t in LOAD_TYPES]
     cols += [
-        # span divisors: common practice from L/120 (cantilevers, roofs without ceilings) to L/2000 (vibration)
-        Column("defl_L", "number", default=360.0, minimum=120, maximum=2000),
-        Column("defl_total", "number", default=240.0, minimum=120, maximum=2000),
-        Column("K_D", "number", minimum=0, strict=True),
+        # span divisors: common practice from L/120 (cantilevers, roofs without ceilings) to L/2000
+        Column("defl_L", "number", default=360.0, minimum=120, maximum=2000,
+               meaning="live-load deflection limit as a span divisor (360 = L/360)"),
+        Column("defl_total", "number", default=240.0, minimum=120, maximum=2000,
+               meaning="total-load deflection limit as a span divisor (240 = L/240)"),
+        Column("K_D", "number", minimum=0, strict=True,
+               meaning="override of the load-duration factor, marked on the sheet", blank="computed per combination"),
         # sizing constraints, common practice: no glulam is wider than 365 mm or deeper than 2.5 m
-        Column("width", "quantity", "mm", "mm", minimum=0, strict=True, maximum=365),
-        Column("max_depth", "quantity", "mm", "mm", minimum=0, strict=True, maximum=2500),
-        Column("prefer", "choice", choices=("deep", "square")),
-        Column("note", "text", default=""),
+        Column("width", "quantity", "mm", "mm", minimum=0, strict=True, maximum=365,
+               meaning="sizing constraint for size = auto: a fixed width"),
+        Column("max_depth", "quantity", "mm", "mm", minimum=0, strict=True, maximum=2500,
+               meaning="sizing constraint for size = auto: the largest depth"),
+        Column("prefer", "choice", choices=("deep", "square"),
+               meaning="sizing preference among passing sections of near-equal weight", blank="lightest"),
+        Column("note", "text", default="",
+               meaning="free text printed on the sheet"),
     ]
     return tuple(cols)
 
