@@ -202,6 +202,13 @@ def cmd_diff(args: argparse.Namespace) -> int:
     from .revisions import DIFF_HEADER, diff, diff_rows, format_diff, load_results
     from .runner import job_dir
 
+    from .labels import label_problem
+
+    for option, label in (("--from", args.r1), ("--to", args.r2)):
+        if label_problem(label):
+            print(f"timbersheets: {option} '{label[:50]}' {label_problem(label)}; give a revision label as in "
+                  "project.toml, e.g. A", file=sys.stderr)
+            return 2
     project = load_project(args.dir)
     base = job_dir(project, args.out)
     old, new = load_results(base / f"rev-{args.r1}"), load_results(base / f"rev-{args.r2}")

@@ -19,13 +19,13 @@ from typing import Any
 
 from .csvtext import cell_problem, clean, physical_lines, split_records
 from .errors import JobError, ParameterError, ScheduleError
+from .labels import label_problem
 from .materials import GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, sawn_table_grade
 from .sections import Section, parse_size, sawn_category
 from .units import UnitParseError, convert, parse_quantity
 
 LOAD_TYPES = ("D", "L", "S", "W", "E")
 MEMBER_TYPES = ("tension", "compression", "bending", "beam-column", "tension-bending")
-MARK = re.compile(r"^[A-Za-z0-9._-]+$")
 LOAD_NAMES = {"D": "dead", "L": "live", "S": "snow (with rain)", "W": "wind", "E": "earthquake"}
 LOAD_MEANING = {
     "P": "axial force (positive = the member's own sense: tension for tension members, compression otherwise)",
@@ -374,7 +374,7 @@ def load_schedule(path: Path) -> Schedule:
     for number, cells in rows:
         mark = cells.get("mark", "")
         errors, values, given = _validate_row(name, number, cells)
-        if mark and MARK.match(mark):
+        if mark and not label_problem(mark):
             if mark in first_row:
                 errors.insert(0, ScheduleError(name, number, "mark", mark,
                                                f"is a duplicate of the mark in row {first_row[mark]}",
@@ -425,7 +425,7 @@ def _validate_row(file: str, row: int, cells: dict[str, str]) -> tuple[list[Sche
 
 def _allowed(col: Column) -> str:
     if col.name == "mark":
-        return "letters, digits, '-', '_' and '.'"
+        return "letters, digits, '-', '_' and '.', at most 40 characters"
     if col.kind == "choice":
         return ", ".join(col.choices)
     if col.kind == "size":
@@ -454,8 +454,8 @@ def bound_text(col: Column) -> str:
 
 def _read_cell(col: Column, text: str) -> Any:
     if col.kind == "text":
-        if col.name == "mark" and not MARK.match(text):
-            raise ValueError("has characters a mark may not have")
+        if col.name == "mark" and label_problem(text):
+            raise ValueError(label_problem(text))
         return text
     if col.kind == "choice":
         folded = {c.casefold(): c for c in col.choices}
