@@ -59,6 +59,7 @@ class Case:
     job_level: bool = False  # the job itself is unusable: exit 2, nothing designed
     prior_run: bool = False  # a clean run before (review and diff need results)
     may_write: tuple[str, ...] = ()  # job files the command may change (review.csv)
+    rows: dict[str, int] = field(default_factory=dict)  # mark -> the row a spreadsheet shows it in
 
 
 def csv_text(rows: list[list[str]], header: list[str] = HEADER, sep: str = ",") -> str:
@@ -135,10 +136,18 @@ def text_cases() -> list[Case]:
         "bom": ("\ufeff" + f"{head}\n{good1}\n{good2}\n", None),
         "stray-quote-mid-cell": (f'{head}\n{good1}\n' + ",".join(BAD_ROW[:-1]) + ',5 "inch\n' + f"{good2}\n", None),
     }
+    control = ("form-feed", "next-line", "vertical-tab", "nul-byte")
+    for name in control:
+        texts[name] = (texts[name][0], "row 3")
+    numbered = (*control, "line-separator", "quoted-newline", "stray-quote-mid-cell", "extra-cell", "short-row",
+                "unclosed-quote-middle")
     cases = []
     for name, (text, row) in texts.items():
         files = {"project.toml": PROJECT.encode(), "schedule.csv": text.encode()}
-        cases.append(Case(f"csv-{name}", files, where=("schedule.csv", row) if row else ()))
+        job_level = name.startswith("duplicate-")
+        cases.append(Case(f"csv-{name}", files, where=("schedule.csv", row) if row else (), job_level=job_level,
+                          good=() if job_level else ("G-1", "G-2"),
+                          rows={"G-1": 2, "G-2": 4} if name in numbered else {}))
     whole = {  # the schedule as a whole is unusable
         "empty": b"", "header-only": (head + "\n").encode(), "no-required": b"a,b,c\n1,2,3\n",
         "latin1": csv_text([[*GOOD["G-1"][:-1], "poteau \xe9"]]).encode("latin-1"),
@@ -174,7 +183,6 @@ def project_cases() -> list[Case]:
         "materials-escape": (PROJECT + '[data]\nmaterials = "../../../../etc/hostname"\n').encode(),
         "materials-missing": (PROJECT + '[data]\nmaterials = "nope.csv"\n').encode(),
         "materials-dir": (PROJECT + '[data]\nmaterials = "."\n').encode(),
-        "revision-int": PROJECT.replace('"A"', "7").encode(),
     }
     cases = []
     for name, raw in tomls.items():
@@ -187,6 +195,8 @@ def project_cases() -> list[Case]:
         raw = PROJECT.replace("Corpus job", title.replace("\\", "\\\\").replace('"', '\\"')
                               if name != "nul" else title).encode()
         cases.append(Case(f"toml-title-{name}", {"project.toml": raw, "schedule.csv": body}))
+    cases.append(Case("toml-revision-int", {"project.toml": PROJECT.replace('"A"', "7").encode(), "schedule.csv": body},
+                      argv=["run", "{job}", "--no-pdf", "--jobs", "1", "--out", "{out}"], good=()))
     cases.append(Case("toml-directory", {"project.toml": None, "schedule.csv": body}, good=(),
                       where=("project.toml",), job_level=True))
     return cases
@@ -236,12 +246,15 @@ def review_cases() -> list[Case]:
         "record": ["review", "{job}", "--mark", "G-1", "--by", "RD", "--verdict", "ok", "--out", "{out}"],
         "run": ["run", "{job}", "--no-pdf", "--jobs", "1", "--out", "{out}"],
     }
+    bad_row = ("unclosed-quote", "verdict-rejected", "verdict-blank", "hash-blank", "latin1", "extra-cells",
+               "formula")
     cases = []
     for name, raw in reviews.items():
         for cmd, argv in commands.items():
             files = {"project.toml": PROJECT.encode(), "schedule.csv": body, "review.csv": raw}
             good = ("G-1", "G-2") if cmd == "run" else ()
-            cases.append(Case(f"review-{name}-{cmd}", files, argv, good=good, prior_run=True,
+            where = ("review.csv", "row 2") if name in bad_row and cmd != "record" else ()
+            cases.append(Case(f"review-{name}-{cmd}", files, argv, good=good, prior_run=True, where=where,
                               may_write=("review.csv",) if cmd == "record" else ()))
     cases.append(Case("review-directory-run", {"project.toml": PROJECT.encode(), "schedule.csv": body,
                                                "review.csv": None}, prior_run=True))
@@ -365,6 +378,11 @@ def run_case(case: Case, root: Path, timeout: int = 30) -> list[str]:
             m = members.get(mark)
             if m is None or m["status"] not in ("pass", "fail"):
                 broken.append(f"good row {mark} not designed ({m['status'] if m else 'missing'})")
+    if case.rows and doc:
+        found = {m["mark"]: m["row"] for m in doc["members"]}
+        for mark, row in case.rows.items():
+            if found.get(mark) != row:
+                broken.append(f"{mark} reported in row {found.get(mark)}, a spreadsheet shows row {row}")
     after = _tree(root)
     for path in sorted(set(after) - set(before)) + [p for p in before if p in after and after[p] != before[p]]:
         inside = path.startswith("out")

@@ -44,7 +44,7 @@ def _staged(path: Path, mode: int | None) -> Iterator[tuple[BinaryIO, str]]:
         path.parent.mkdir(parents=True, exist_ok=True)
         if mode is None:
             mode = stat.S_IMODE(path.stat().st_mode) if path.is_file() else _umask_mode()
-        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent)
+        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.{os.getpid()}.", suffix=".part", dir=path.parent)
         os.fchmod(fd, mode)
         with os.fdopen(fd, "wb") as handle:
             yield handle, tmp
@@ -57,6 +57,22 @@ def _staged(path: Path, mode: int | None) -> Iterator[tuple[BinaryIO, str]]:
     finally:
         if tmp is not None:
             Path(tmp).unlink(missing_ok=True)
+
+
+_PART = re.compile(r"^\..+\.(\d+)\.[^.]+\.part$")
+
+
+def remove_stale_parts(folder: Path) -> int:
+    """Remove the temporary files of writers that were killed (their process is gone); how many."""
+    from .lifetime import pid_alive
+
+    removed = 0
+    for path in folder.rglob(".*.part") if folder.is_dir() else ():
+        match = _PART.match(path.name)
+        if match and not pid_alive(int(match.group(1))):
+            path.unlink(missing_ok=True)
+            removed += 1
+    return removed
 
 
 def _umask_mode() -> int:

@@ -10,6 +10,7 @@ from __future__ import annotations
 import datetime as dt
 import multiprocessing
 import os
+import re
 import shutil
 import time
 from concurrent.futures import ProcessPoolExecutor
@@ -19,7 +20,8 @@ from pathlib import Path
 from . import __version__
 from .data import DataSet
 from .design import MemberDesign, design_all, member_types
-from .fileio import copy_atomic, write_atomic
+from .fileio import copy_atomic, remove_stale_parts, write_atomic
+from .lifetime import die_with_parent, pid_alive
 from .pipeline import templates_dir
 from .progress import Progress
 from .project import Project, load_project
@@ -159,7 +161,8 @@ def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool) -> dict
             done(task, _safe_run(task))
     else:
         context = multiprocessing.get_context("spawn")
-        with ProcessPoolExecutor(max_workers=min(jobs, len(tasks)), mp_context=context) as pool:
+        with ProcessPoolExecutor(max_workers=min(jobs, len(tasks)), mp_context=context,
+                                 initializer=die_with_parent) as pool:
             futures = {pool.submit(_safe_run, t): t for t in tasks}
             for future, task in futures.items():
                 done(task, future.result())
@@ -207,6 +210,7 @@ def stage_dir(project: Project, opts: RunOptions) -> tuple[Path, Path]:
     """A staging folder beside the revision folder; with --only it starts as a copy of it."""
     final = revision_dir(project, opts.out)
     final.parent.mkdir(parents=True, exist_ok=True)
+    remove_stale(final.parent)
     stage = final.parent / f".{final.name}.staging-{os.getpid()}"
     shutil.rmtree(stage, ignore_errors=True)
     if opts.only and final.exists():
@@ -214,6 +218,18 @@ def stage_dir(project: Project, opts: RunOptions) -> tuple[Path, Path]:
     else:
         stage.mkdir()
     return stage, final
+
+
+_STAGING = re.compile(r"^\.rev-.+\.(?:staging|old)-(\d+)$")
+
+
+def remove_stale(jobdir: Path) -> None:
+    """Staging folders and temporary files of killed runs of this user (their process is gone)."""
+    for path in jobdir.glob(".rev-*"):
+        match = _STAGING.match(path.name)
+        if match and path.is_dir() and path.stat().st_uid == os.getuid() and not pid_alive(int(match.group(1))):
+            shutil.rmtree(path, ignore_errors=True)
+    remove_stale_parts(jobdir / ".cache")
 
 
 def swap_into_place(stage: Path, final: Path) -> None:
