@@ -72,9 +72,13 @@ def schedule(rows: list[list[str]], header: list[str] = HEADER) -> dict[str, byt
     return {"project.toml": PROJECT.encode(), "schedule.csv": csv_text(rows, header).encode()}
 
 
-def with_column(column: str, value: str) -> list[list[str]]:
-    """Header gains `column`; the good rows get an in-range value, the bad row `value`."""
-    return [[*GOOD["G-1"], NUMERIC[column]], [*BAD_ROW, value], [*GOOD["G-2"], NUMERIC[column]]]
+def with_column(column: str, value: str) -> tuple[list[str], list[list[str]]]:
+    """The header (gaining `column` unless it has it) and rows: good ones in range, the bad row `value`."""
+    if column in HEADER:
+        bad = list(BAD_ROW)
+        bad[HEADER.index(column)] = value
+        return HEADER, [GOOD["G-1"], bad, GOOD["G-2"]]
+    return [*HEADER, column], [[*GOOD["G-1"], NUMERIC[column]], [*BAD_ROW, value], [*GOOD["G-2"], NUMERIC[column]]]
 
 
 def cell_cases() -> list[Case]:
@@ -82,7 +86,8 @@ def cell_cases() -> list[Case]:
     for column, values in OUT_OF_RANGE.items():
         below = ["0", "-1"] if column in POSITIVE else []
         for value in [*values, *below] + (NON_FINITE if column != "plies" else []):
-            files = schedule(with_column(column, value), [*HEADER, column])
+            header, rows = with_column(column, value)
+            files = schedule(rows, header)
             cases.append(Case(f"cell-{column}={value}", files, where=("schedule.csv", "row 3", f"'{column}'")))
     mutations = {
         "mark-long": (0, "M" * 300), "mark-dot": (0, "."), "mark-dotdot": (0, ".."), "mark-slash": (0, "a/b"),
@@ -151,12 +156,13 @@ def text_cases() -> list[Case]:
     whole = {  # the schedule as a whole is unusable
         "empty": b"", "header-only": (head + "\n").encode(), "no-required": b"a,b,c\n1,2,3\n",
         "latin1": csv_text([[*GOOD["G-1"][:-1], "poteau \xe9"]]).encode("latin-1"),
-        "utf16": csv_text([GOOD["G-1"], GOOD["G-2"]]).encode("utf-16"),
         "binary": bytes(range(256)) * 4, "only-quote": b'"', "only-newlines": b"\n\n\n",
     }
     for name, raw in whole.items():
         files = {"project.toml": PROJECT.encode(), "schedule.csv": raw}
         cases.append(Case(f"csv-whole-{name}", files, good=(), where=("schedule.csv",), job_level=True))
+    cases.append(Case("csv-utf16", {"project.toml": PROJECT.encode(),
+                                    "schedule.csv": csv_text([GOOD["G-1"], GOOD["G-2"]]).encode("utf-16")}))
     cases.append(Case("csv-directory", {"project.toml": PROJECT.encode(), "schedule.csv": None}, good=(),
                       where=("schedule.csv",), job_level=True))
     return cases
@@ -188,7 +194,9 @@ def project_cases() -> list[Case]:
     for name, raw in tomls.items():
         cases.append(Case(f"toml-{name}", {"project.toml": raw, "schedule.csv": body}, good=(),
                           where=("project.toml",), job_level=True))
-    titles = {"mathtext": "$x^$", "mathtext2": r"$\frac{a}$ load", "dollar": "$5 $10", "huge": "T" * 1_000_000,
+    cases.append(Case("toml-title-huge", {"project.toml": PROJECT.replace("Corpus job", "T" * 1_000_000).encode(),
+                                          "schedule.csv": body}, good=(), where=("project.toml",), job_level=True))
+    titles = {"mathtext": "$x^$", "mathtext2": r"$\frac{a}$ load", "dollar": "$5 $10", "long": "T" * 300,
               "latex": r"}\input{/etc/passwd}", "braces": "Load {D}\u2192 column C-1", "cyrillic": "}\u0416",
               "bar-check": "|\u2713", "emoji": "\U0001f600 hall", "nul": "a\\u0000b"}
     for name, title in titles.items():
