@@ -139,18 +139,16 @@ def test_every_good_row_is_designed_around_a_runaway_quote(tmp_path):
     assert {d.mark: d.status for d in report.designs} == {"G-1": "pass", "B-1": "error", "G-2": "pass"}
 
 
-def test_non_finite_firm_value_makes_the_member_an_error_naming_it(tmp_path):
-    """A NaN strength compares false with every limit, so unguarded it would pass."""
-    import json
+def test_a_non_finite_result_makes_the_member_an_error(tmp_path, data):
+    """NaN compares false with every limit, so unguarded a NaN resistance would pass."""
+    import dataclasses
 
-    firm = "material,species,grade,category,property,value,unit,source,status\n" \
-           "sawn,S-P-F,No.1/No.2,dimension,f_c,nan,MPa,test,verified\n"
-    job = write_job(tmp_path / "job", [member_row("C-1"), member_row("T-1", type="tension")],
-                    extra='[data]\nmaterials = "firm.csv"\n')
-    (job / "firm.csv").write_text(firm)
-    report = run_job(job, out=tmp_path / "out", sheets=False)
-    by_mark = {d.mark: d for d in report.designs}
-    assert by_mark["C-1"].status == "error" and "f_c S-P-F No.1/No.2 dimension = nan (firm.csv)" in by_mark["C-1"].errors[0]
-    assert by_mark["T-1"].status == "pass"
-    text = (tmp_path / "out" / "rev-A" / "results.json").read_text()
-    json.loads(text, parse_constant=lambda token: pytest.fail(f"bare {token} in results.json"))
+    from conftest import design_row
+    from timbersheets.design import refuse_non_finite
+    from timbersheets.errors import DesignError
+
+    d = design_row(tmp_path, data, mark="C-1")
+    assert d.status == "pass"
+    broken = [dataclasses.replace(c, resistance=float("nan")) for c in d.checks]
+    with pytest.raises(DesignError, match=r"C-1: compression under .*: resistance, utilization is not a finite"):
+        refuse_non_finite(d.member, broken, d.context.used)

@@ -53,8 +53,8 @@ def test_unclosed_quote_spoils_only_its_row(tmp_path):
     assert [r.mark for r in record.reviews] == ["C-2"] and "row 2" in record.problems[0]
 
 
-def test_missing_hash_is_reported(tmp_path):
-    (tmp_path / "review.csv").write_text(HEAD + "C-1,RD,d,ok,,,A\n")
+def test_malformed_hash_is_reported(tmp_path):
+    (tmp_path / "review.csv").write_text(HEAD + "C-1,RD,d,ok,,sha256:12ab,A\n")
     record = load_review_file(tmp_path)
     assert not record.reviews and "inputs_hash" in record.problems[0]
 

@@ -64,6 +64,9 @@ def _bars(ax, rows: list[dict[str, Any]], caption: str = "") -> None:
             bar.set_hatch("////")
             bar.set_facecolor("white")
     ax.axvline(1.0, color="black", linewidth=1.2)
+    # x in data units, y in axes units: the label sits at the top of the 1.0 line however many rows there
+    # are (at a data y above the rows, it fell outside the axes when no member had a utilization)
+    ax.text(1.0, 1.0, " 1.0", transform=ax.get_xaxis_transform(), va="bottom", ha="left", fontsize=7)
     ax.set_yticks(range(len(rows)), [str(m["mark"]) for m in rows], fontsize=6 if len(rows) > 30 else 7)
     for label in ax.get_yticklabels():
         label.set_parse_math(False)

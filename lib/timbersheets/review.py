@@ -109,7 +109,7 @@ def _row_problem(cells: list[str], index: dict[str, int], width: int) -> str:
         return "column 'mark' is blank"
     if cell("verdict").casefold() not in VERDICTS:
         return f"column 'verdict': '{cell('verdict')}' is not a verdict (allowed: {', '.join(VERDICTS)})"
-    if not HASH.fullmatch(cell("inputs_hash")):
+    if cell("inputs_hash") and not HASH.fullmatch(cell("inputs_hash")):  # blank: a row that never had inputs
         return f"column 'inputs_hash': '{cell('inputs_hash')[:20]}' is not an inputs hash (sha256:<64 hex digits>)"
     return ""
 
@@ -167,7 +167,11 @@ def append_reviews(folder: Path, new: list[Review]) -> None:
 
 def _as_written(r: Review) -> Review:
     """A review as it reads back: formula-protected and trimmed."""
-    return Review(**{f: clean(spreadsheet_safe(getattr(r, f))) for f in FIELDS})
+    return Review(**{f: clean(spreadsheet_safe(_text(getattr(r, f)))) for f in FIELDS})
+
+
+def _text(value: object) -> str:
+    return "" if value is None else str(value)
 
 
 def _new_lines(path: Path, current: ReviewFile, new: list[Review]) -> bytes:
@@ -183,7 +187,7 @@ def _new_lines(path: Path, current: ReviewFile, new: list[Review]) -> bytes:
         columns = list(FIELDS)
         writer.writerow(columns)
     for r in new:
-        values = {f: spreadsheet_safe(getattr(r, f)) for f in FIELDS}
+        values = {f: spreadsheet_safe(_text(getattr(r, f))) for f in FIELDS}
         writer.writerow([values.get(c.casefold(), "") for c in columns])
     try:
         return buffer.getvalue().encode(current.encoding)
@@ -209,6 +213,53 @@ def titleblock_text(state: dict[str, str]) -> str:
     if state["status"] == "stale":
         return f"changed since check ({who})"
     return who + (" (revise)" if state.get("verdict") == "revise" else "")
+
+
+def refuse_unexplained_ok(verdict: str, comment: str, statuses: dict[str, str]) -> None:
+    """An "ok" on a member that fails or has an error needs a comment saying why.
+
+    `statuses` maps each mark to be recorded to its status in the run (pass,
+    fail, error). Raises JobError naming the marks.
+    """
+    if verdict != "ok" or comment.strip():
+        return
+    bad = [f"{mark} ({state})" for mark, state in statuses.items() if state != "pass"]
+    if bad:
+        raise JobError(f"review --verdict ok {', '.join(bad)}", "an ok on a member that does not pass needs a reason",
+                       "Give --comment explaining why it is acceptable, or record --verdict revise")
+
+
+STANDINGS = ("ok", "revise", "stale", "not-checked")
+STANDING_WORDS = {"ok": "checked ok", "revise": "to revise", "stale": "changed since check",
+                  "not-checked": "not checked"}
+
+
+def standing(state: dict[str, str]) -> str:
+    """Where a member's check stands: ok, revise, stale or not-checked (one rule for every count)."""
+    if state["status"] == "checked":
+        return "revise" if state.get("verdict") == "revise" else "ok"
+    return state["status"]
+
+
+def count_text(states: list[dict[str, str]]) -> str:
+    """"3 of 5 members checked ok, 1 to revise, 1 not checked", as the cover, index and review --status say it."""
+    counts = {k: 0 for k in STANDINGS}
+    for state in states:
+        counts[standing(state)] += 1
+    noun = "member" if len(states) == 1 else "members"
+    parts = [f"{counts['ok']} of {len(states)} {noun} checked ok"]
+    parts += [f"{counts[k]} {STANDING_WORDS[k]}" for k in STANDINGS[1:] if counts[k]]
+    return ", ".join(parts)
+
+
+def comment_text(state: dict[str, str]) -> str:
+    """The checker's comment as the sheet and review --status show it ("" when there is none)."""
+    if not state.get("comment"):
+        return ""
+    head = f"{state['by']}, {state['date']}, {state['verdict']}"
+    if state["status"] == "stale":
+        head += " (on inputs changed since)"
+    return f"{head}: {state['comment']}"
 
 
 def today() -> str:
