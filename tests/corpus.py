@@ -426,4 +426,5 @@ if __name__ == "__main__":
     for name, broken in failed.items():
         print(f"{name}: {'; '.join(broken)}")
     print(f"corpus: {tried} tried, {len(failed)} failed")
+    sys.stdout.flush()
     os._exit(0)
