@@ -217,6 +217,13 @@ def test_compare_lists_the_differences_from_the_built_in_data(tmp_path):
     assert not any("f_b" in ln for ln in lines[1:])
 
 
+def test_data_warns_that_a_member_not_designed_has_no_values_listed(tmp_path, capsys):
+    job = write_job(tmp_path / "job", [member_row("OK-1"), member_row("BAD-1", species="Oak")])
+    assert main(["data", str(job)]) == 0
+    err = capsys.readouterr().err
+    assert "BAD-1 could not be designed" in err and "OK-1" not in err
+
+
 def test_firm_file_written_by_the_tool_lists_every_value_to_verify_and_is_never_overwritten(tmp_path):
     job = demo_copy(tmp_path)
     target = tmp_path / "firm-data.csv"
