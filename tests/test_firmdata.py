@@ -38,7 +38,9 @@ def firm_csv(rows: list[dict[str, object]], header: tuple[str, ...] = HEADER) ->
 
 
 def verified(row: dict[str, object], **changes: object) -> dict[str, object]:
-    return {**row, "status": "verified", "verified_by": "RD", "verified_on": "2026-11-30", "edition": "O86:19",
+    """The row as an engineer leaves it after checking it against the edition the job is designed to."""
+    edition = "NBC 2020" if str(row.get("data", "")).startswith(("nbc", "sls")) else "O86:19"
+    return {**row, "status": "verified", "verified_by": "RD", "verified_on": "2026-11-30", "edition": edition,
             **changes}
 
 
@@ -57,7 +59,7 @@ def all_verified(job: Path, drop: str = "") -> None:
     """Write the job's firm file with the tool, then mark every row verified (what the engineer does)."""
     project = load_project(job)
     data, designs = job_designs(project)
-    rows = [verified(r, edition=r["edition"]) for r in firm_rows(used_items(data, designs)) if r["item"] != drop]
+    rows = [verified(r) for r in firm_rows(used_items(data, designs)) if r["item"] != drop]
     (job / "firm.csv").write_text(firm_csv(rows), encoding="utf-8")
     with (job / "project.toml").open("a", encoding="utf-8") as f:
         f.write("\n" + FIRM_LINE)
@@ -136,6 +138,8 @@ BAD_ROWS = [
     ("strength-in-kPa", [verified(strength_row("f_t", 5500))], "value", "out of scale"),
     ("wrong-sign", [verified(strength_row("f_t", -5.5))], "value", "wrong sign"),
     ("not-a-number", [verified(strength_row("f_t", "nan"))], "value", "not a finite number"),
+    ("verified-against-another-edition", [verified(strength_row("f_t", 5.5), edition="O86-14")], "edition",
+     "is not the CSA O86 edition jobs are designed to"),
     ("unknown-unit", [verified(strength_row("f_t", 5.5, unit="psi"))], "unit", "is not the unit"),
 ]
 
