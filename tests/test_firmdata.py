@@ -166,6 +166,7 @@ def test_run_reports_a_bad_firm_row_and_exits_1_while_the_good_members_are_desig
     assert {m["mark"]: m["status"] for m in results["members"]} == {"T-1": "error", "C-1": "pass"}
     firm = next(f for f in results["data"]["files"] if f.get("name") == "firm.csv")
     assert firm["role"] == "firm data" and firm["values"] == 1 and "row 3" in firm["errors"][0]
+    assert "1 bad rows refused" in DataSet(job / "firm.csv").firm.description  # on the cover and every sheet
 
 
 BAD_FILES = [

@@ -101,8 +101,9 @@ class FirmFile:
         """One line for a cover or a sheet: name, hash, how many values, who verified them and when."""
         verified = sum(r.status == "verified" for r in self.rows)
         who = f", verified by {'; '.join(self.verifiers)}" if self.verifiers else ", none verified yet"
+        refused = f"; {len(self.errors)} bad rows refused (listed in run.log)" if self.errors else ""
         return (f"firm data file {self.name} (sha256 {self.short_hash}): {len(self.rows)} values, "
-                f"{verified} verified{who}")
+                f"{verified} verified{who}{refused}")
 
     def summary(self) -> dict[str, object]:
         return {"file": str(self.path), "name": self.name, "sha256": self.sha256, "role": "firm data",
