@@ -338,6 +338,10 @@ def cmd_data(args: argparse.Namespace) -> int:
         if data.firm:
             for e in data.firm.errors:
                 print(f"error: {e}", file=sys.stderr)
+        missing = [d.mark for d in designs if d.errors]
+        if missing:
+            print(f"warning: {', '.join(missing)} could not be designed (see timbersheets run); the values they "
+                  "would use are not listed", file=sys.stderr)
     if args.csv:
         sys.stdout.write(csv_text(items))
     elif not (args.firm_file or args.sheet):

@@ -16,10 +16,11 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from .data import TABLES, DataSet, Datum, key_text
-from .design import MemberDesign, design_all
+from .design import MemberDesign
 from .errors import JobError
 from .fileio import spreadsheet_safe, write_atomic
 from .firmdata import HEADER, read_firm
+from .job import Job
 from .project import Project
 from .schedule import load_schedule
 
@@ -58,8 +59,8 @@ class Item:
 def job_designs(project: Project) -> tuple[DataSet, list[MemberDesign]]:
     """Every member of the job designed (no sheets): what its values are read from."""
     data = DataSet(project.materials)
-    schedule = load_schedule(project.schedule_path, data)
-    return data, design_all(schedule.entries, data)
+    job = Job(project, load_schedule(project.schedule_path, data), data)  # designed as a run designs it
+    return data, job.designs
 
 
 def used_items(data: DataSet, designs: list[MemberDesign]) -> list[Item]:

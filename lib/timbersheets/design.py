@@ -229,7 +229,11 @@ class MemberDesign:
         if self.context is None or self.context.data is None:
             return []
         seen: dict[tuple[str, str, str], Datum] = {}
-        for used in self.data_used:
+        read: set[int] = set()
+        for used in self.data_used:  # the same Datum is recorded each time a check reads it
+            if id(used) in read:
+                continue
+            read.add(id(used))
             for d in self.context.data.value_datums(used):
                 seen.setdefault((d.data, d.key, d.column), d)
         return list(seen.values())
