@@ -15,7 +15,7 @@ from __future__ import annotations
 import base64
 import html
 import re
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Any
 
 from latex2mathml.converter import convert as mathml
@@ -109,7 +109,6 @@ def _columns(spec: str) -> list[str]:
 class _Counters:
     section: int = 0
     subsection: int = 0
-    math: list[str] = field(default_factory=list)
 
 
 class Converter:
