@@ -25,7 +25,7 @@ from __future__ import annotations
 from dataclasses import replace
 from math import sqrt
 
-from ..calc import calc, format_number
+from ..calc import calc, format_metres, format_number
 from ..data import Datum
 from ..errors import DataError, DesignError
 from . import Step, result
@@ -168,7 +168,7 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
                      "blocking)" if rule[0] == "blocking" else
                      "the compression edge held continuously (L_u = 0)" if L_u == 0 else
                      "no intermediate lateral support" if L_u >= m.length else
-                     f"the compression edge held at intervals of L_u = {L_u / 1000:g} m")
+                     f"the compression edge held at intervals of L_u = {format_metres(L_u)} m")
             words = (f"Lateral stability ({STABILITY_CLAUSE['sawn']}.1): d/b = {ratio:.2f} ≤ {rule[1].value:.1f}, the "
                      f"limit with {rule[1].label.split(', ', 1)[1]}; the member has {given}, so K_L = 1.0.")
             return 1.0, [], edge + words
@@ -192,7 +192,7 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
                           STABILITY_CLAUSE["glulam" if m.glulam else "sawn"],
                           "Brace the compression edge (shorter Lu) or choose a wider section")
     steps = [Step(lateral_slenderness, slender, f"{edge}Lateral stability, laterally unsupported length "
-                  f"L_u = {L_u / 1000:g} m ({'uniform load on a simple span' if line_loads else 'any loading'})")]
+                  f"L_u = {format_metres(L_u)} m ({'uniform load on a simple span' if line_loads else 'any loading'})")]
     if C_B <= CB_STOCKY:
         return 1.0, steps, f"C_B = {C_B:.2f} ≤ {CB_STOCKY:g}, so K_L = 1.0."
     if C_B <= C_K:
