@@ -269,7 +269,6 @@ def cmd_review(args: argparse.Namespace) -> int:
                          refuse_unexplained_ok, standing, status, today)
     from .revisions import load_results
     from .runner import job_dir
-    from .schedule import load_schedule
 
     project = load_project(args.dir)
     results = load_results(job_dir(project, args.out) / f"rev-{project.revision}")
@@ -295,14 +294,10 @@ def cmd_review(args: argparse.Namespace) -> int:
     unknown = [m for m in marks if m not in members]
     if unknown:
         raise UsageError(f"not in rev {project.revision}: {', '.join(unknown)}")
-    from .data import DataSet
+    from .job import load_job
 
-    from .loadpath import resolved_members
-
-    data = DataSet(project.materials)
     # the inputs as the run hashed them: with the reactions each member carries
-    current = {mark: m.inputs_hash for mark, m in resolved_members(load_schedule(project.schedule_path, data),
-                                                                    data).items()}
+    current = {mark: m.inputs_hash for mark, m in load_job(args.dir).members().items()}
     stale = [m for m in marks if current.get(m) != members[m].get("inputs_hash")]
     if stale:
         raise UsageError(f"the schedule changed after the last run for {', '.join(stale)}; "
