@@ -21,19 +21,19 @@ from pathlib import Path
 from . import __version__
 from .constants import SHORT_CAUTION
 from .data import DataSet
-from .design import MemberDesign, design_all
+from .design import MemberDesign
 from .errors import ExitCode, JobError
 from .membertypes import member_types
 from .fileio import copy_atomic, remove_stale_parts, write_atomic
 from .lifetime import die_with_parent, pid_alive
 from .keep import Carried, carry_package, carry_sheets, package_key, write_package_key
 from .pipeline import templates_dir
-from .project import Project, load_project
+from .job import load_job
+from .project import Project
 from .fileio import write_csv
 from .results import member_json, results_doc, write_results
 from .review import comment_text, latest, load_review_file, read_reviews, status, titleblock_text
 from .revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
-from .schedule import load_schedule
 from .sheetjobs import SheetOutcome, SheetTask, from_cache, run_sheet
 from .tex import escape
 
@@ -271,12 +271,11 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     """
     opts = opts or RunOptions(**kw)
     started = time.monotonic()
-    project = load_project(folder)
-    data = DataSet(project.materials)
-    schedule = load_schedule(project.schedule_path, data)
+    job = load_job(folder)
+    project, schedule, data = job.project, job.schedule, job.data
     schedule.warnings += load_review_file(project.folder).problems
     check_only(project, schedule.entries, opts.only)
-    designs = design_all(schedule.entries, data)
+    designs = job.designs
     jobdir = job_dir(project, opts.out)
     prev_label = previous_revision(jobdir, project.revision)
     previous = load_results(jobdir / f"rev-{prev_label}") if prev_label else None
