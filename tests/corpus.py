@@ -18,6 +18,7 @@ import os
 import shutil
 import signal
 import sys
+import tempfile
 import traceback
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -325,11 +326,26 @@ def _strict_json(text: str):
     return json.loads(text, parse_constant=refuse)
 
 
+#: Charts drawn by earlier cases, linked into each case's chart cache: most cases draw the same
+#: chart, and drawing it is most of a case's time. (The cache is the run's own, keyed by content.)
+CHARTS = Path(tempfile.mkdtemp(prefix="corpus-charts-"))
+
+
+def _share_charts(cache: Path, into: bool) -> None:
+    if into:
+        cache.mkdir(parents=True, exist_ok=True)
+    src, dst = (CHARTS, cache) if into else (cache, CHARTS)
+    for png in src.glob("chart-*.png") if src.is_dir() else ():
+        with contextlib.suppress(OSError):
+            os.link(png, dst / png.name)
+
+
 def run_case(case: Case, root: Path, timeout: int = 30) -> list[str]:
     """Run one case in `root`; the list of rules it broke (empty when it obeys them all)."""
     from timbersheets.cli import main
 
     job, out = root / "job", root / "out"
+    _share_charts(out / ".cache", into=True)
     if case.prior_run:
         _materialise(Case(case.name, {k: v for k, v in case.files.items() if k != "review.csv"}), job)
         with contextlib.redirect_stdout(io.StringIO()), contextlib.redirect_stderr(io.StringIO()):
@@ -392,6 +408,7 @@ def run_case(case: Case, root: Path, timeout: int = 30) -> list[str]:
             if found.get(mark) != row:
                 broken.append(f"{mark} reported in row {found.get(mark)}, a spreadsheet shows row {row}")
     after = _tree(root)
+    _share_charts(out / ".cache", into=False)
     for path in sorted(set(after) - set(before)) + [p for p in before if p in after and after[p] != before[p]]:
         inside = path.startswith("out")
         if not inside and path not in {f"job/{n}" for n in case.may_write}:
@@ -415,8 +432,6 @@ def run_corpus(base: Path, cases: list[Case] | None = None) -> tuple[int, dict[s
 
 
 if __name__ == "__main__":
-    import tempfile
-
     import resource
 
     sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "lib"))
