@@ -63,7 +63,7 @@ def member_rows(m, section, checks: set[str] | None = None) -> list[list[object]
         spans = geometry_rows(m)
         if m.values.get("restraint") != "both-edges":
             lateral_text += ("; under negative moment the bottom edge is taken as laterally unsupported between "
-                             "supports (an overhang: its length)")
+                             "supports (over a support, the longer of the span or overhang beside it)")
         bearing = (Cell(f"$l_b = {format_value(m.bearing, 'mm')}$ at every support", f"l_b = {m.bearing:g} mm")
                    if m.bearing is not None else bearing)
         loading = f"beam model analysed with {escape(library())}, live and snow patterned (section 3)"

@@ -289,7 +289,12 @@ def cmd_review(args: argparse.Namespace) -> int:
         raise UsageError(f"not in rev {project.revision}: {', '.join(unknown)}")
     from .data import DataSet
 
-    current = {m.mark: m.inputs_hash for m in load_schedule(project.schedule_path, DataSet(project.materials)).members}
+    from .loadpath import resolved_members
+
+    data = DataSet(project.materials)
+    # the inputs as the run hashed them: with the reactions each member carries
+    current = {mark: m.inputs_hash for mark, m in resolved_members(load_schedule(project.schedule_path, data),
+                                                                    data).items()}
     stale = [m for m in marks if current.get(m) != members[m].get("inputs_hash")]
     if stale:
         raise UsageError(f"the schedule changed after the last run for {', '.join(stale)}; "

@@ -25,7 +25,7 @@ class Job:
     @cached_property
     def designs(self) -> list[MemberDesign]:
         """One design per schedule row, in schedule order, made on first use."""
-        return design_all(self.schedule.entries, self.data)
+        return design_all(self.schedule.entries, self.data, self.schedule.path.name)
 
     def members(self) -> dict[str, Member]:
         """Valid members by mark, with their carried loads filled in where the design resolved them."""

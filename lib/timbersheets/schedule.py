@@ -145,9 +145,6 @@ def _columns() -> tuple[Column, ...]:
 
 COLUMNS = {c.name: c for c in _columns()}
 REQUIRED = tuple(c.name for c in COLUMNS.values() if c.required)
-#: Loads and geometry only a bending member analysed as a beam takes.
-BEAM_ONLY = ("spans", "overhang_left", "overhang_right", "trib", *(f"{p}_{t}" for p in ("q", "point", "part")
-                                                                   for t in LOAD_TYPES))
 #: Set by the load path (reactions of the members this one carries), not by the schedule.
 DERIVED = ("carried",)
 
@@ -525,8 +522,10 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str], data)
                                   "leaves less than 75 % of the gross area; O86 does not allow designing on it",
                                   "a ratio from 0.75 to 1.0; reduce the holes or notches"))
     beam_errors = beamloads.row_errors(file, row, v, given)
-    if beam_errors or v["length"] is None:
+    if beam_errors:
         return errs + beam_errors
+    if v["length"] is None:
+        return errs + _type_rules(file, row, v, given)
     for name in ("Lx", "Ly", "Lu"):
         if v[name] is not None and v[name] > v["length"] * (1 + 1e-9) and name in given:
             errs.append(ScheduleError(file, row, name, f"{v[name] / 1000:g} m", f"is longer than the member (length {v['length'] / 1000:g} m)",

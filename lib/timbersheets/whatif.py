@@ -57,6 +57,8 @@ def scaled(member: Member, scales: dict[str, float]) -> Member:
     for load, factor in scales.items():
         for effect in EFFECTS:
             values[f"{effect}_{load}"] = values[f"{effect}_{load}"] * factor
+        values[f"point_{load}"] = tuple((p * factor, x) for p, x in values[f"point_{load}"])
+        values[f"part_{load}"] = tuple((w * factor, a, b) for w, a, b in values[f"part_{load}"])
     return Member(member.mark, member.row, values, member.given, list(member.warnings))
 
 

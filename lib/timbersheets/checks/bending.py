@@ -117,15 +117,18 @@ def sawn_size_factors(m) -> tuple[Datum, Datum]:
     return kzb, kzv
 
 
-def _restraint_rule(m, L_u: float) -> tuple[str, Datum] | None:
-    """The loosest depth-to-width rule the restraint meets, or None (compute K_L)."""
+def _restraint_rule(m, L_u: float, bottom: bool = False) -> tuple[str, Datum] | None:
+    """The loosest depth-to-width rule the restraint meets, or None (compute K_L).
+
+    `bottom`: the bottom edge is in compression (negative moment); purlins hold the top edge only.
+    """
     ratio = m.section.d / m.section.b
     extra = m.member.values.get("restraint")
     if extra == "both-edges":
         actual = "both-edges"
     elif L_u == 0:
         actual = "blocking" if extra == "blocking" else "decking"
-    elif extra == "purlins" and L_u < m.length:
+    elif extra == "purlins" and L_u < m.length and not bottom:
         actual = "purlins"
     else:
         actual = None  # only the d/b ≤ 4 rule, else K_L is computed from L_u
@@ -156,7 +159,7 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
     if m.glulam and L_u == 0:
         return 1.0, [], "Lateral stability: compression edge held continuously (L_u = 0), so K_L = 1.0."
     if not m.glulam:
-        rule = _restraint_rule(m, L_u)
+        rule = _restraint_rule(m, L_u, negative)
         if rule is not None:
             given = ("both edges held in line (schedule: restraint = both-edges)" if rule[0] == "both-edges" else
                      "the compression edge held in line by purlins or tie rods (schedule: restraint = purlins)"
