@@ -20,9 +20,8 @@ from .design import MemberDesign
 from .errors import JobError
 from .fileio import spreadsheet_safe, write_atomic
 from .firmdata import HEADER, read_firm
-from .job import Job
+from .job import job_of
 from .project import Project
-from .schedule import load_schedule
 
 LIST_HEADER = ["table", "data", "key", "column", "species", "grade", "item", "value", "unit", "edition", "source",
                "status", "verified_by", "verified_on", "builtin_value", "members"]
@@ -58,9 +57,8 @@ class Item:
 
 def job_designs(project: Project) -> tuple[DataSet, list[MemberDesign]]:
     """Every member of the job designed (no sheets): what its values are read from."""
-    data = DataSet(project.materials)
-    job = Job(project, load_schedule(project.schedule_path, data), data)  # designed as a run designs it
-    return data, job.designs
+    job = job_of(project)
+    return job.data, job.designs
 
 
 def used_items(data: DataSet, designs: list[MemberDesign]) -> list[Item]:
