@@ -151,14 +151,17 @@ def test_psf_reads_as_a_pressure():
     assert parse_quantity("50 psf", "kPa") == pytest.approx(50 * LBF / 0.3048**2 / 1000, rel=1e-9)
 
 
-def test_cli_exit_codes(tmp_path):
+def test_cli_exit_codes(tmp_path, capsys):
+    from timbersheets.cli import main
+
     job = write_job(tmp_path / "job", [GOOD])
-    run = [sys.executable, "-m", "timbersheets.cli", "run", "--no-pdf", "--out", str(tmp_path / "o")]
-    assert subprocess.run([*run, str(job)], capture_output=True).returncode == 0
+    run = ["run", "--no-pdf", "--out", str(tmp_path / "o")]
+    assert main([*run, str(job)]) == 0
     write_job(tmp_path / "job", [GOOD, member_row("BIG", P_D="500")])
-    assert subprocess.run([*run, str(job)], capture_output=True).returncode == 1
+    assert main([*run, str(job)]) == 1
     (job / "project.toml").write_text("[project\n", encoding="utf-8")
-    done = subprocess.run([*run, str(job)], capture_output=True, text=True)
-    assert done.returncode == 2 and "project.toml" in done.stderr
-    done = subprocess.run([*run, str(tmp_path / "nowhere")], capture_output=True, text=True)
+    assert main([*run, str(job)]) == 2 and "project.toml" in capsys.readouterr().err
+    # the process itself exits with the code main returns
+    done = subprocess.run([sys.executable, "-m", "timbersheets.cli", *run, str(tmp_path / "nowhere")],
+                          capture_output=True, text=True)
     assert done.returncode == 2 and "not a job folder" in done.stderr

@@ -12,7 +12,7 @@ import sys
 from pathlib import Path
 
 from . import __version__
-from .errors import TimbersheetsError
+from .errors import ExitCode, TimbersheetsError, UsageError
 from .review import VERDICTS
 from .project import OUTPUT_RULE
 
@@ -110,14 +110,13 @@ def cmd_new(args: argparse.Namespace) -> int:
 
     folder: Path = args.dir
     if (folder / "project.toml").exists() or (folder / "schedule.csv").exists():
-        print(f"timbersheets: {folder} already holds a job; nothing was changed", file=sys.stderr)
-        return 2
+        raise UsageError(f"{folder} already holds a job; nothing was changed")
     folder.mkdir(parents=True, exist_ok=True)
     (folder / "project.toml").write_text(PROJECT_TEMPLATE.format(date=dt.date.today().isoformat()), encoding="utf-8")
     (folder / "schedule.csv").write_text(SCHEDULE_TEMPLATE, encoding="utf-8")
     print(f"created {folder}/project.toml and {folder}/schedule.csv")
     print(f"next: fill them in, then run: timbersheets run {folder}")
-    return 0
+    return ExitCode.OK
 
 
 def cmd_run(args: argparse.Namespace) -> int:
@@ -127,8 +126,7 @@ def cmd_run(args: argparse.Namespace) -> int:
     if args.scale:
         return cmd_what_if(args)
     if args.resize:
-        print("timbersheets: --resize goes with --scale (a what-if); a run always sizes auto members", file=sys.stderr)
-        return 2
+        raise UsageError("--resize goes with --scale (a what-if); a run always sizes auto members")
     only = [m.strip() for m in args.only.split(",") if m.strip()] if args.only else None
     from .runner import RunOptions
 
@@ -160,8 +158,7 @@ def cmd_what_if(args: argparse.Namespace) -> int:
     try:
         scales = parse_scales(args.scale)
     except ValueError as exc:
-        print(f"timbersheets: {exc}", file=sys.stderr)
-        return 2
+        raise UsageError(str(exc)) from None
     rows = what_if(args.dir, scales, resize=args.resize)
     label = ", ".join(f"{k} x {v:g}" for k, v in scales.items())
     print(f"what-if ({label}); nothing is written")
@@ -184,14 +181,15 @@ def cmd_what_if(args: argparse.Namespace) -> int:
         print(f"  {r.mark:<12} {round_utilization(b.utilization):6.3f} -> {round_utilization(a.utilization):6.3f}  "
               f"{r.before.status:>4} -> {r.after.status:<4} {a.check} under {a.combination}  {note}")
     print(f"{sum(r.flipped for r in rows)} verdict(s) flip, {len(changed)} member(s) change")
-    return 1 if any(r.after.status != "pass" for r in rows) else 0
+    return ExitCode.MEMBERS if any(r.after.status != "pass" for r in rows) else ExitCode.OK
 
 
 def cmd_size(args: argparse.Namespace) -> int:
     import time
 
     from .data import DataSet
-    from .design import member_types
+    from .design import design_function
+    from .membertypes import member_type
     from .project import load_project
     from .schedule import load_schedule
     from .sizing import size
@@ -203,22 +201,21 @@ def cmd_size(args: argparse.Namespace) -> int:
     marks = args.mark or [m.mark for m in schedule.members if m.size == "auto"]
     unknown = [m for m in marks if m not in members]
     if unknown:
-        print(f"timbersheets: no valid member {', '.join(unknown)} in {project.schedule_path}", file=sys.stderr)
-        return 2
+        raise UsageError(f"no valid member {', '.join(unknown)} in {project.schedule_path}")
     if not marks:
         print("no member has size = auto; name one with --mark M")
-        return 0
-    status = 0
+        return ExitCode.OK
+    status = ExitCode.OK
     for mark in marks:
         member = members[mark]
         started = time.perf_counter()
-        result = size(member, data, member_types()[member.type].design)
+        result = size(member, data, design_function(member_type(member.type)))
         ms = (time.perf_counter() - started) * 1000
         where = f" ({result.constraints})" if result.constraints else ""
         print(f"{mark}: {member.type} {member.material} {member.species} {member.grade}{where}; "
               f"{result.searched} sections tried in {ms:.0f} ms")
         if result.chosen is None:
-            status = 1
+            status = ExitCode.MEMBERS
             best = result.best
             print(f"  no standard section passes; best {best.label} at {best.utilization:.3f} ({best.governing})"
                   if best else "  no standard section can carry the loads")
@@ -242,7 +239,7 @@ def cmd_diff(args: argparse.Namespace) -> int:
     print(format_diff(changes, args.r1, args.r2))
     write_csv(base / f"rev-{args.r2}" / "diff.csv", DIFF_HEADER, diff_rows(changes))
     print(f"written: {base / f'rev-{args.r2}' / 'diff.csv'}")
-    return 0
+    return ExitCode.OK
 
 
 def cmd_review(args: argparse.Namespace) -> int:
@@ -267,35 +264,32 @@ def cmd_review(args: argparse.Namespace) -> int:
                 pending.append(f"  {mark:<12} {word:<11} {comment}".rstrip())
         print(f"rev {project.revision}: {count_text(list(states.values()))}")
         print("\n".join(pending) if pending else "  nothing left to check")
-        return 1 if pending else 0
+        return ExitCode.MEMBERS if pending else ExitCode.OK
     if not args.by or not args.verdict:
-        print("timbersheets: review needs --by INITIALS and --verdict ok|revise (or --status)", file=sys.stderr)
-        return 2
+        raise UsageError("review needs --by INITIALS and --verdict ok|revise (or --status)")
     marks = list(members) if args.all else args.mark
     unknown = [m for m in marks if m not in members]
     if unknown:
-        print(f"timbersheets: not in rev {project.revision}: {', '.join(unknown)}", file=sys.stderr)
-        return 2
+        raise UsageError(f"not in rev {project.revision}: {', '.join(unknown)}")
     current = {m.mark: m.inputs_hash for m in load_schedule(project.schedule_path).members}
     stale = [m for m in marks if current.get(m) != members[m].get("inputs_hash")]
     if stale:
-        print(f"timbersheets: the schedule changed after the last run for {', '.join(stale)}; "
-              f"run it again so the sheets show what you check", file=sys.stderr)
-        return 2
+        raise UsageError(f"the schedule changed after the last run for {', '.join(stale)}; "
+                         "run it again so the sheets show what you check")
     refuse_unexplained_ok(args.verdict, args.comment, {m: members[m]["status"] for m in marks})
     records = [Review(m, args.by, today(), args.verdict, args.comment, members[m]["inputs_hash"], project.revision)
                for m in marks]
     append_reviews(project.folder, records)
     print(f"recorded {args.verdict} by {args.by} for {len(records)} member(s) in {project.folder / 'review.csv'}")
     print(f"next: timbersheets run {args.dir}  (prints the check on the sheets; nothing is re-executed)")
-    return 0
+    return ExitCode.OK
 
 
 def cmd_columns(args: argparse.Namespace) -> int:
     from .columnref import markdown, text
 
     print(markdown() if args.markdown else text(), end="")
-    return 0
+    return ExitCode.OK
 
 
 COMMANDS = {"new": cmd_new, "run": cmd_run, "size": cmd_size, "diff": cmd_diff, "review": cmd_review,
@@ -305,13 +299,13 @@ COMMANDS = {"new": cmd_new, "run": cmd_run, "size": cmd_size, "diff": cmd_diff, 
 def main(argv: list[str] | None = None) -> int:
     args = _parser().parse_args(argv)
     try:
-        return COMMANDS[args.command](args)
+        return int(COMMANDS[args.command](args))
     except TimbersheetsError as exc:
         print(f"timbersheets: {exc}", file=sys.stderr)
-        return 2
+        return int(exc.exit_code)
     except KeyboardInterrupt:
         print("timbersheets: interrupted; files already written are complete", file=sys.stderr)
-        return 130
+        return int(ExitCode.INTERRUPTED)
 
 
 if __name__ == "__main__":

@@ -6,9 +6,8 @@ writes it to docs/columns.md (a test keeps that file equal to the code).
 
 from __future__ import annotations
 
+from .constants import UNIT_TEXT
 from .schedule import COLUMNS, Column, _allowed
-
-UNIT_LABELS = {"kN*m": "kN·m"}
 
 
 def default_text(col: Column) -> str:
@@ -28,7 +27,7 @@ def default_text(col: Column) -> str:
 
 def rows() -> list[tuple[str, str, str, str, str]]:
     """(column, meaning, unit, default, allowed) for every column, in schedule order."""
-    return [(c.name, c.meaning, UNIT_LABELS.get(c.unit, c.unit), default_text(c), _allowed(c) or "text")
+    return [(c.name, c.meaning, UNIT_TEXT.get(c.unit, c.unit), default_text(c), _allowed(c) or "text")
             for c in COLUMNS.values()]
 
 

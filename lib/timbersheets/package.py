@@ -20,19 +20,17 @@ from pathlib import Path
 from typing import Any
 
 from . import __version__
+from .constants import CAUTION, SHORT_CAUTION
 from .data import DataSet
 from .pipeline import XELATEX, ConversionError, templates_dir
 from .project import Project
 from .review import count_text, standing, titleblock_text
 from .revisions import MemberChange
-from .sheets import CAUTION
 from .symbols import ACTION_WORDS
 from .tex import escape
 
 VERDICT = {"pass": "passes", "fail": "does not pass", "error": "not designed"}
 VERDICT_TEX = {"pass": "PASSES", "fail": r"\textbf{DOES NOT PASS}", "error": r"\textbf{NOT DESIGNED}"}
-SHORT_CAUTION = ("Review and seal by a licensed professional engineer required; the codes adopted by the "
-                 "authority having jurisdiction govern.")
 
 
 def _environment():

@@ -12,18 +12,20 @@ import multiprocessing
 import os
 import shutil
 import time
+import traceback
 from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from . import __version__
+from .constants import SHORT_CAUTION
 from .data import DataSet
-from .design import MemberDesign, design_all, member_types
-from .errors import JobError
+from .design import MemberDesign, design_all
+from .errors import ExitCode, UsageError
+from .membertypes import member_types
 from .fileio import write_atomic
 from .keep import Carried, carry_package, carry_sheets, package_key, write_package_key
 from .pipeline import templates_dir
-from .progress import Progress
 from .project import Project, load_project
 from .fileio import write_csv
 from .results import member_json, results_doc, write_results
@@ -33,7 +35,6 @@ from .schedule import load_schedule
 from .sheetjobs import SheetOutcome, SheetTask, from_cache, run_sheet
 from .tex import escape
 
-EXIT_PASS, EXIT_MEMBERS, EXIT_JOB = 0, 1, 2
 
 
 @dataclass
@@ -62,7 +63,7 @@ class RunReport:
     @property
     def exit_code(self) -> int:
         ok = all(d.status == "pass" for d in self.designs) and not self.package_error
-        return EXIT_PASS if ok else EXIT_MEMBERS
+        return ExitCode.OK if ok else ExitCode.MEMBERS
 
     def counts(self) -> dict[str, int]:
         out = {"pass": 0, "fail": 0, "error": 0}
@@ -113,8 +114,7 @@ def titleblock(project: Project, design: MemberDesign, data: DataSet, checked: s
         "tool_version": f"timbersheets {__version__}",
         "inputs_hash": (m.inputs_hash.split(":")[1][:12] if m else ""),
         "data_hash": data.hash.split(":")[1][:12],
-        "caution": "Review and seal by a licensed professional engineer required; the codes adopted by the "
-                   "authority having jurisdiction govern.",
+        "caution": SHORT_CAUTION,
     }
     return {k: escape(v) for k, v in raw.items()}
 
@@ -142,14 +142,17 @@ def sheet_tasks(project: Project, designs: list[MemberDesign], data: DataSet, ou
 
 def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool) -> dict[str, SheetOutcome]:
     """Execute and convert every task, `jobs` at a time; a failure stays with its member."""
+    from tqdm import tqdm
+
     jobs = max(1, jobs or os.cpu_count() or 1)
-    bar = Progress(len(tasks), "sheets") if progress else None
+    # disable=None: a bar only on a terminal, as with the other command-line tools
+    bar = tqdm(total=len(tasks), desc="sheets", unit="sheet", disable=None if progress else True, leave=False)
     outcomes: dict[str, SheetOutcome] = {}
 
     def done(task: SheetTask, outcome: SheetOutcome) -> None:
         outcomes[task.mark] = outcome
-        if bar:
-            bar.step(task.mark)
+        bar.set_postfix_str(task.mark, refresh=False)
+        bar.update()
 
     pending = []
     for task in tasks:  # unchanged members come straight from the cache, without a worker
@@ -169,8 +172,7 @@ def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool) -> dict
             futures = {pool.submit(_safe_run, t): t for t in tasks}
             for future, task in futures.items():
                 done(task, future.result())
-    if bar:
-        bar.close()
+    bar.close()
     return outcomes
 
 
@@ -178,7 +180,7 @@ def _safe_run(task: SheetTask) -> SheetOutcome:
     try:
         return run_sheet(task)
     except Exception as exc:  # a worker failure belongs to its member, not the run  # noqa: BLE001
-        return SheetOutcome(task.mark, error=f"{type(exc).__name__}: {exc}")
+        return SheetOutcome(task.mark, error=f"{type(exc).__name__}: {exc}", trace=traceback.format_exc())
 
 
 def cross_check(design: MemberDesign, outcome: SheetOutcome) -> None:
@@ -224,8 +226,8 @@ def check_only(project: Project, entries: list, only: list[str] | None) -> None:
     known = {e.mark for e in entries}
     unknown = [m for m in only or () if m not in known]
     if unknown:
-        raise JobError(f"--only {','.join(only)}", f"no member {', '.join(unknown)} in {project.schedule_path}",
-                       f"Marks in the schedule: {', '.join(sorted(known)) or 'none'}")
+        raise UsageError(f"--only {','.join(only)}: no member {', '.join(unknown)} in {project.schedule_path}. "
+                         f"Marks in the schedule: {', '.join(sorted(known)) or 'none'}")
 
 
 def swap_into_place(stage: Path, final: Path) -> None:
@@ -290,6 +292,10 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
 
         write_chart(stage / "summary.png", doc["members"],
                     f"{project.fields['title']} rev {project.revision}: governing utilization", jobdir / ".cache")
+        if opts.sheets and opts.fmt == "html":
+            from .htmlindex import index_html
+
+            write_atomic(stage / "index.html", index_html(project, doc, stage))
         if opts.sheets and opts.fmt == "pdf":
             from .package import build_package
             from .pipeline import ConversionError
@@ -321,6 +327,9 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         report.log += warnings
         for d in designs:
             report.log += [f"{d.mark}: {e}" for e in d.errors]
+        report.log += [f"{d.mark}: traceback of the internal error\n{d.trace.rstrip()}" for d in designs if d.trace]
+        report.log += [f"{o.mark}: traceback of the sheet failure\n{o.trace.rstrip()}"
+                       for o in report.sheets.values() if o.trace]
         write_atomic(stage / "run.log", "\n".join(report.log) + "\n")
         swap_into_place(stage, final)
     finally:
