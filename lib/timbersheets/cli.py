@@ -97,6 +97,13 @@ def _parser() -> argparse.ArgumentParser:
                              "fails or has an error")
     review.add_argument("--out", type=Path, metavar="OUTDIR", help="the folder holding rev-<R>/ (as given to run --out)")
 
+    sub.add_parser("doctor", help="check Python, the package, TeX and the fonts; say how to get what is missing",
+                   description="Check what a run needs: Python, this package and its Jupyter kernel, xelatex with "
+                               "every LaTeX package the sheet layouts load, and their fonts (a one-line test page is "
+                               "typeset). Prints how to get TeX on Windows, macOS and Linux; HTML sheets "
+                               "(run --format html) need no TeX. Changes nothing.",
+                   epilog="Exit status: 0 ready; 1 PDF sheets cannot be made (HTML sheets and results can); "
+                          "2 Python or the package is not usable.")
     columns = sub.add_parser("columns", help="the schedule column reference: meaning, unit, default, allowed values",
                              description="Print every schedule column with its meaning, unit, default and allowed "
                                          "values, from the column table in the code.",
@@ -292,8 +299,17 @@ def cmd_columns(args: argparse.Namespace) -> int:
     return ExitCode.OK
 
 
+def cmd_doctor(args: argparse.Namespace) -> int:
+    from .doctor import diagnose, report
+    from .pipeline import templates_dir
+
+    lines, code = report(diagnose(templates_dir()))
+    print("\n".join(lines))
+    return code
+
+
 COMMANDS = {"new": cmd_new, "run": cmd_run, "size": cmd_size, "diff": cmd_diff, "review": cmd_review,
-            "columns": cmd_columns}
+            "columns": cmd_columns, "doctor": cmd_doctor}
 
 
 def main(argv: list[str] | None = None) -> int:

@@ -292,10 +292,6 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
 
         write_chart(stage / "summary.png", doc["members"],
                     f"{project.fields['title']} rev {project.revision}: governing utilization", jobdir / ".cache")
-        if opts.sheets and opts.fmt == "html":
-            from .htmlindex import index_html
-
-            write_atomic(stage / "index.html", index_html(project, doc, stage))
         if opts.sheets and opts.fmt == "pdf":
             from .package import build_package
             from .pipeline import ConversionError
@@ -315,6 +311,10 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
             report.package = final / "package.pdf" if (stage / "package.pdf").exists() else None
         report.carried = carried
         doc["carried_over"] = carried.to_json()
+        if opts.sheets and opts.fmt == "html":
+            from .htmlindex import index_html
+
+            write_atomic(stage / "index.html", index_html(project, doc, stage))
         write_results(stage, doc)
         snapshot_inputs(project, stage)
         counts = report.counts()
