@@ -41,7 +41,7 @@ def test_help_is_specific_to_each_command():
     assert "still designed" in " ".join(run_help.split())  # what --only does to the others
     run_exit = "1 a member fails or has an error"
     assert run_exit in " ".join(run_help.split())
-    for command in ("new", "size", "diff", "review"):
+    for command in ("new", "size", "diff", "review", "columns", "data", "doctor"):
         text = " ".join(cli(command, "--help").stdout.split())
         assert run_exit not in text, command
         assert "Exit status:" in text, command
