@@ -56,7 +56,7 @@ def test_outputs_go_by_where_the_job_is_never_by_where_the_command_runs(tmp_path
     elsewhere.mkdir()
     loose = write_job(tmp_path / "jobs" / "loose-job", [member_row("C-1")])
     kept = write_job(tmp_path / "repo" / "calcsheets" / "kept-job", [member_row("C-1")])
-    for job, expected in ((loose, loose / "outputs" / "rev-A"),
+    for job, expected in ((loose, tmp_path / "jobs" / "outputs" / "loose-job" / "rev-A"),
                           (kept, tmp_path / "repo" / "outputs" / "kept-job" / "rev-A")):
         done = cli("run", str(job), "--no-pdf", cwd=elsewhere)
         assert done.returncode == 0, done.stderr

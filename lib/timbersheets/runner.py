@@ -90,9 +90,8 @@ def job_dir(project: Project, out: Path | None) -> Path:
     if out is not None:
         return out
     folder = project.folder.resolve()
-    if folder.parent.name == "calcsheets":
-        return folder.parent.parent / "outputs" / folder.name
-    return folder / "outputs"
+    beside = folder.parent.parent if folder.parent.name == "calcsheets" else folder.parent
+    return beside / "outputs" / folder.name
 
 
 def revision_dir(project: Project, out: Path | None) -> Path:
