@@ -101,3 +101,24 @@ def test_html_sheet_holds_the_pdf_sheets_numbers(tmp_path):
         missing = numbers - set(re.findall(r"\d+\.\d+", visible_text(page)))
         assert not missing, (mark, sorted(missing))
         assert len(numbers) > 40
+
+
+def test_html_index_lists_every_member_offline(tmp_path):
+    import json
+
+    from conftest import member_row
+    from timbersheets.htmlindex import index_html
+
+    # A 38x89 stud of 3 m under 60 kN dead load is far over its capacity (hand calculation:
+    # A = 38 x 89 = 3382 mm², 60 kN / 3382 mm² = 17.7 MPa, against f_c K_D = 11.5 x 0.65 = 7.5 MPa
+    # before stability; f_c of S-P-F No.1/No.2 from memory).
+    job = write_job(tmp_path / "job", [member_row("A-1"), member_row("A-2", size="38x89", P_D="60")])
+    out = tmp_path / "out"
+    run_job(job, RunOptions(out=out, sheets=False, progress=False))
+    doc = json.loads((out / "rev-A" / "results.json").read_text())
+    page = index_html(load_project(job), doc, out / "rev-A")
+    seen = visible_text(page)
+    assert offline(page) == []
+    assert "A-1" in seen and "A-2" in seen and "DOES NOT PASS" in seen and "PASSES" in seen
+    assert "2 members: 1 passes, 1 does not pass, 0 not designed" in seen
+    assert "licensed professional engineer" in seen

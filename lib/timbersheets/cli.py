@@ -215,18 +215,15 @@ def cmd_what_if(args: argparse.Namespace) -> int:
 def cmd_size(args: argparse.Namespace) -> int:
     import time
 
-    from .data import DataSet
     from .design import design_function
+    from .job import load_job
     from .membertypes import member_type
-    from .project import load_project
-    from .schedule import load_schedule
     from .sizing import size
 
-    project = load_project(args.dir)
-    data = DataSet(project.materials)
-    schedule = load_schedule(project.schedule_path, data)
-    members = {m.mark: m for m in schedule.members}
-    marks = args.mark or [m.mark for m in schedule.members if m.size == "auto"]
+    job = load_job(args.dir)
+    project, data = job.project, job.data
+    members = job.members()  # with the loads they carry from other members
+    marks = args.mark or [m.mark for m in members.values() if m.size == "auto"]
     unknown = [m for m in marks if m not in members]
     if unknown:
         raise UsageError(f"no valid member {', '.join(unknown)} in {project.schedule_path}")
@@ -301,7 +298,12 @@ def cmd_review(args: argparse.Namespace) -> int:
         raise UsageError(f"not in rev {project.revision}: {', '.join(unknown)}")
     from .data import DataSet
 
-    current = {m.mark: m.inputs_hash for m in load_schedule(project.schedule_path, DataSet(project.materials)).members}
+    from .loadpath import resolved_members
+
+    data = DataSet(project.materials)
+    # the inputs as the run hashed them: with the reactions each member carries
+    current = {mark: m.inputs_hash for mark, m in resolved_members(load_schedule(project.schedule_path, data),
+                                                                    data).items()}
     stale = [m for m in marks if current.get(m) != members[m].get("inputs_hash")]
     if stale:
         raise UsageError(f"the schedule changed after the last run for {', '.join(stale)}; "

@@ -103,7 +103,7 @@ def effects_of(member: Member) -> Effects:
     """Specified effects by type from the row's P_*, M_*, V_*, w_* columns, the axial loads a column carries
     from other members, and the total load F of a beam model."""
     values = {e: {t: member.values[f"{e}_{t}"] for t in LOAD_TYPES} for e in EFFECTS}
-    if member.type != "bending":
+    if member_type(member.type).axial is not None:
         for c in member.values.get("carried", ()):
             for t in LOAD_TYPES:
                 values["P"][t] += c.loads.get(t, 0.0)
@@ -296,9 +296,10 @@ def rejected(entry: RowError) -> MemberDesign:
     return MemberDesign(entry.mark, entry.row, None, errors=[str(e) for e in entry.errors], warnings=entry.warnings)
 
 
-def design_all(entries: list[Member | RowError], data: DataSet) -> list[MemberDesign]:
-    """Every entry designed, each member after the members it carries (:mod:`loadpath`)."""
+def design_all(entries: list[Member | RowError], data: DataSet, file: str = "schedule.csv") -> list[MemberDesign]:
+    """Every entry designed, each member after the members it carries (:mod:`loadpath`); `file` is the
+    schedule's name, for the load path's row errors."""
     from .loadpath import design_in_order
 
-    return design_in_order(entries, data)
+    return design_in_order(entries, data, file)
 

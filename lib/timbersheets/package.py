@@ -132,7 +132,8 @@ def change_rows(changes: list[MemberChange]) -> list[dict[str, str]]:
         if c.kind != "changed":
             out.append({"mark": escape(c.mark), "what": escape(c.kind), "item": "", "old": "", "new": ""})
             continue
-        items = [("input", k, a, b) for k, a, b in c.inputs] + [("result", k, a, b) for k, a, b in c.results]
+        items = [("because", "carried", "", f"{source} changed") for source in c.because]
+        items += [("input", k, a, b) for k, a, b in c.inputs] + [("result", k, a, b) for k, a, b in c.results]
         if c.verdict_flip:
             items.append(("verdict flipped", "status", *c.verdict_flip))
         for j, (what, k, a, b) in enumerate(items):

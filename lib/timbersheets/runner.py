@@ -20,18 +20,18 @@ from pathlib import Path
 from . import __version__
 from .constants import SHORT_CAUTION
 from .data import DataSet
-from .design import MemberDesign, design_all
-from .errors import ExitCode, JobError, UsageError
+from .design import MemberDesign
+from .errors import ExitCode, UsageError
 from .membertypes import member_types
 from .fileio import write_atomic
 from .keep import Carried, carry_package, carry_sheets, package_key, write_package_key
 from .pipeline import templates_dir
-from .project import Project, load_project
+from .job import load_job
+from .project import Project
 from .fileio import write_csv
 from .results import member_json, results_doc, write_results
 from .review import comment_text, latest, read_reviews, status, titleblock_text
 from .revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
-from .schedule import load_schedule
 from .sheetjobs import SheetOutcome, SheetTask, from_cache, run_sheet
 from .tex import escape
 
@@ -256,11 +256,10 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     """
     opts = opts or RunOptions(**kw)
     started = time.monotonic()
-    project = load_project(folder)
-    data = DataSet(project.materials)
-    schedule = load_schedule(project.schedule_path, data)
+    job = load_job(folder)
+    project, schedule, data = job.project, job.schedule, job.data
     check_only(project, schedule.entries, opts.only)
-    designs = design_all(schedule.entries, data)
+    designs = job.designs
     jobdir = job_dir(project, opts.out)
     prev_label = previous_revision(jobdir, project.revision)
     previous = load_results(jobdir / f"rev-{prev_label}") if prev_label else None

@@ -145,9 +145,6 @@ def _columns() -> tuple[Column, ...]:
 
 COLUMNS = {c.name: c for c in _columns()}
 REQUIRED = tuple(c.name for c in COLUMNS.values() if c.required)
-#: Loads and geometry only a bending member analysed as a beam takes.
-BEAM_ONLY = ("spans", "overhang_left", "overhang_right", "trib", *(f"{p}_{t}" for p in ("q", "point", "part")
-                                                                   for t in LOAD_TYPES))
 #: Set by the load path (reactions of the members this one carries), not by the schedule.
 DERIVED = ("carried",)
 
@@ -170,6 +167,7 @@ class Member:
     values: dict[str, Any]
     given: frozenset[str]  # columns the row gave (not defaulted)
     warnings: list[str] = field(default_factory=list)
+    entered: dict[str, str] = field(default_factory=dict)  # quantity cells written in another unit, as written
 
     def __getattr__(self, name: str) -> Any:
         try:
@@ -204,6 +202,8 @@ class Member:
                 out[name] = value
         out["given"] = sorted(self.given)
         out["carried"] = [c.params() for c in self.values.get("carried", ())]
+        if self.entered:
+            out["entered"] = dict(self.entered)
         return out
 
     @classmethod
@@ -214,7 +214,7 @@ class Member:
         and a typo in a load name would otherwise silently use a default.
         """
         expected = set(COLUMNS) | {"row", "given", *DERIVED}
-        unknown, missing = set(params) - expected, expected - set(params)
+        unknown, missing = set(params) - expected - {"entered"}, expected - set(params)
         if unknown or missing:
             raise ParameterError(sorted(unknown), sorted(missing))
         values: dict[str, Any] = {}
@@ -233,12 +233,13 @@ class Member:
         from .loadpath import CarriedLoad
 
         values["carried"] = tuple(CarriedLoad.from_params(c) for c in params["carried"])
-        return cls(params["mark"], int(params["row"]), values, frozenset(params.get("given", ())))
+        return cls(params["mark"], int(params["row"]), values, frozenset(params.get("given", ())),
+                   entered=dict(params.get("entered", {})))
 
     @property
     def inputs_hash(self) -> str:
         """What a check is tied to: the member's inputs, not where its row sits in the schedule."""
-        params = {k: v for k, v in self.params().items() if k != "row"}
+        params = {k: v for k, v in self.params().items() if k not in ("row", "entered")}  # values, not spelling
         text = json.dumps(params, sort_keys=True, separators=(",", ":"))
         return "sha256:" + hashlib.sha256(text.encode()).hexdigest()
 
@@ -359,7 +360,7 @@ def load_schedule(path: Path, data=None) -> Schedule:
         if errors:
             rejected.append(RowError(mark or f"row-{number}", number, errors))
         else:
-            member = Member(mark, number, values, frozenset(given))
+            member = Member(mark, number, values, frozenset(given), entered=_entered(cells, given))
             member.warnings.extend(_row_warnings(name, number, member))
             members.append(member)
     return Schedule(path, members, rejected, warnings)
@@ -387,6 +388,21 @@ def _validate_row(file: str, row: int, cells: dict[str, str], data) -> tuple[lis
     if not errors:
         errors += _cross_checks(file, row, values, given, data)
     return errors, values, given
+
+
+def _entered(cells: dict[str, str], given: set[str]) -> dict[str, str]:
+    """Quantity cells written with a unit other than the column's own (12 ft, 4.5 kip), as written."""
+    out = {}
+    for name in sorted(given):
+        col, text = COLUMNS[name], cells[name].strip()
+        if col.kind != "quantity":
+            continue
+        number = text[:-len(col.unit)].strip() if col.unit and text.endswith(col.unit) else text
+        try:
+            float(number)
+        except ValueError:
+            out[name] = text
+    return out
 
 
 def choices(col: Column) -> tuple[str, ...]:
@@ -506,8 +522,10 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str], data)
                                   "leaves less than 75 % of the gross area; O86 does not allow designing on it",
                                   "a ratio from 0.75 to 1.0; reduce the holes or notches"))
     beam_errors = beamloads.row_errors(file, row, v, given)
-    if beam_errors or v["length"] is None:
+    if beam_errors:
         return errs + beam_errors
+    if v["length"] is None:
+        return errs + _type_rules(file, row, v, given)
     for name in ("Lx", "Ly", "Lu"):
         if v[name] is not None and v[name] > v["length"] * (1 + 1e-9) and name in given:
             errs.append(ScheduleError(file, row, name, f"{v[name] / 1000:g} m", f"is longer than the member (length {v['length'] / 1000:g} m)",
