@@ -416,6 +416,9 @@ def sheet_html(nb: Any, tb: dict[str, str]) -> str:
                 png = data["image/png"]
                 png = png if isinstance(png, str) else base64.b64encode(png).decode()
                 parts.append(f'<img alt="figure" src="data:image/png;base64,{png.strip()}">')
+    if tb.get("review_comment"):  # as the PDF sheet: the checker's comment first
+        parts.insert(0, f'<div class="caution"><p class="title">Checker\u2019s comment</p>'
+                        f'<p>{_field(tb, "review_comment")}</p></div>')
     caution = _field(tb, "caution") or html.escape(CAUTION)
     stop = "<p><strong>INCOMPLETE: the calculation stopped with an error. Not for use.</strong></p>" if incomplete else ""
     title = f"{_field(tb, 'mark')} \u2014 {_field(tb, 'project')}"

@@ -22,7 +22,7 @@ from . import __version__
 from .constants import SHORT_CAUTION
 from .data import DataSet
 from .design import MemberDesign
-from .errors import ExitCode, JobError
+from .errors import ExitCode, UsageError
 from .membertypes import member_types
 from .fileio import copy_atomic, remove_stale_parts, write_atomic
 from .lifetime import die_with_parent, pid_alive
@@ -92,9 +92,8 @@ def job_dir(project: Project, out: Path | None) -> Path:
     if out is not None:
         return out
     folder = project.folder.resolve()
-    if folder.parent.name == "calcsheets":
-        return folder.parent.parent / "outputs" / folder.name
-    return folder / "outputs"
+    beside = folder.parent.parent if folder.parent.name == "calcsheets" else folder.parent
+    return beside / "outputs" / folder.name
 
 
 def revision_dir(project: Project, out: Path | None) -> Path:
@@ -241,8 +240,8 @@ def check_only(project: Project, entries: list, only: list[str] | None) -> None:
     known = {e.mark for e in entries}
     unknown = [m for m in only or () if m not in known]
     if unknown:
-        raise JobError(f"--only {','.join(only)}", f"no member {', '.join(unknown)} in {project.schedule_path}",
-                       f"Marks in the schedule: {', '.join(sorted(known)) or 'none'}")
+        raise UsageError(f"--only {','.join(only)}: no member {', '.join(unknown)} in {project.schedule_path}. "
+                         f"Marks in the schedule: {', '.join(sorted(known)) or 'none'}")
 
 
 def swap_into_place(stage: Path, final: Path) -> None:
@@ -308,10 +307,6 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
 
         write_chart(stage / "summary.png", doc["members"],
                     f"{project.fields['title']} rev {project.revision}: governing utilization", jobdir / ".cache")
-        if opts.sheets and opts.fmt == "html":
-            from .htmlindex import index_html
-
-            write_atomic(stage / "index.html", index_html(project, doc, stage))
         if opts.sheets and opts.fmt == "pdf":
             from .package import build_package
             from .pipeline import ConversionError
@@ -331,6 +326,10 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
             report.package = final / "package.pdf" if (stage / "package.pdf").exists() else None
         report.carried = carried
         doc["carried_over"] = carried.to_json()
+        if opts.sheets and opts.fmt == "html":
+            from .htmlindex import index_html
+
+            write_atomic(stage / "index.html", index_html(project, doc, stage))
         write_results(stage, doc)
         snapshot_inputs(project, stage)
         counts = report.counts()
