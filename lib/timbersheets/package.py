@@ -14,20 +14,20 @@ from __future__ import annotations
 import os
 import re
 from functools import lru_cache
-import subprocess
 import tempfile
 from pathlib import Path
 from typing import Any
 
 from . import __version__
 from .data import DataSet
-from .pipeline import XELATEX, ConversionError, templates_dir
+from .pipeline import templates_dir
 from .project import Project
 from .review import titleblock_text
 from .revisions import MemberChange
 from .sheets import CAUTION
 from .symbols import ACTION_WORDS
 from .tex import escape
+from .typeset import typeset
 
 VERDICT = {"pass": "passes", "fail": "does not pass", "error": "not designed"}
 VERDICT_TEX = {"pass": "PASSES", "fail": r"\textbf{DOES NOT PASS}", "error": r"\textbf{NOT DESIGNED}"}
@@ -140,13 +140,9 @@ def package_tex(project: Project, doc: dict[str, Any], data: DataSet, outdir: Pa
 
 
 def _typeset(tex: str, work: Path, name: str) -> tuple[Path, str]:
-    (work / f"{name}.tex").write_text(tex, encoding="utf-8")
-    done = subprocess.run([*XELATEX, f"{name}.tex"], cwd=work, capture_output=True, text=True, errors="replace")
-    if done.returncode != 0:
-        tail = "\n".join(ln for ln in done.stdout.splitlines() if ln.startswith("!"))[-1500:]
-        raise ConversionError("package", "xelatex could not typeset the package", tail)
+    done = typeset(tex, work, name, "package")
     aux = work / f"{name}.aux"
-    return work / f"{name}.pdf", aux.read_text(encoding="utf-8", errors="replace") if aux.exists() else ""
+    return done.pdf, aux.read_text(encoding="utf-8", errors="replace") if aux.exists() else ""
 
 
 def _stamps(project: Project, first: int, total: int, work: Path) -> Path:

@@ -8,11 +8,9 @@ written to a temporary name and renamed into place.
 from __future__ import annotations
 
 import datetime as dt
-import multiprocessing
 import os
 import shutil
 import time
-from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -21,14 +19,13 @@ from .data import DataSet
 from .design import MemberDesign, design_all, member_types
 from .fileio import write_atomic
 from .pipeline import templates_dir
-from .progress import Progress
 from .project import Project, load_project
 from .fileio import write_csv
 from .results import member_json, results_doc, write_results
 from .review import latest, read_reviews, status, titleblock_text
 from .revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
 from .schedule import load_schedule
-from .sheetjobs import SheetOutcome, SheetTask, from_cache, run_sheet
+from .sheetjobs import SheetOutcome, SheetTask, run_sheets
 from .tex import escape
 
 EXIT_PASS, EXIT_MEMBERS, EXIT_JOB = 0, 1, 2
@@ -134,47 +131,6 @@ def sheet_tasks(project: Project, designs: list[MemberDesign], data: DataSet, ou
     return tasks
 
 
-def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool) -> dict[str, SheetOutcome]:
-    """Execute and convert every task, `jobs` at a time; a failure stays with its member."""
-    jobs = max(1, jobs or os.cpu_count() or 1)
-    bar = Progress(len(tasks), "sheets") if progress else None
-    outcomes: dict[str, SheetOutcome] = {}
-
-    def done(task: SheetTask, outcome: SheetOutcome) -> None:
-        outcomes[task.mark] = outcome
-        if bar:
-            bar.step(task.mark)
-
-    pending = []
-    for task in tasks:  # unchanged members come straight from the cache, without a worker
-        cached = from_cache(task)
-        if cached is None:
-            pending.append(task)
-        else:
-            done(task, cached)
-    tasks = pending
-
-    if jobs == 1 or len(tasks) <= 1:
-        for task in tasks:
-            done(task, _safe_run(task))
-    else:
-        context = multiprocessing.get_context("spawn")
-        with ProcessPoolExecutor(max_workers=min(jobs, len(tasks)), mp_context=context) as pool:
-            futures = {pool.submit(_safe_run, t): t for t in tasks}
-            for future, task in futures.items():
-                done(task, future.result())
-    if bar:
-        bar.close()
-    return outcomes
-
-
-def _safe_run(task: SheetTask) -> SheetOutcome:
-    try:
-        return run_sheet(task)
-    except Exception as exc:  # a worker failure belongs to its member, not the run  # noqa: BLE001
-        return SheetOutcome(task.mark, error=f"{type(exc).__name__}: {exc}")
-
-
 def cross_check(design: MemberDesign, outcome: SheetOutcome) -> None:
     """The sheet's own result record must equal the run's: else the member is an error."""
     if outcome.error:
@@ -251,6 +207,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     previous = load_results(jobdir / f"rev-{prev_label}") if prev_label else None
     extra = member_extras(project, designs, previous)
     phases = {"design": time.monotonic() - started}
+    work: dict[str, float] = {}  # seconds per phase of the sheet work, summed over workers
     stage, final = stage_dir(project, opts)
     try:
         report = RunReport(project, final, designs, schedule.warnings)
@@ -258,7 +215,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         tasks = sheet_tasks(project, chosen, data, stage, opts, extra)
         if tasks and opts.sheets:
             mark = time.monotonic()
-            report.sheets = run_sheets(tasks, opts.jobs, opts.progress)
+            report.sheets = run_sheets(tasks, opts.jobs, opts.progress, work)
             phases["sheets"] = time.monotonic() - mark
             for d in designs:
                 if d.mark in report.sheets:
@@ -275,7 +232,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                     f"{project.fields['title']} rev {project.revision}: governing utilization", jobdir / ".cache")
         if opts.sheets and opts.fmt == "pdf":
             from .package import build_package
-            from .pipeline import ConversionError
+            from .typeset import ConversionError
 
             try:
                 mark = time.monotonic()
@@ -293,7 +250,8 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                              f"{counts['pass']} pass, {counts['fail']} fail, {counts['error']} error; "
                              f"{len(report.executed)} executed, {len(report.converted)} converted "
                              f"({time.monotonic() - started:.1f} s: "
-                             + ", ".join(f"{k} {v:.1f} s" for k, v in phases.items()) + ")")
+                             + ", ".join(f"{k} {v:.1f} s" for k, v in phases.items()) + ")"
+                             + ("; sheet work: " + ", ".join(f"{k} {v:.1f} s" for k, v in work.items()) if work else ""))
         report.log += schedule.warnings
         for d in designs:
             report.log += [f"{d.mark}: {e}" for e in d.errors]
