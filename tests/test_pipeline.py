@@ -121,7 +121,7 @@ def test_cache_reexecutes_only_what_changed(tmp_path):
     first = run_job(job, opts)
     assert sorted(first.executed) == ["A-1", "A-2", "A-3"]
     second = run_job(job, opts)
-    assert second.executed == [] and second.converted == []
+    assert second.executed == [] and second.converted == [] and second.stamped == []
     assert (second.outdir / "package.pdf").exists()
     rows[1]["P_D"] = "7.5"
     write_job(tmp_path / "cache", rows)
@@ -145,7 +145,7 @@ def test_a_failing_template_affects_only_its_member(tmp_path, monkeypatch):
     nbformat.write(nb, templates / "axial.ipynb")
     monkeypatch.setenv("TIMBERSHEETS_TEMPLATES", str(templates))
     job = write_job(tmp_path / "fail", [member_row("OK-1"), member_row("BAD-1"), member_row("OK-2")])
-    report = run_job(job, RunOptions(out=tmp_path / "out", progress=False))
+    report = run_job(job, RunOptions(out=tmp_path / "out", progress=False, jobs=1))  # one batch of three
     results = {m["mark"]: m for m in json.loads((report.outdir / "results.json").read_text())["members"]}
     assert results["OK-1"]["status"] == "pass" and results["OK-2"]["status"] == "pass"
     assert results["BAD-1"]["status"] == "error"
@@ -154,6 +154,9 @@ def test_a_failing_template_affects_only_its_member(tmp_path, monkeypatch):
     assert any(o.get("output_type") == "error" for c in kept["cells"] for o in c.get("outputs", []))
     sheet_text = pdf_text(report.outdir / "sheets" / "BAD-1.pdf")
     assert "INCOMPLETE" in sheet_text
+    for mark in ("OK-1", "OK-2"):  # typeset in the same run as the failed sheet, and whole
+        text = pdf_text(report.outdir / "sheets" / f"{mark}.pdf")
+        assert "INCOMPLETE" not in text and "PASSES" in text and mark in text
     assert "NOT DESIGNED" in pdf_text(report.outdir / "package.pdf")
 
 

@@ -70,7 +70,13 @@ class RunReport:
 
     @property
     def converted(self) -> list[str]:
+        """Members whose sheet body was typeset (or HTML sheet written)."""
         return [m for m, s in self.sheets.items() if s.converted]
+
+    @property
+    def stamped(self) -> list[str]:
+        """Members whose title-block stamp was laid on their body."""
+        return [m for m, s in self.sheets.items() if s.stamped]
 
 
 def default_outputs(folder: Path) -> Path:
@@ -248,7 +254,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         counts = report.counts()
         report.log.insert(0, f"{project.name} rev {project.revision}: {len(designs)} members, "
                              f"{counts['pass']} pass, {counts['fail']} fail, {counts['error']} error; "
-                             f"{len(report.executed)} executed, {len(report.converted)} converted "
+                             f"{len(report.executed)} executed, {len(report.converted)} typeset, {len(report.stamped)} stamped "
                              f"({time.monotonic() - started:.1f} s: "
                              + ", ".join(f"{k} {v:.1f} s" for k, v in phases.items()) + ")"
                              + ("; sheet work: " + ", ".join(f"{k} {v:.1f} s" for k, v in work.items()) if work else ""))

@@ -91,6 +91,7 @@ class SheetOutcome:
     mark: str
     executed: bool = False
     converted: bool = False  # the body (or HTML) was typeset in this run
+    stamped: bool = False  # the title-block stamp was laid on in this run
     error: str | None = None  # notebook error (the notebook is kept, error marked)
     pages: int = 0  # pages of the PDF sheet (0: not known)
     record: dict[str, Any] | None = field(default=None, repr=False)
@@ -253,11 +254,13 @@ def _finish(tasks: list[SheetTask], outcomes: dict[str, SheetOutcome]) -> None:
     stale = [t for t in pdf if t.force or outcomes[t.mark].converted or not t.cached_sheet.exists()]
     stamps = [Stamp(t.mark, t.cached_body, _read_pages(t.cached_body), stamped_fields(t.titleblock),
                     t.cached_sheet) for t in stale]
+    made = {s.mark: s.pdf for s in stamps}
     for mark, result in stamp_sheets(stamps).items() if stamps else ():
         if isinstance(result, Exception):
             outcomes[mark].fail(str(result))
         else:
-            _pages_file(next(s.pdf for s in stamps if s.mark == mark)).write_text(str(result))
+            outcomes[mark].stamped = True
+            _pages_file(made[mark]).write_text(str(result))
     for task in tasks:
         if task.sheet is not None and task.cached_sheet.exists() and task.cached_sheet.stat().st_size:
             copy_atomic(task.cached_sheet, task.sheet)
