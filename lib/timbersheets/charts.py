@@ -8,9 +8,11 @@ from typing import Any
 
 from .fileio import write_atomic
 
+CHART_MAX = 60  # members shown, highest utilization first; the index lists them all
+
 
 def utilization_chart(members: list[dict[str, Any]], title: str) -> bytes:
-    """A PNG of every designed member's governing utilization, highest first.
+    """A PNG of the designed members' governing utilization, highest first (at most CHART_MAX).
 
     Members that do not pass are hatched, so the chart reads without colour.
     """
@@ -20,6 +22,9 @@ def utilization_chart(members: list[dict[str, Any]], title: str) -> bytes:
     from matplotlib import pyplot as plt
 
     rows = sorted((m for m in members if m.get("utilization") is not None), key=lambda m: -m["utilization"])
+    if len(rows) > CHART_MAX:  # a bar per member stops being legible (and costs minutes to draw)
+        title = f"{title} (the {CHART_MAX} highest of {len(rows)})"
+        rows = rows[:CHART_MAX]
     height = max(1.6, 0.22 * len(rows) + 0.9)
     fig, ax = plt.subplots(figsize=(6.3, min(height, 9.0)), dpi=150)
     marks = [m["mark"] for m in rows]

@@ -11,6 +11,7 @@ Everything comes from the run's results document, so package and results.json ag
 
 from __future__ import annotations
 
+import hashlib
 import os
 import re
 from functools import lru_cache
@@ -20,7 +21,8 @@ from typing import Any
 
 from . import __version__
 from .data import DataSet
-from .pipeline import templates_dir
+from .pipeline import library_fingerprint, templates_dir
+from .sheetjobs import copy_atomic
 from .project import Project
 from .review import titleblock_text
 from .revisions import MemberChange
@@ -188,26 +190,44 @@ def _stamps(project: Project, first: int, total: int, work: Path) -> Path:
 FRONT_HINT = ".front-pages"
 
 
+def _package_key(tex: str, outdir: Path, rows: list[dict]) -> str:
+    """What the package is made of: the front matter's source (the staging folder's name left
+    out), the chart, every sheet's bytes and the library (which draws the page stamps)."""
+    digest = hashlib.sha256(tex.replace(outdir.resolve().as_posix(), "").encode())
+    for path in [outdir / "summary.png"] + [Path(r["sheet"]) for r in rows if r["sheet"]]:
+        digest.update(hashlib.sha256(path.read_bytes()).digest() if path.exists() else b"-")
+    digest.update(library_fingerprint().encode())
+    return digest.hexdigest()
+
+
 def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: Path,
                   changes: list[MemberChange], hint: Path | None = None,
-                  pages: dict[str, int] | None = None) -> Path:
+                  pages: dict[str, int] | None = None, cache: Path | None = None) -> Path:
     """package.pdf in `outdir`: front matter typeset, sheets appended and stamped; written atomically.
 
     `hint` is the previous revision folder: its front-matter length is the first
-    guess, which saves a second typesetting of the front matter on a rerun.
+    guess, which saves a second typesetting of the front matter on a rerun. A
+    package made of exactly the same parts before is taken from `cache`.
     """
     import pikepdf
 
     target = outdir / "package.pdf"
     chart = outdir / "summary.png"
     chart_path = chart.resolve().as_posix() if chart.exists() else ""
+    front_pages = 2
+    if hint is not None and (hint / FRONT_HINT).exists():
+        front_pages = int((hint / FRONT_HINT).read_text() or 2)
+    tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
+    cached = cache / f"{_package_key(tex, outdir, rows)}.package.pdf" if cache is not None else None
+    if cached is not None and cached.exists():
+        copy_atomic(cached, target)
+        (outdir / FRONT_HINT).write_text(str(front_pages))
+        return target
     with tempfile.TemporaryDirectory(prefix="ts-pkg-") as tmp:
         work = Path(tmp)
-        front_pages = 2
-        if hint is not None and (hint / FRONT_HINT).exists():
-            front_pages = int((hint / FRONT_HINT).read_text() or 2)
-        for _ in range(4):  # the front matter's length sets the page numbers it prints
-            tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
+        for attempt in range(4):  # the front matter's length sets the page numbers it prints
+            if attempt:
+                tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
             front, aux = _typeset(tex, work, "package")
             with pikepdf.open(front) as typeset:
                 actual = len(typeset.pages)
@@ -245,5 +265,7 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
             for src in sources:
                 src.close()
         os.replace(staged, target)
+    if cached is not None:
+        copy_atomic(target, cached)
     return target
 

@@ -219,8 +219,8 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         warnings = project.warnings + schedule.warnings
         report = RunReport(project, final, designs, warnings)
         chosen = designs if not opts.only else [d for d in designs if d.mark in set(opts.only)]
-        tasks = sheet_tasks(project, chosen, data, stage, opts, extra)
-        if tasks and opts.sheets:
+        tasks = sheet_tasks(project, chosen, data, stage, opts, extra) if opts.sheets else []
+        if tasks:
             mark = time.monotonic()
             report.sheets = run_sheets(tasks, opts.jobs, opts.progress, work)
             phases["sheets"] = time.monotonic() - mark
@@ -245,7 +245,8 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                 mark = time.monotonic()
                 report.package = final / "package.pdf"
                 build_package(project, doc, data, stage, changes, hint=final,
-                              pages={m: o.pages for m, o in report.sheets.items() if o.pages})
+                              pages={m: o.pages for m, o in report.sheets.items() if o.pages},
+                              cache=jobdir / ".cache")
                 phases["package"] = time.monotonic() - mark
             except ConversionError as exc:
                 report.package, report.package_error = None, str(exc)
