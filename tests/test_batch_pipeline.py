@@ -132,3 +132,39 @@ def test_a_sheet_that_cannot_be_typeset_leaves_the_batch_standing(tmp_path, monk
                for e in next(d for d in report.designs if d.mark == "TEX-1").errors)
     for mark in ("OK-1", "OK-2"):
         assert "1 of " in title_block(report.outdir / "sheets" / f"{mark}.pdf", 1)
+
+
+def words(pdf: Path, page: int) -> list[tuple[str, float, float, float, float]]:
+    """(word, xMin, yMin, xMax, yMax) in points from the top-left corner, as pdftotext reads them."""
+    out = subprocess.run(["pdftotext", "-bbox", "-f", str(page), "-l", str(page), str(pdf), "-"],
+                         capture_output=True, text=True, check=True).stdout
+    return [(w, float(a), float(b), float(c), float(d)) for a, b, c, d, w in
+            re.findall(r'<word xMin="([\d.]+)" yMin="([\d.]+)" xMax="([\d.]+)" yMax="([\d.]+)">([^<]*)</word>', out)]
+
+
+def test_stamped_values_sit_in_their_boxes_under_their_labels(batch_job):
+    # The stamp is typeset apart from the body: each value must land in its own cell, under its
+    # label (the body's) and left-aligned with it, as if both had been typeset together.
+    job, out, _ = batch_job
+    sheet = out / ("rev-B" if (out / "rev-B").exists() else "rev-A") / "sheets" / "BA-1.pdf"
+    found = words(sheet, 1)
+    for label, value in (("SHEET", "1"), ("DATE", "2026-12-01"), ("REVISION", None)):
+        lx, ly = next((x0, y1) for w, x0, y0, x1, y1 in found if w == label)
+        below = sorted((y0, w, x0) for w, x0, y0, x1, y1 in found if abs(x0 - lx) < 1.0 and ly < y0 < ly + 20)
+        assert below, label
+        assert value is None or below[0][1] == value, (label, below)
+
+
+def test_the_seal_box_is_at_least_45_mm_square(batch_job):
+    # Room for a seal with signature and date: at least 45 mm on every sheet (the cover has its
+    # own). The box is measured from the labels: SEAL sits 1.5 mm right of the box's left rule and
+    # 1.3 mm under its top; the box reaches the right edge of the 165 mm text block (27 mm left
+    # margin) and the block's foot, 9 mm under the top of the DESIGNED BY row.
+    job, out, _ = batch_job
+    found = words(out / "rev-A" / "sheets" / "BA-3.pdf", 1)
+    mm = 72 / 25.4
+    seal_x, seal_y = next((x0, y0) for w, x0, y0, *_ in found if w == "SEAL")
+    designed_y = next(y0 for w, x0, y0, *_ in found if w == "DESIGNED")
+    width = (27 + 165) - (seal_x / mm - 1.5)
+    height = designed_y / mm - seal_y / mm + 9
+    assert width >= 45 and height >= 45, (width, height)

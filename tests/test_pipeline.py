@@ -4,6 +4,7 @@ read back with pdftotext and compared with results.json."""
 from __future__ import annotations
 
 import json
+import re
 import shutil
 import subprocess
 from pathlib import Path
@@ -201,3 +202,30 @@ def test_templates_run_top_to_bottom_with_their_defaults(tmp_path):
         assert error is None, (name, error)
         expected = member_json(design_member(demo[record["mark"]], DataSet()))
         assert record["utilization"] == expected["utilization"] and record["checks"] == expected["checks"]
+
+
+HEADING = re.compile(r"^\s*\d+(\.\d+)?\s[A-Z][^\s].*$")
+
+
+def body_lines(page: str) -> list[str]:
+    """A page's lines between the title block and the foot (whose caution is the page's last text
+    naming the licensed professional engineer)."""
+    lines = [ln for ln in page.splitlines() if ln.strip()]
+    head = [i for i, ln in enumerate(lines[:20]) if "ENGINEER OF RECORD" in ln]
+    start = head[0] + 2 if head else next(i for i, ln in enumerate(lines) if re.search(r"\b\d+ of \d+\b", ln)) + 1
+    end = max(i for i, ln in enumerate(lines) if "licensed professional engineer" in ln)
+    return lines[start:end]
+
+
+def test_no_page_holds_only_a_verdict_or_ends_with_a_heading(demo_run):
+    # Common practice for calculation sheets: a heading keeps with its first lines, and the
+    # verdict stays with the checks it concludes.
+    report, results = demo_run
+    for member in results["members"]:
+        sheet = report.outdir / "sheets" / f"{member['mark']}.pdf"
+        pages = pdf_text(sheet).split("\f")[:-1]
+        for k, page in enumerate(pages, start=1):
+            lines = body_lines(page)
+            assert lines, (member["mark"], k)
+            assert not lines[0].strip().startswith(("PASSES", "DOES NOT PASS")), (member["mark"], k)
+            assert not HEADING.match(lines[-1]) or "  " in lines[-1].strip(), (member["mark"], k, lines[-1])

@@ -175,8 +175,10 @@ def _typeset(tex: str, work: Path, name: str) -> tuple[Path, str]:
     return done.pdf, aux.read_text(encoding="utf-8", errors="replace") if aux.exists() else ""
 
 
-def _stamps(project: Project, first: int, total: int, work: Path) -> Path:
-    """One page per sheet page, blank but for 'package page k of N' where the sheets leave room."""
+def _stamps(project: Project, first: int, total: int, work: Path, cache: Path | None) -> Path:
+    """One page per sheet page, blank but for 'package page k of N' where the sheets leave room.
+
+    The same pages typeset before are taken from `cache` (a review changes no page number)."""
     stamp = (r"{\footnotesize %s \quad rev %s \quad package page %d of %d}")
     pages = "".join(
         r"\begin{picture}(0,0)\put(548,-776){\makebox(0,0)[r]{" + stamp % (escape(project.fields["number"]),
@@ -184,7 +186,13 @@ def _stamps(project: Project, first: int, total: int, work: Path) -> Path:
     tex = ("\\documentclass[10pt]{article}\n\\usepackage[letterpaper,margin=0pt]{geometry}\n\\usepackage{fontspec}\n"
            "\\pagestyle{empty}\\setlength{\\parindent}{0pt}\\setlength{\\unitlength}{1bp}\n"
            "\\begin{document}\n" + pages + "\\end{document}\n")
-    return _typeset(tex, work, "stamps")[0]
+    cached = cache / f"{hashlib.sha256(tex.encode()).hexdigest()}.pagestamps.pdf" if cache is not None else None
+    if cached is not None and cached.exists():
+        return cached
+    pdf = _typeset(tex, work, "stamps")[0]
+    if cached is not None:
+        copy_atomic(pdf, cached)
+    return pdf
 
 
 FRONT_HINT = ".front-pages"
@@ -242,7 +250,7 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
             for src in sources:
                 package.pages.extend(src.pages)
             if sheets:
-                overlay = pikepdf.open(_stamps(project, front_pages + 1, total, work))
+                overlay = pikepdf.open(_stamps(project, front_pages + 1, total, work, cache))
                 sources.append(overlay)
                 for k, page in enumerate(package.pages[front_pages:]):
                     page.add_overlay(overlay.pages[k])
