@@ -12,10 +12,13 @@ from math import log10
 
 from .calc import calc
 from .data import DataSet, Datum
+from .errors import DataError
 
 LOAD_TYPES = ("D", "L", "S", "W", "E")
-EFFECTS = ("P", "M", "V", "w")
-EFFECT_UNITS = {"P": "N", "M": "N*mm", "V": "N", "w": "N/mm"}
+EFFECTS = ("P", "M", "V", "w")  # the schedule's columns P_*, M_*, V_*, w_*
+#: ... and F, the total load on a beam model (point, partial and carried loads included)
+ALL_EFFECTS = (*EFFECTS, "F")
+EFFECT_UNITS = {"P": "N", "M": "N*mm", "V": "N", "w": "N/mm", "F": "N"}
 #: Duration class of each load type (CSA O86 5.3.2; Table 5.1 examples).
 DURATION_CLASS = {"D": "long", "L": "standard", "S": "standard", "W": "short", "E": "short"}
 STANDARD_TERM = ("L", "S")
@@ -30,8 +33,8 @@ class Combination:
     factors: dict[str, float]
     principal: str
     note: str
-    datum: Datum
-
+    datum: Datum | None
+    refused: DataError | None = None  # a firm file's bad row for this combination
     @property
     def label(self) -> str:
         """E.g. ``1.25D + 1.5S + 1.0L``: dead load, the principal load, then companions."""
@@ -56,8 +59,12 @@ def combinations(data: DataSet) -> list[Combination]:
     file = data.files["nbc2020_uls_combinations.csv"]
     for row in data.combination_rows:
         factors = {t: float(row[t] or 0) for t in LOAD_TYPES}
-        datum = data._datum(file, row, f"NBC combination {row['id']}", "case")
-        out.append(Combination(row["id"], int(row["case"]), factors, row["principal"], row.get("note", ""), datum))
+        try:
+            datum, refused = data._datum(file, row, f"NBC combination {row['id']}", "case"), None
+        except DataError as exc:  # raised only if a member needs this combination
+            datum, refused = None, exc
+        out.append(Combination(row["id"], int(row["case"]), factors, row["principal"], row.get("note", ""), datum,
+                               refused))
     return out
 
 
@@ -66,16 +73,19 @@ class Effects:
     """Specified (unfactored) effects by effect and load type, in compute units."""
 
     values: dict[str, dict[str, float]]
+    #: a beam model whose spans or overhangs a load can lift: the 0.9D alternatives apply
+    reversible: bool = False
 
     def get(self, effect: str, load: str) -> float:
         return self.values.get(effect, {}).get(load, 0.0)
 
     def present(self) -> list[str]:
-        return [e for e in EFFECTS if any(self.get(e, t) for t in LOAD_TYPES)]
+        return [e for e in ALL_EFFECTS if any(self.get(e, t) for t in LOAD_TYPES)]
 
     def dead_resists(self) -> bool:
         """Some other load acts against the dead load (NBC 4.1.3.2.(5): use 0.9D)."""
-        return any(self.get(e, "D") * self.get(e, t) < 0 for e in EFFECTS for t in LOAD_TYPES[1:])
+        return self.reversible or any(self.get(e, "D") * self.get(e, t) < 0 for e in ALL_EFFECTS
+                                      for t in LOAD_TYPES[1:])
 
 
 @calc(units={"P_L": "N", "P_S": "N", "K_D": ""}, clause="O86:19 5.3.2.3")
@@ -154,18 +164,20 @@ def apply_combinations(effects: Effects, data: DataSet, used: list[Datum],
     seen: set[tuple] = set()
     resists = effects.dead_resists()
     for comb in combinations(data):
-        if comb.principal != "D" and not any(effects.get(e, comb.principal) for e in EFFECTS):
+        if comb.principal != "D" and not any(effects.get(e, comb.principal) for e in ALL_EFFECTS):
             continue
         if comb.reduced_dead and not resists:
             continue
-        factored = {e: sum(comb.factors[t] * effects.get(e, t) for t in LOAD_TYPES) for e in EFFECTS}
+        factored = {e: sum(comb.factors[t] * effects.get(e, t) for t in LOAD_TYPES) for e in ALL_EFFECTS}
         if all(abs(v) < 1e-9 for v in factored.values()):
             continue
         kd, basis, values, effect = load_duration(comb, effects, data, used, override)
-        key = tuple(round(factored[e], 6) for e in EFFECTS) + (round(kd, 6),)
+        key = tuple(round(factored[e], 6) for e in ALL_EFFECTS) + (round(kd, 6),)
         if key in seen:
             continue
         seen.add(key)
+        if comb.refused is not None:
+            raise comb.refused
         used.append(comb.datum)
         cases.append(LoadCase(comb, factored, kd, basis, values, effect))
     return cases

@@ -18,18 +18,19 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+from . import beamloads
 from .errors import JobError, ParameterError, ScheduleError
+from .membertypes import member_type, member_types
 from .materials import GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, sawn_table_grade
 from .sections import Section, parse_size, sawn_category
-from .units import UnitParseError, convert, parse_quantity
+from .units import UnitParseError, convert, example, parse_quantity
 
 LOAD_TYPES = ("D", "L", "S", "W", "E")
-MEMBER_TYPES = ("tension", "compression", "bending", "beam-column", "tension-bending")
 MARK = re.compile(r"^[A-Za-z0-9._-]+$")
 LOAD_NAMES = {"D": "dead", "L": "live", "S": "snow (with rain)", "W": "wind", "E": "earthquake"}
 LOAD_MEANING = {
     "P": "axial force (positive = the member's own sense: tension for tension members, compression otherwise)",
-    "w": "uniform line load on the simple span `length`",
+    "w": "uniform line load over the whole member",
     "M": "strong-axis moment, where a frame model gives it",
     "V": "shear, where a frame model gives it",
 }
@@ -45,7 +46,7 @@ class Column:
     """
 
     name: str
-    kind: str  # text | choice | quantity | number | count | size
+    kind: str  # text | choice | quantity | number | count | size | spans | points | parts | carries
     unit: str = ""  # unit a bare number is in (quantity)
     compute: str = ""  # unit the library works in (quantity)
     default: Any = None
@@ -61,7 +62,7 @@ def _columns() -> tuple[Column, ...]:
     cols = [
         Column("mark", "text", required=True,
                meaning="member mark, unique in the job"),
-        Column("type", "choice", required=True, choices=MEMBER_TYPES,
+        Column("type", "choice", required=True,  # choices: the member type registry
                meaning="member type: what it carries and which checks it runs (beam-column = bending + axial compression)"),
         Column("material", "choice", required=True, choices=("sawn", "glulam"),
                meaning="sawn lumber or timber, or glulam"),
@@ -79,8 +80,9 @@ def _columns() -> tuple[Column, ...]:
                meaning="treatment factor"),
         Column("K_H", "number", default=1.0, minimum=0, strict=True,
                meaning="system factor (load sharing), sawn lumber only"),
-        Column("length", "quantity", "m", "mm", required=True, minimum=0, strict=True,
-               meaning="member length (the span of a beam)"),
+        Column("length", "quantity", "m", "mm", minimum=0, strict=True,
+               meaning="member length (the span of a beam; with spans, the total, overhangs included)",
+               blank="required, except on a beam that gives spans"),
         Column("Ke", "number", default=1.0, minimum=0, strict=True,
                meaning="effective length factor, both axes"),
         Column("Lx", "quantity", "m", "mm", minimum=0,
@@ -100,6 +102,28 @@ def _columns() -> tuple[Column, ...]:
     for prefix, unit, compute in (("P", "kN", "N"), ("w", "kN/m", "N/mm"), ("M", "kN*m", "N*mm"), ("V", "kN", "N")):
         cols += [Column(f"{prefix}_{t}", "quantity", unit, compute, default=0.0,
                         meaning=f"specified {LOAD_MEANING[prefix]} from {LOAD_NAMES[t]} load") for t in LOAD_TYPES]
+    cols += [
+        Column("spans", "spans",
+               meaning="beam spans between support centres, separated by '+' (continuous over interior supports)",
+               blank="one span, the length"),
+        Column("overhang_left", "quantity", "m", "mm", default=0.0, minimum=0,
+               meaning="overhang beyond the left end support"),
+        Column("overhang_right", "quantity", "m", "mm", default=0.0, minimum=0,
+               meaning="overhang beyond the right end support"),
+        Column("trib", "quantity", "m", "mm", minimum=0, strict=True,
+               meaning="tributary width of the area loads q_*: w = q × trib", blank="none (q_* refused)"),
+    ]
+    cols += [Column(f"q_{t}", "quantity", "kPa", "MPa", default=0.0,
+                    meaning=f"specified area load from {LOAD_NAMES[t]} load, times trib") for t in LOAD_TYPES]
+    cols += [Column(f"point_{t}", "points", default=(),
+                    meaning=f"{LOAD_NAMES[t]} point loads value@position; … (kN at m from the left end)", blank="none")
+             for t in LOAD_TYPES]
+    cols += [Column(f"part_{t}", "parts", default=(),
+                    meaning=f"{LOAD_NAMES[t]} partial uniform loads value@from-to; … (kN/m over m)", blank="none")
+             for t in LOAD_TYPES]
+    cols += [Column("carries", "carries", default=(),
+                    meaning="reactions this member supports: MARK.Rn@position on a beam, MARK.Rn on a column; "
+                    "MARK alone = its largest reaction", blank="none")]
     cols += [
         Column("defl_L", "number", default=360.0, minimum=0, strict=True,
                meaning="live-load deflection limit as a span divisor (360 = L/360)"),
@@ -121,6 +145,20 @@ def _columns() -> tuple[Column, ...]:
 
 COLUMNS = {c.name: c for c in _columns()}
 REQUIRED = tuple(c.name for c in COLUMNS.values() if c.required)
+#: Loads and geometry only a bending member analysed as a beam takes.
+BEAM_ONLY = ("spans", "overhang_left", "overhang_right", "trib", *(f"{p}_{t}" for p in ("q", "point", "part")
+                                                                   for t in LOAD_TYPES))
+#: Set by the load path (reactions of the members this one carries), not by the schedule.
+DERIVED = ("carried",)
+
+
+_PARAMS = {
+    "spans": (lambda v: None if v is None else [round(x / 1000, 9) for x in v],
+              lambda raw: None if raw is None else tuple(float(x) * 1000 for x in raw)),
+    "points": (beamloads.points_params, beamloads.points_from_params),
+    "parts": (beamloads.parts_params, beamloads.parts_from_params),
+    "carries": (beamloads.carries_params, beamloads.carries_from_params),
+}
 
 
 @dataclass
@@ -153,14 +191,19 @@ class Member:
         """
         out: dict[str, Any] = {"mark": self.mark, "row": self.row}
         for name, value in self.values.items():
+            if name in DERIVED:
+                continue
             col = COLUMNS[name]
             if col.kind == "quantity" and value is not None:
                 out[name] = {"value": round(convert(value, col.compute, col.unit), 9), "unit": col.unit}
             elif col.kind == "size":
                 out[name] = value if value == "auto" else f"{value[0]:g}x{value[1]:g}"
+            elif col.kind in _PARAMS:
+                out[name] = _PARAMS[col.kind][0](value)
             else:
                 out[name] = value
         out["given"] = sorted(self.given)
+        out["carried"] = [c.params() for c in self.values.get("carried", ())]
         return out
 
     @classmethod
@@ -170,7 +213,7 @@ class Member:
         Refuses unknown or missing keys: papermill itself only warns about them,
         and a typo in a load name would otherwise silently use a default.
         """
-        expected = set(COLUMNS) | {"row", "given"}
+        expected = set(COLUMNS) | {"row", "given", *DERIVED}
         unknown, missing = set(params) - expected, expected - set(params)
         if unknown or missing:
             raise ParameterError(sorted(unknown), sorted(missing))
@@ -183,8 +226,13 @@ class Member:
                 values[name] = convert(float(raw["value"]), raw["unit"], col.compute)
             elif col.kind == "size":
                 values[name] = raw if raw == "auto" else parse_size(raw)
+            elif col.kind in _PARAMS:
+                values[name] = _PARAMS[col.kind][1](raw)
             else:
                 values[name] = raw
+        from .loadpath import CarriedLoad
+
+        values["carried"] = tuple(CarriedLoad.from_params(c) for c in params["carried"])
         return cls(params["mark"], int(params["row"]), values, frozenset(params.get("given", ())))
 
     @property
@@ -275,8 +323,14 @@ def _read_xlsx(path: Path) -> tuple[list[str], list[tuple[int, dict[str, str]]],
 
 
 # --------------------------------------------------------------------------- validating
-def load_schedule(path: Path) -> Schedule:
-    """Read and validate every row of the schedule at `path`."""
+def load_schedule(path: Path, data=None) -> Schedule:
+    """Read and validate every row of the schedule at `path`.
+
+    `data` is the job's DataSet (the built-in data unless given): species and
+    grades a firm data file adds are valid."""
+    from .data import default_data
+
+    data = data or default_data()
     header, rows, notes = read_rows(path)
     name = path.name
     warnings = list(notes)
@@ -294,7 +348,7 @@ def load_schedule(path: Path) -> Schedule:
     first_row: dict[str, int] = {}
     for number, cells in rows:
         mark = cells.get("mark", "")
-        errors, values, given = _validate_row(name, number, cells)
+        errors, values, given = _validate_row(name, number, cells, data)
         if mark and MARK.match(mark):
             if mark in first_row:
                 errors.insert(0, ScheduleError(name, number, "mark", mark,
@@ -311,7 +365,7 @@ def load_schedule(path: Path) -> Schedule:
     return Schedule(path, members, rejected, warnings)
 
 
-def _validate_row(file: str, row: int, cells: dict[str, str]) -> tuple[list[ScheduleError], dict[str, Any], set[str]]:
+def _validate_row(file: str, row: int, cells: dict[str, str], data) -> tuple[list[ScheduleError], dict[str, Any], set[str]]:
     errors: list[ScheduleError] = []
     values: dict[str, Any] = {}
     given: set[str] = set()
@@ -331,22 +385,29 @@ def _validate_row(file: str, row: int, cells: dict[str, str]) -> tuple[list[Sche
         except ValueError as exc:
             errors.append(ScheduleError(file, row, name, text, str(exc), _allowed(col)))
     if not errors:
-        errors += _cross_checks(file, row, values, given)
+        errors += _cross_checks(file, row, values, given, data)
     return errors, values, given
+
+
+def choices(col: Column) -> tuple[str, ...]:
+    """The allowed values of a choice column; `type` takes them from the member type registry."""
+    return tuple(member_types()) if col.name == "type" else col.choices
 
 
 def _allowed(col: Column) -> str:
     if col.name == "mark":
         return "letters, digits, '-', '_' and '.'"
     if col.kind == "choice":
-        return ", ".join(col.choices)
+        return ", ".join(choices(col))
     if col.kind == "size":
         return "b x d in mm, e.g. 38x235 or 130x228"
     if col.kind == "count":
         return "a whole number of at least 1"
+    if col.kind in beamloads.ALLOWED:
+        return beamloads.ALLOWED[col.kind]
     if col.kind == "quantity":
         bound = "greater than 0" if col.strict else "0 or more" if col.minimum is not None else "any sign"
-        return f"a number in {col.unit} ({bound}), or with its own unit, e.g. '12 ft'"
+        return f"a number in {col.unit} ({bound}), or with its own unit, e.g. {example(col.unit)}"
     if col.kind == "number":
         bound = "greater than 0" if col.strict else "0 or more"
         return f"a plain number ({bound})"
@@ -359,7 +420,7 @@ def _read_cell(col: Column, text: str) -> Any:
             raise ValueError("has characters a mark may not have")
         return text
     if col.kind == "choice":
-        folded = {c.casefold(): c for c in col.choices}
+        folded = {c.casefold(): c for c in choices(col)}
         if text.casefold() not in folded:
             raise ValueError("is not one of the allowed values")
         return folded[text.casefold()]
@@ -370,6 +431,8 @@ def _read_cell(col: Column, text: str) -> Any:
             return parse_size(text)
         except ValueError:
             raise ValueError("is not a size") from None
+    if col.kind in beamloads.READERS:
+        return beamloads.READERS[col.kind](text)
     if col.kind == "count":
         if not re.fullmatch(r"\d+", text) or int(text) < 1:
             raise ValueError("is not a whole number of at least 1")
@@ -400,11 +463,11 @@ def _check_bound(col: Column, value: float) -> None:
         raise ValueError("must not be negative" if col.minimum == 0 else f"must be at least {col.minimum:g}")
 
 
-def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> list[ScheduleError]:
+def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str], data) -> list[ScheduleError]:
     """Rules that involve more than one cell: species/grade/size against the material."""
     errs: list[ScheduleError] = []
     material = v["material"]
-    table = GLULAM_SPECIES if material == "glulam" else SAWN_SPECIES
+    table = {**(GLULAM_SPECIES if material == "glulam" else SAWN_SPECIES), **{s: s for s in data.species(material)}}
     species = canonical(v["species"], table)
     if species is None:
         names = sorted(set(table.values()))
@@ -413,9 +476,6 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> li
                                   f"{', '.join(names)} (or {', '.join(shorts)})"))
     else:
         v["species"] = species
-    from .data import default_data
-
-    data = default_data()
     if material == "glulam":
         grades = sorted(data.glulam_grades().get(species or "", ()))
         grade = canonical_grade(v["grade"], tuple(grades))
@@ -430,9 +490,10 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> li
         if v["plies"] != 1:
             errs.append(ScheduleError(file, row, "plies", str(v["plies"]), "applies to built-up sawn members only", "1 for glulam"))
     else:
-        grade = canonical_grade(v["grade"], SAWN_GRADES)
+        grades = SAWN_GRADES + tuple(sorted({g for g, _ in data.firm_sawn_grades} - set(SAWN_GRADES)))
+        grade = canonical_grade(v["grade"], grades)
         if grade is None:
-            errs.append(ScheduleError(file, row, "grade", v["grade"], "is not a sawn lumber grade", ", ".join(SAWN_GRADES)))
+            errs.append(ScheduleError(file, row, "grade", v["grade"], "is not a sawn lumber grade", ", ".join(grades)))
         else:
             v["grade"] = grade
     if v["size"] != "auto":
@@ -444,19 +505,38 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> li
         errs.append(ScheduleError(file, row, "net_area", f"{v['net_area']:g}",
                                   "leaves less than 75 % of the gross area; O86 does not allow designing on it",
                                   "a ratio from 0.75 to 1.0; reduce the holes or notches"))
+    beam_errors = beamloads.row_errors(file, row, v, given)
+    if beam_errors or v["length"] is None:
+        return errs + beam_errors
     for name in ("Lx", "Ly", "Lu"):
         if v[name] is not None and v[name] > v["length"] * (1 + 1e-9) and name in given:
             errs.append(ScheduleError(file, row, name, f"{v[name] / 1000:g} m", f"is longer than the member (length {v['length'] / 1000:g} m)",
                                       f"at most the length, {v['length'] / 1000:g} m"))
-    for name in ("Lx", "Ly"):
-        if v[name] is None:
-            v[name] = v["length"]
-    if v["type"] in ("beam-column", "tension-bending") and "Lu" not in given:
-        v["Lu"] = v["length"]  # a column's compression edge is not held unless the row says so
+    errs += _type_rules(file, row, v, given)
     if v["K_H"] is not None and v["K_H"] > 1.4:
         errs.append(ScheduleError(file, row, "K_H", f"{v['K_H']:g}", "exceeds the largest system factor of O86 "
                                   "(1.4, Case 2 for bending and shear)", "1.0 to 1.4"))
     return errs
+
+
+def _type_rules(file: str, row: int, v: dict[str, Any], given: set[str]) -> list[ScheduleError]:
+    """The member type's own rules: columns it requires or refuses, and what its blank lengths mean."""
+    kind = member_type(v["type"])
+    errs = [ScheduleError(file, row, name, "", f"is blank, but a {kind.name} member needs it", _allowed(COLUMNS[name]))
+            for name in kind.requires if name not in given]
+    errs += [ScheduleError(file, row, name, _shown(COLUMNS[name], v[name]), f"does not apply to a {kind.name} member",
+                           "leave it blank") for name in kind.refuses if name in given]
+    for name, blank in kind.blank.items():
+        if name not in given:
+            v[name] = v["length"] if blank == "length" else float(blank)
+    return errs
+
+
+def _shown(col: Column, value: Any) -> str:
+    """A value as the row gave it, in the column's entry unit."""
+    if col.kind == "quantity" and value is not None:
+        return f"{convert(value, col.compute, col.unit):g} {col.unit}"
+    return str(value)
 
 
 def _size_checks(file: str, row: int, v: dict[str, Any], data) -> list[ScheduleError]:
@@ -481,7 +561,7 @@ def _size_checks(file: str, row: int, v: dict[str, Any], data) -> list[ScheduleE
                               f"timbers {'/'.join(f'{t:g}' for t in timbers)} mm")]
     section = Section(b, d, v["plies"])
     category = sawn_category(section)
-    if sawn_table_grade(v["grade"], category) is None:
+    if sawn_table_grade(v["grade"], category, data.firm_sawn_grades) is None:
         return [ScheduleError(file, row, "grade", v["grade"], f"is not a grade of {category.replace('-', ' and ')} sizes",
                               "SS, No.1, No.2 for timbers; SS, No.1, No.2, No.1/No.2, No.3, Stud for dimension lumber")]
     return []

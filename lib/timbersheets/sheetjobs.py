@@ -23,6 +23,7 @@ import multiprocessing
 import os
 import shutil
 import time
+import traceback
 from concurrent.futures import ProcessPoolExecutor, as_completed
 from dataclasses import dataclass, field
 from functools import cached_property
@@ -30,10 +31,9 @@ from pathlib import Path
 from typing import Any
 
 from .batch import Body, Stamp, fixed_fields, stamp_sheets, stamped_fields, typeset_bodies
+from .constants import RESULT_MIME
 from .pipeline import execute, file_hash, library_fingerprint, templates_dir, to_html
-from .progress import Progress
 
-RESULT_MIME = "application/vnd.timbersheets.result+json"
 BATCH = 20  # members per xelatex run: the ~2 s of preamble and fonts spread over 20 sheets
 
 
@@ -95,6 +95,7 @@ class SheetOutcome:
     error: str | None = None  # notebook error (the notebook is kept, error marked)
     pages: int = 0  # pages of the PDF sheet (0: not known)
     record: dict[str, Any] | None = field(default=None, repr=False)
+    trace: str = field(default="", repr=False)  # traceback of an unexpected failure, for run.log
 
     def fail(self, problem: str) -> None:
         self.error = (self.error + "; " if self.error else "") + problem
@@ -165,6 +166,7 @@ def run_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, flo
             _take_notebook(task, outcome)
         except Exception as exc:  # a worker failure belongs to its member, not the batch  # noqa: BLE001
             outcome.fail(f"{type(exc).__name__}: {exc}")
+            outcome.trace = traceback.format_exc()
             continue
         if outcome.error:
             task.cached_notebook.unlink(missing_ok=True)  # never serve a failed run from the cache
@@ -195,7 +197,8 @@ def _safe_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, f
     try:
         return run_batch(tasks)
     except Exception as exc:  # noqa: BLE001 - a broken batch is its members' error, not the run's
-        return [SheetOutcome(t.mark, error=f"{type(exc).__name__}: {exc}") for t in tasks], {}
+        trace = traceback.format_exc()
+        return [SheetOutcome(t.mark, error=f"{type(exc).__name__}: {exc}", trace=trace) for t in tasks], {}
 
 
 def batches(tasks: list[SheetTask], jobs: int) -> list[list[SheetTask]]:
@@ -212,14 +215,20 @@ def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool,
     workers; stamp: in this process)."""
     jobs = max(1, jobs or os.cpu_count() or 1)
     times = times if times is not None else {}
-    bar = Progress(len(tasks), "sheets") if progress else None
+    from tqdm import tqdm
+
+    # disable=None: a bar only on a terminal, as with the other command-line tools
+    bar = tqdm(total=len(tasks), desc="sheets", unit="sheet", disable=None if progress else True, leave=False)
     outcomes: dict[str, SheetOutcome] = {}
+
+    def step(mark: str) -> None:
+        bar.set_postfix_str(mark, refresh=False)
+        bar.update()
 
     def collect(result: tuple[list[SheetOutcome], dict[str, float]]) -> None:
         for outcome in result[0]:
             outcomes[outcome.mark] = outcome
-            if bar:
-                bar.step(outcome.mark)
+            step(outcome.mark)
         for phase, seconds in result[1].items():
             times[phase] = times.get(phase, 0.0) + seconds
 
@@ -229,8 +238,7 @@ def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool,
             outcome = SheetOutcome(task.mark)
             _take_notebook(task, outcome)
             outcomes[task.mark] = outcome
-            if bar:
-                bar.step(task.mark)
+            step(task.mark)
     groups = batches(work, jobs)
     if jobs == 1 or len(groups) <= 1:
         for group in groups:
@@ -240,8 +248,7 @@ def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool,
         with ProcessPoolExecutor(max_workers=min(jobs, len(groups)), mp_context=context) as pool:
             for future in as_completed([pool.submit(_safe_batch, g) for g in groups]):
                 collect(future.result())
-    if bar:
-        bar.close()
+    bar.close()
     started = time.monotonic()
     _finish(tasks, outcomes)
     times["stamp"] = time.monotonic() - started

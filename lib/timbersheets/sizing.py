@@ -16,6 +16,7 @@ from .data import DataSet
 from .errors import DesignError, TimbersheetsError
 from .loads import apply_combinations
 from .materials import sawn_table_grade
+from .membertypes import member_type
 from .schedule import Member
 from .sections import Section, sawn_category
 
@@ -67,6 +68,7 @@ def catalogue(member: Member, data: DataSet) -> list[Section]:
     """Standard sections allowed for `member`, lightest first."""
     width, max_depth = member.values.get("width"), member.values.get("max_depth")
     fixed_plies = member.plies if "plies" in member.given else None
+    kind = member_type(member.type)
     sections: list[Section] = []
     if member.material == "glulam":
         lam, min_depth = data.lamination
@@ -81,9 +83,9 @@ def catalogue(member: Member, data: DataSet) -> list[Section]:
                 plies = (fixed_plies,) if fixed_plies in plies else ()
             for n in plies:
                 section = Section(float(b), float(d), n)
-                if sawn_table_grade(member.grade, sawn_category(section)) is None:
+                if sawn_table_grade(member.grade, sawn_category(section), data.firm_sawn_grades) is None:
                     continue
-                if member.type != "tension" and n > 1 and member.type != "bending":
+                if n > 1 and not kind.plies:
                     continue  # built-up columns are not designed by this version
                 sections.append(section)
     if width:

@@ -137,12 +137,21 @@ def _restraint_rule(m, L_u: float) -> tuple[str, Datum] | None:
     return None
 
 
-def lateral_stability(m, F_b: float, negative: bool, line_loads: bool) -> tuple[float, list[Step], str]:
-    """K_L under one combination, its steps, and the words that explain it."""
+def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
+                      segment: float | None = None) -> tuple[float, list[Step], str]:
+    """K_L under one combination, its steps, and the words that explain it.
+
+    `segment` (mm): the unsupported length of the compression edge a beam model gives for this moment.
+    """
     s, member = m.section, m.member
-    L_u = m.length if negative else member.Lu
+    L_u = segment if segment is not None else m.length if negative else member.Lu
     edge = ("Negative moment: the bottom edge is in compression and is taken as laterally unsupported over the "
             "span, L_u = L. " if negative else "")
+    if negative and segment is not None and member.values.get("restraint") == "both-edges":
+        edge = "Negative moment: the bottom edge is in compression. "
+    elif negative and segment is not None:
+        edge = ("Negative moment: the bottom edge is in compression and is taken as laterally unsupported "
+                f"between supports, L_u = {L_u / 1000:g} m. ")
     ratio = s.d / s.b
     if m.glulam and L_u == 0:
         return 1.0, [], "Lateral stability: compression edge held continuously (L_u = 0), so K_L = 1.0."
@@ -203,7 +212,7 @@ def check_bending(m, forces, line_loads: bool):
         f_b = m.f["f_b"]
     strength = bending_strength(f_b=f_b, K_D=case.K_D, K_H=m.K_H, K_Sb=m.K_S["K_Sb"], K_T=m.K_T)
     F_b = strength["F_b"]
-    K_L, lateral_steps, words = lateral_stability(m, F_b, negative, line_loads)
+    K_L, lateral_steps, words = lateral_stability(m, F_b, negative, line_loads, getattr(forces, "L_u", None))
     steps: list[Step] = []
     if "moment" in forces.steps:
         steps.append(Step(*forces.steps["moment"], "Factored moment at midspan"))
