@@ -223,6 +223,7 @@ def scenarios(root: Path, lib: Path, members: int) -> tuple[list[tuple[str, floa
     def step(name: str, rev: str, before: float = 0.0) -> None:
         took, peak = timed(run, lib)
         rows.append((name, before + took, peak, phase_line(out, rev)))
+        print(f"  ... {lib.parent.name}: {name} {before + took:.1f} s", file=sys.stderr, flush=True)
 
     step("cold package", "A")
     step("warm rerun", "A")
