@@ -47,8 +47,9 @@ def test_sheet_shows_title_block_equations_and_numbers(demo_run):
     report, results = demo_run
     member = next(m for m in results["members"] if m["mark"] == "C-1")
     text = pdf_text(report.outdir / "sheets" / "C-1.pdf")
+    total = len(PdfReader(str(report.outdir / "sheets" / "C-1.pdf")).pages)
     for field in ("Kestrel Cove Community", "2026-118", "Kestrel Cove, BC", "A. Okafor, P.Eng.", "2026-12-01", "SEAL",
-                  "not checked", "1 of 4"):
+                  "not checked", f"1 of {total}", f"{total} of {total}"):
         assert field in text, field
     gov = member["governing"]
     governing = next(c for c in member["checks"] if c["combination"] == gov["combination"])
@@ -158,7 +159,9 @@ def test_a_failing_template_affects_only_its_member(tmp_path, monkeypatch):
     for mark in ("OK-1", "OK-2"):  # typeset in the same run as the failed sheet, and whole
         text = pdf_text(report.outdir / "sheets" / f"{mark}.pdf")
         assert "INCOMPLETE" not in text and "PASSES" in text and mark in text
-    assert "NOT DESIGNED" in pdf_text(report.outdir / "package.pdf")
+    # the index row of BAD-1 (its verdict cell may wrap "NOT / DESIGNED" over two lines)
+    assert re.search(r"BAD-1\b.*\bNOT\b[^\n]*\n[^\n]*\bDESIGNED\b|BAD-1\b.*NOT DESIGNED",
+                     pdf_text(report.outdir / "package.pdf"))
 
 
 def test_unknown_or_missing_parameters_are_refused(tmp_path):
