@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import csv
 import io
+import shutil
 from pathlib import Path
 
 import pytest
@@ -19,6 +20,20 @@ DEMO = REPO / "calcsheets" / "kestrel-cove-boathouse"
 @pytest.fixture(scope="session")
 def data() -> DataSet:
     return DataSet()
+
+
+@pytest.fixture(scope="session")
+def demo_run(tmp_path_factory):
+    """One full run of the demo job (notebooks, sheets, package), shared by the pipeline tests."""
+    import json
+
+    from timbersheets.runner import RunOptions, run_job
+
+    root = tmp_path_factory.mktemp("demo")
+    job = root / "kestrel-cove-boathouse"
+    shutil.copytree(DEMO, job)
+    report = run_job(job, RunOptions(out=root / "out", progress=False))
+    return report, json.loads((report.outdir / "results.json").read_text())
 
 
 def write_schedule(folder: Path, rows: list[dict[str, str]], name: str = "schedule.csv") -> Path:

@@ -151,3 +151,19 @@ def test_one_member_analysis_is_cached_for_sizing():
     BeamModel(g, {"D": loads})
     BeamModel(g, {"D": loads})
     assert region_responses.cache_info().hits == 1
+
+
+def test_three_equal_spans_live_load_patterns():
+    # Three equal spans, live load placed span by span (the coefficient tables for continuous beams of equal
+    # spans, e.g. the influence-coefficient tables reproduced in structural-analysis textbooks; coefficients
+    # from memory, rechecked by the three-moment equation): largest +M in an end span 0.101 wL² with the two end
+    # spans loaded, in the centre span 0.075 wL² with it alone loaded, largest -M at an interior support
+    # -0.117 wL² with the two spans beside it loaded.
+    model = BeamModel(Geometry((L, L, L)), {"L": (("udl", W, 0.0, 3 * L),)})
+    ts = strength_targets(model, {"L": 1.0}, 0.0)
+    end, centre = pick(ts, "M+", "span 1"), pick(ts, "M+", "span 2")
+    assert end.value == pytest.approx(0.101 * W * L**2, rel=0.01) and end.arrangement == "L on span 1, span 3"
+    assert close(centre.value, 0.075 * W * L**2) and centre.arrangement == "L on span 2"
+    support = pick(ts, "M-", "span 1")
+    assert support.value == pytest.approx(-0.1167 * W * L**2, rel=0.005)
+    assert support.arrangement == "L on span 1, span 2"

@@ -77,10 +77,20 @@ def test_overhang_tip_deflection_limit_is_twice_its_length(tmp_path, data):
 BAD = [
     ("point-outside", {"mark": "B-1", **JOIST, "length": "3.6", "point_L": "5@4.0"}, "point_L", "beyond"),
     ("negative-span", {"mark": "B-1", **JOIST, "spans": "3.6+-2"}, "spans", "greater than 0"),
-    ("spans-on-a-column", {"mark": "B-1", **POST, "P_D": "10", "spans": "3+3"}, "spans", "bending members only"),
+    ("spans-on-a-column", {"mark": "B-1", **POST, "P_D": "10", "spans": "3+3"}, "spans", "does not apply to a compression member"),
     ("carries-missing", {"mark": "B-1", **POST, "P_D": "10", "carries": "RB-9.R1"}, "carries", "'RB-9'"),
     ("area-load-without-trib", {"mark": "B-1", **JOIST, "length": "3.6", "q_L": "1.9"}, "q_L", "tributary"),
     ("part-backwards", {"mark": "B-1", **JOIST, "length": "3.6", "part_L": "2@3-1"}, "part_L", "larger end"),
+    ("point-without-position", {"mark": "B-1", **JOIST, "length": "3.6", "point_D": "5"}, "point_D",
+     "value@position"),
+    ("point-bad-unit", {"mark": "B-1", **JOIST, "length": "3.6", "point_D": "5 kN@2 kPa"}, "point_D", "not a length"),
+    ("length-disagrees", {"mark": "B-1", **JOIST, "length": "7", "spans": "3.6+3.6"}, "length", "7.2 m"),
+    ("carries-position-on-column", {"mark": "B-1", **POST, "P_D": "10", "carries": "OK-1.R1@2"}, "carries",
+     "axial force"),
+    ("carries-beam-without-position", {"mark": "B-1", **JOIST, "length": "3.6", "carries": "OK-1.R1"}, "carries",
+     "position"),
+    ("carries-no-such-support", {"mark": "B-1", **POST, "P_D": "10", "carries": "OK-1.R3"}, "carries",
+     "OK-1 has 2 support(s)"),
 ]
 
 
@@ -175,3 +185,62 @@ def test_review_turns_stale_when_carried_loads_change(tmp_path):
     doc = json.loads((tmp_path / "out" / "rev-B" / "results.json").read_text())
     review = {m["mark"]: m["review"]["status"] for m in doc["members"]}
     assert review["G-1"] == "stale"
+
+
+def test_what_if_scales_point_loads_and_follows_the_path(tmp_path):
+    from timbersheets.whatif import what_if
+
+    rows = [*CHAIN, {"mark": "H-1", **JOIST, "plies": "2", "length": "2.4", "w_D": "0.5", "point_S": "6@1.2"}]
+    job = write_job(tmp_path / "job", rows)
+    out = {w.mark: w for w in what_if(job, {"S": 2.0})}
+    # hand calculation: with S doubled, C-1 takes G-1.R1 = D 4.68, S 9.0 kN: 1.25 × 4.68 + 1.5 × 9.0 = 19.35 kN
+    assert out["C-1"].after.governing.demand == pytest.approx(19.35, rel=1e-3)
+    # H-1: M under the point at midspan, PL/4: S part 1.5 × 12 × 2.4 / 4 = 10.8 kN·m, D 1.25 × 0.5 × 2.4² / 8 = 0.45
+    assert out["H-1"].after.governing_by_check()["bending"].demand == pytest.approx(11.25, rel=1e-3)
+
+
+def test_review_command_accepts_a_member_that_carries_others(tmp_path):
+    # the review ties to the inputs as the run hashed them, carried reactions included
+    from timbersheets.cli import main
+
+    job = write_job(tmp_path / "job", CHAIN)
+    run_job(job, out=tmp_path / "out", sheets=False)
+    code = main(["review", str(job), "--mark", "G-1", "--by", "RD", "--verdict", "ok", "--out", str(tmp_path / "out")])
+    assert code == 0
+    assert "G-1,RD" in (job / "review.csv").read_text()
+
+
+def test_purlins_hold_the_top_edge_only(tmp_path, data):
+    # common practice: purlins or decking on top hold the compression edge of positive moment; under the negative
+    # moment over a support the bottom edge is in compression and K_L is computed from its unsupported length
+    rows = [{"mark": "B-1", **JOIST, "size": "38x184", "spans": "3.0", "overhang_right": "1.0", "Lu": "0.6",
+             "restraint": "purlins", "w_D": "0.5", "w_S": "1.5"}]
+    d = designs(tmp_path, rows, data)["B-1"]
+    bending = [c for c in d.checks if c.check == "bending"]
+    positive = next(c for c in bending if c.demand > 0)
+    negative = next(c for c in bending if c.demand < 0)
+    assert positive.factors["K_L"] == 1.0 and "C_B" not in positive.factors
+    # bottom edge unsupported between supports and to the tip: over the support, the longer of span and overhang
+    assert "C_B" in negative.factors and negative.factors["L_u"] == 3000.0  # the longer side of the support
+
+
+def test_package_change_list_names_the_cause():
+    # the package's "changes since" table carries the same cause as the diff
+    from timbersheets.package import change_rows
+    from timbersheets.revisions import MemberChange
+
+    change = MemberChange("G-1", "changed", inputs=[("carried", "RB-1.R2: S 9 kN", "RB-1.R2: S 10.8 kN")],
+                          because=["RB-1"])
+    rows = change_rows([change])
+    assert rows[0]["what"] == "because" and rows[0]["new"] == "RB-1 changed" and rows[1]["item"] == "carried"
+
+
+def test_overhang_with_length_equals_spans_with_overhang(tmp_path, data):
+    # the schedule contract: length is the whole member, overhangs included; span = 5.5 - 1.5 = 4.0 m
+    base = {**GLULAM, "size": "130x304", "Lu": "4", "w_D": "2", "w_S": "4"}
+    rows = [{"mark": "A-1", **base, "length": "5.5", "overhang_right": "1.5"},
+            {"mark": "A-2", **base, "spans": "4.0", "overhang_right": "1.5"}]
+    d = designs(tmp_path, rows, data)
+    assert d["A-1"].member.values["spans"] == (4000.0,)
+    a, b = d["A-1"].governing, d["A-2"].governing
+    assert (a.check, a.combination, a.demand) == (b.check, b.combination, b.demand)

@@ -7,6 +7,7 @@ import pytest
 
 from conftest import write_job
 from test_load_path import CHAIN
+from test_pipeline import pdf_text
 from timbersheets.runner import run_job
 
 pytestmark = pytest.mark.pipeline
@@ -22,4 +23,7 @@ def test_changing_a_roof_beam_reexecutes_what_carries_it(tmp_path):
     write_job(tmp_path / "job", changed)
     second = run_job(job, out=tmp_path / "out", jobs=1, progress=False)
     assert sorted(second.executed) == ["C-1", "G-1", "RB-1"]
-    assert (tmp_path / "out" / "rev-A" / "sheets" / "G-1.pdf").stat().st_size > 0
+    text = " ".join(pdf_text(tmp_path / "out" / "rev-A" / "sheets" / "G-1.pdf").split())
+    # the girder's sheet names the analysis package and the carried reaction with its source and new value:
+    # RB-1.R2 under S = 3.6 kN/m × 6 m / 2 = 10.8 kN (hand calculation)
+    assert "PyCBA" in text and "RB-1.R2: reaction of RB-1, support 2" in text and "10.8" in text

@@ -18,7 +18,8 @@ def test_kd_permanent_formula(ratio, expected):
 
 
 def test_table_has_the_nbc_cases(data):
-    # NBC 2020 Table 4.1.3.2.-A (reference notes §5.1): principal factors 1.4D, 1.5L, 1.5S, 1.4W, 1.0E
+    # NBC 2015 Table 4.1.3.2.-A as read in S1 and S9 (reference notes §5.1): principal factors 1.4D, 1.5L,
+    # 1.5S, 1.4W, 1.0E. That NBC 2020 keeps these cases is memory, unverified (the data rows say so).
     labels = {c.label for c in combinations(data)}
     for expected in ("1.4D", "1.25D + 1.5L", "1.25D + 1.5L + 1.0S", "1.25D + 1.5L + 0.4W",
                      "1.25D + 1.5S + 1.0L", "1.25D + 1.4W + 0.5L", "1.25D + 1.4W + 0.5S",
@@ -48,7 +49,8 @@ def test_dead_dominant_reduces_kd(data):
 
 
 def test_wind_is_short_term_and_reduced_dead_only_when_it_resists(data):
-    # O86 Table 5.1: wind principal → short term, K_D = 1.15. NBC 4.1.3.2.(5): 0.9D where D resists.
+    # O86:19 Table 5.1 (O86-14 Table 5.3.2.2): wind principal → short term, K_D = 1.15.
+    # NBC Sentence 4.1.3.2.(5) (S9): 0.9D where the dead load resists.
     same_sign = apply_combinations(effects(D=5, W=10), data, [])
     assert all(not c.combination.reduced_dead for c in same_sign)
     wind = next(c for c in same_sign if c.label == "1.25D + 1.4W")

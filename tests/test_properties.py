@@ -61,7 +61,8 @@ def test_tension_utilization_scales_linearly_with_load(tmp_path_factory, data, l
     tmp = tmp_path_factory.mktemp("lin")
     one = design_row(tmp, data, type="tension", P_D=f"{load}", P_L=f"{2 * load}")
     many = design_row(tmp, data, type="tension", P_D=f"{load * factor}", P_L=f"{2 * load * factor}")
-    for a, b in zip(one.checks, many.checks):
+    assert one.checks and len(one.checks) == len(many.checks)
+    for a, b in zip(one.checks, many.checks, strict=True):
         assert b.utilization == pytest.approx(a.utilization * factor, rel=1e-9)
 
 
@@ -75,5 +76,6 @@ def test_si_and_imperial_inputs_agree(tmp_path_factory, data, length_ft, load_ki
     si = design_row(tmp, data, size="140x140", grade="No.2", length=f"{length_ft * 0.3048}", P_D=f"{load_kip * 4.4482216152605}",
                     Ly="")
     assert imperial.status == si.status
-    for a, b in zip(imperial.checks, si.checks):
+    assert imperial.checks
+    for a, b in zip(imperial.checks, si.checks, strict=True):
         assert math.isclose(a.utilization, b.utilization, rel_tol=1e-9)

@@ -15,6 +15,7 @@ import pytest
 
 import timbersheets
 from timbersheets.calc import Calc
+from timbersheets.checks import Step
 
 
 def all_calcs() -> list[Calc]:
@@ -48,17 +49,26 @@ def test_calcs_were_found():
     assert {"sawn_tension", "glulam_tension", "sawn_compression_x", "glulam_compression_y", "kd_permanent"} <= names
 
 
+def rendered_targets(latex: str) -> list[str]:
+    """The left-hand sides of every aligned equation block in `latex`, in order."""
+    starts = []
+    for block in re.findall(r"\\begin\{aligned\}(.*?)\\end\{aligned\}", latex, re.S):
+        for line in block.split(r"\\"):
+            if "&=" in line and not line.strip().startswith("&="):
+                starts.append(line.split("&=")[0].strip())
+    return starts
+
+
 @pytest.mark.parametrize("c", CALCS, ids=[c.name for c in CALCS])
 def test_every_assignment_is_rendered(c):
     tree = ast.parse(inspect.getsource(c.func).lstrip())
     assigned = [n.targets[0].id for n in ast.walk(tree) if isinstance(n, ast.Assign)]
     assert assigned, "a calc with no equations"
     values = c(**sample_inputs(c))
-    latex = c.latex(values)
-    body = latex.replace("$$", "").replace(r"\begin{aligned}", "").replace(r"\end{aligned}", "")
-    lines = [ln.strip() for ln in body.split(r"\\") if "&=" in ln]
-    starts = [ln.split("&=")[0].strip() for ln in lines if not ln.startswith("&=")]
-    assert starts == [latex_symbol(n) for n in assigned], latex
+    # the path a sheet's checks print (one display block per equation), and the one-block path
+    # the K_D derivation prints
+    for latex in (Step(c, values).latex(), c.latex(values)):
+        assert rendered_targets(latex) == [latex_symbol(n) for n in assigned], latex
 
 
 @pytest.mark.parametrize("c", CALCS, ids=[c.name for c in CALCS])

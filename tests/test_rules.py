@@ -32,8 +32,11 @@ def test_the_rule_cited_is_the_restraint_provided(tmp_path, data):
     text += " ".join(str(v) for v in d.checks[0].factors)
     from timbersheets.sheets import Sheet
 
-    block = Sheet(d, data, {"nbc": "2020", "o86": "2019"}).checks_section().latex
-    assert "6.5" in block and "decking" in block  # d/b = 4.84 under the decking limit, not 'purlins'
+    block = Sheet(d, data, {"nbc": "2020", "o86": "2019"}).checks_section().markdown.replace("\\", "")
+    # d/b = 184/38 = 4.84, under the 6.5 limit of the decking rule (notes §4.3, memory), not the purlins rule
+    sentence = next(s for s in block.split(";") if "d/b = 4.84" in s)
+    assert "≤ 6.5, the limit with compression edge held in line by direct connection of decking" in sentence
+    assert "purlins" not in sentence
 
 
 def test_axial_resistance_takes_at_most_the_tabled_system_factor(tmp_path, data):
@@ -81,3 +84,14 @@ def test_deflection_has_no_load_duration_factor(tmp_path, data):
     doc = member_json(d)
     assert all(c["K_D"] is None for c in doc["checks"] if c["check"].startswith("deflection"))
     assert all(c["K_D"] is not None for c in doc["checks"] if not c["check"].startswith("deflection"))
+
+
+def test_a_beam_with_wind_says_its_wind_deflection_is_not_checked(tmp_path, data):
+    # Conservative reading: the SLS combinations here are gravity loads only, so a roof purlin with wind
+    # uplift has no wind deflection check, and its sheet must say so (as a beam-column's does).
+    d = design_row(tmp_path, data, **dict(PURLIN, Lu="0", w_W="-0.55"))
+    assert d.status != "error", d.errors
+    assert {c.check for c in d.checks} >= {"deflection-live", "deflection-total"}
+    assert any("deflection under the W line load is not checked" in w for w in d.warnings)
+    quiet = design_row(tmp_path, data, **dict(PURLIN, Lu="0"))
+    assert not any("line load is not checked" in w for w in quiet.warnings)

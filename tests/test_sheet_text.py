@@ -2,11 +2,13 @@
 
 from __future__ import annotations
 
+import csv
+import math
 import re
 
 import pytest
 
-from conftest import DEMO
+from conftest import DEMO, write_schedule
 from timbersheets.data import DataSet
 from timbersheets.design import design_member
 from timbersheets.schedule import load_schedule
@@ -32,12 +34,14 @@ def prose(latex: str) -> str:
     return latex.replace("\\_", "_")
 
 
-@pytest.mark.parametrize("mark", ["G-1", "T-1", "RB-2", "C-1"])
-def test_cautions_typeset_symbols_and_name_no_data_identifiers(demo_members, mark):
-    caution = sheet_of(demo_members[mark]).cautions().latex
-    words = prose(caution)
-    assert not re.search(r"\b[A-Za-z][A-Za-z0-9]*_[A-Za-z0-9]", words), re.findall(r"\S*_\S*", words)
-    assert "$K_{S" in caution  # the service factors are listed, as symbols
+def test_cautions_typeset_symbols_and_name_no_data_identifiers(demo_members):
+    typeset = 0
+    for mark, member in demo_members.items():  # the unverified values and the notes of every demo member
+        caution = sheet_of(member).cautions().latex
+        words = prose(caution)
+        assert not re.search(r"\b[A-Za-z][A-Za-z0-9]*_[A-Za-z0-9]", words), (mark, re.findall(r"\S*_\S*", words))
+        typeset += "$K_{S" in caution  # unverified service factors are listed, as symbols
+    assert typeset >= 10
 
 
 def test_glulam_factor_names_are_words(demo_members):
@@ -58,3 +62,87 @@ def test_cautions_name_combinations_as_the_combination_table_numbers_them(demo_m
     body = table[table.index("\\midrule"):table.index("\\bottomrule")]  # the first table
     first_column = [line.split(" & ")[0] for line in body.splitlines() if " & " in line]
     assert first_column == numbers  # the same labels, in the same order (NBC Table 4.1.3.2.-A cases)
+
+
+def demo_variant(tmp_path, mark: str, **cells: str):
+    """A demo member with some cells rewritten, through the real schedule reader."""
+    rows = list(csv.DictReader((DEMO / "schedule.csv").open(encoding="utf-8")))
+    row = {**next(r for r in rows if r["mark"] == mark), **cells}
+    schedule = load_schedule(write_schedule(tmp_path, [row]))
+    assert not schedule.rejected, [str(e) for r in schedule.rejected for e in r.errors]
+    return schedule.members[0]
+
+
+def whole_sheet(sheet: Sheet) -> str:
+    return "".join(getattr(sheet, name)().latex for name in (
+        "member_section", "loads_section", "combinations_section", "factors_section", "checks_section",
+        "summary_section", "cautions"))
+
+
+def test_dimensions_show_as_used_so_products_reproduce(tmp_path):
+    # A 6 in (152.4 mm) deep glulam: hand calculation 175 mm x 152.4 mm = 26670 mm², which a
+    # checker can only reproduce if d is printed as 152.4, not 152.
+    member = demo_variant(tmp_path, "C-1", size="175x152.4")
+    size_row = sheet_of(member).member_section().latex
+    b, d, area = (float(v) for v in re.search(
+        r"\$b = ([\d.]+)\\ \\mathrm\{mm\}\$, \$d = ([\d.]+)\\ \\mathrm\{mm\}\$, \$A_g = ([\d.]+)", size_row).groups())
+    assert (b, d) == (175, 152.4)
+    assert b * d == pytest.approx(area, abs=0.5)
+
+
+def test_imperial_entry_is_shown_as_entered_beside_its_si_value(tmp_path):
+    # 316 in x 25.4 mm/in = 8026.4 mm (exact conversion, common practice)
+    member = demo_variant(tmp_path, "C-1", length="316 inch", Ly="")
+    table = sheet_of(member).member_section().latex
+    assert "As entered & \\texttt{length} 316 inch $= 8026.4\\ \\mathrm{mm}$" in table
+    assert "$L = 8026.4\\ \\mathrm{mm}$" in table
+
+
+@pytest.mark.parametrize("mark", ["J-1", "H-1"])
+def test_no_raw_floats_on_the_sheet(tmp_path, mark):
+    # 1.3335 ft x 304.8 mm/ft = 406.45 mm: printed to 0.1 mm (0.4065 m), never as 0.406451.
+    text = whole_sheet(sheet_of(demo_variant(tmp_path, mark, Lu="1.3335 ft", restraint="")))
+    assert "0.4065 m" in text
+    assert not re.findall(r"\d+\.\d{5,}", text)
+
+
+def test_prefer_square_still_lists_runners_up(tmp_path):
+    # C-5 (Spruce-Pine 12c-E glulam column, prefer = square) at 10 kN dead: before, the squarest
+    # section within 10 % of the lightest left no runner-up; the lighter sections passed over are
+    # alternatives a checker wants to see (common practice: show the options the choice rejected).
+    design = design_member(demo_variant(tmp_path, "C-5", P_D="10"), DataSet())
+    sizing = design.sizing
+    assert sizing.chosen is not None and len(sizing.runners_up) >= 3
+    assert all(c.passes for c in sizing.runners_up)
+    square = lambda c: abs(math.log(c.section.d / c.section.b))  # noqa: E731
+    lightest = min([sizing.chosen, *sizing.runners_up], key=lambda c: c.section.A)
+    band = [c for c in [sizing.chosen, *sizing.runners_up] if c.section.A <= 1.1 * lightest.section.A]
+    assert square(sizing.chosen) == min(square(c) for c in band)
+    table = Sheet(design, DataSet(), CODES).sizing_section().latex
+    assert table.count("runner-up") + table.count("passed over") == len(sizing.runners_up)
+
+
+def test_deflection_limits_only_where_deflection_is_checked(demo_members):
+    # B-1 takes its forces from the frame model and S-2 carries only wind across it: no SLS
+    # combination (gravity line loads) applies, so no limit may be listed as if it were checked.
+    for mark in ("B-1", "S-2"):
+        sheet = sheet_of(demo_members[mark])
+        assert not [c for c in sheet.design.checks if c.check.startswith("deflection")]
+        assert "$L/" not in sheet.member_section().latex
+    assert "$L/360$ under live load" in sheet_of(demo_members["J-1"]).member_section().latex
+
+
+def test_glulam_column_size_factor_shown_once_with_its_volume(demo_members):
+    # C-1, 175x228 glulam, L = 4.2 m: hand calculation Z = 0.175 x 0.228 x 4.2 = 0.168 m³,
+    # K_Zcg = 0.68 Z^-0.13 = 0.858 (O86 7.5.8 form, reference notes §4.2).
+    checks = sheet_of(demo_members["C-1"]).checks_section().latex
+    gov = checks[:checks.index("\\begin{tabular")]  # the governing combination, in full
+    assert gov.count("K_{Zcg} &=") == 1 and gov.count("F_{c} &=") == 1
+    assert "Z &= b \\cdot d \\cdot L" in gov and "0.168\\ \\mathrm{m}^{3}" in gov
+    assert gov.index("Z &= b") < gov.index("K_{Zcg} &=")
+
+
+def test_a_column_is_not_said_to_be_held_against_rotation_at_bearings(demo_members):
+    for mark in ("S-2", "C-4", "TC-1"):
+        assert "rotation at the bearings" not in sheet_of(demo_members[mark]).member_section().latex
+    assert "against rotation at the bearings" in sheet_of(demo_members["J-1"]).member_section().latex

@@ -10,6 +10,10 @@ Two ways a schedule row loads a bending member:
   reported only when the row also gives line loads ``w_*`` (used for deflection
   of the simple span only).
 
+Beams beyond the simple span under uniform load (continuous spans, overhangs,
+point, partial and carried loads) are analysed as beam models instead
+(:mod:`beammodel`, :mod:`beampattern`, :mod:`beamdesign`).
+
 Compute units: N, mm, N/mm, N·mm, MPa.
 """
 

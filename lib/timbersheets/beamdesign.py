@@ -9,9 +9,9 @@ against span/n and of each overhang tip against 2 × overhang/n.
 
 Lateral stability: a positive moment puts the top edge in compression, held as
 the row's `Lu` says (at most the span); a negative moment puts the bottom edge
-in compression, taken as laterally unsupported between supports (the adjacent
-span; an overhang's own length), the member being held in position at every
-support. The effective length factor is that for "any other loading" (the
+in compression, taken as laterally unsupported between supports (over a
+support, the longer of the span or overhang beside it), unless the row gives
+`Lu_bottom`, the member being held in position at every support. The effective length factor is that for "any other loading" (the
 largest of the table): the model's loading is not the simple-span uniform case.
 """
 
@@ -21,10 +21,11 @@ from dataclasses import dataclass, field, replace
 from functools import lru_cache
 
 from .beammodel import Geometry
-from .beampattern import BeamModel, deflection_targets, strength_targets
+from .beampattern import BeamModel
 from .calc import calc
 from .errors import DesignError
 from .loads import LOAD_TYPES
+from .membertypes import member_type
 
 #: Deflection under specified loads (CSA O86:19 5.4.2; memory, unverified clause number).
 SLS_CLAUSE = "O86:19 5.4.2"
@@ -56,7 +57,7 @@ def loads_of(member) -> dict[str, tuple]:
 def is_model(member) -> bool:
     """True where the closed-form simple span under uniform load does not describe the beam."""
     v = member.values
-    if member.type != "bending":
+    if member_type(member.type).routine != "bending":
         return False
     return (len(v.get("spans") or ()) > 1 or bool(v.get("overhang_left")) or bool(v.get("overhang_right"))
             or any(v.get(f"{p}_{t}") for p in ("point", "part") for t in LOAD_TYPES) or bool(v.get("carried")))
@@ -126,7 +127,7 @@ def design_model(ctx, cases) -> list:
     model = model_of(m)
     out = {"bending": [], "shear": [], "bearing": []}
     for case in cases:
-        for t in strength_targets(model, case.combination.factors, ctx.section.d):
+        for t in model.targets("strength", case.combination.factors, ctx.section.d):
             where = _where(t)
             if t.kind in ("M+", "M-"):
                 negative = t.kind == "M-"
@@ -165,7 +166,7 @@ def model_deflections(ctx, model) -> list:
     for sc in service_cases_for(m, ctx.data, model.present()):
         n_lim = m.values["defl_L" if sc.check == "deflection-live" else "defl_total"]
         ctx.used += list(sc.datums)
-        for t in deflection_targets(model, sc.factors):
+        for t in model.targets("deflection", sc.factors):
             overhang = "overhang" in t.region
             L_d = 2 * t.length if overhang else t.length
             values = model_deflection(EI_Delta=abs(t.value), E=ctx.f["E"], K_SE=ctx.K_S["K_SE"], K_T=ctx.K_T,
@@ -184,6 +185,9 @@ def reactions_by_type(member) -> dict[int, dict[str, float]]:
     Dead, wind and earthquake on every region; live and snow at their largest
     downward reaction over the arrangements (for a simple span, the full load).
     """
+    if not is_model(member):  # simple span under uniform load: R = wL/2 at each end
+        half = {t: member.values[f"w_{t}"] * member.length / 2 for t in LOAD_TYPES if member.values[f"w_{t}"]}
+        return {1: dict(half), 2: dict(half)}
     model = model_of(member)
     out: dict[int, dict[str, float]] = {}
     for t in model.present():

@@ -150,21 +150,21 @@ READERS = {"spans": parse_spans, "points": parse_points, "parts": parse_parts, "
 def row_errors(file: str, row: int, v: dict, given: set[str]) -> list:
     """Cross-cell rules of the beam columns; sets v["length"] from `spans` when only spans are given."""
     from .errors import ScheduleError
-    from .schedule import BEAM_ONLY, LOAD_TYPES
+    from .membertypes import member_type
+    from .schedule import LOAD_TYPES
 
     def err(column, value, problem, allowed=""):
         return ScheduleError(file, row, column, value, problem, allowed)
 
-    beam_cols = [c for c in BEAM_ONLY if c in given]
-    if v["type"] != "bending" and beam_cols:
-        return [err(c, None, f"applies to bending members only (this row is a {v['type']} member)",
-                    "leave it blank; give axial loads P_* (and carries = MARK.Rn for reactions it takes)")
-                for c in beam_cols]
-    if v["type"] == "bending" and any(c.at is None for c in v["carries"]):
+    kind = member_type(v["type"])
+    beam = kind.routine == "bending"
+    if any(c in given for c in kind.refuses):
+        return []  # the member type's own rules report them
+    if beam and any(c.at is None for c in v["carries"]):
         bad = next(c for c in v["carries"] if c.at is None)
         return [err("carries", bad.label, "on a beam needs the position where the reaction lands",
                     "MARK.Rn@position, e.g. RB-1.R2@3.6")]
-    if v["type"] != "bending" and any(c.at is not None for c in v["carries"]):
+    if not beam and any(c.at is not None for c in v["carries"]):
         return [err("carries", next(c.label for c in v["carries"] if c.at is not None),
                     "gives a position, but a column or tension member takes the reaction as axial force",
                     "MARK.Rn or MARK, without @position")]

@@ -50,6 +50,15 @@ class BeamModel:
         self.responses = {t: region_responses(geometry, ls, marks) for t, ls in self.loads.items() if ls}
         any_type = next(iter(self.responses.values()), None)
         self.x = any_type[0].x if any_type else np.zeros(1)
+        self._targets: dict[tuple, list] = {}  # (what, factors, d) -> targets: a sizing search asks again and again
+
+    def targets(self, what: str, factors: dict[str, float], d: float = 0.0) -> list["Target"]:
+        """Cached :func:`strength_targets` ("strength") or :func:`deflection_targets` ("deflection")."""
+        key = (what, tuple(sorted(factors.items())), round(d, 6))
+        if key not in self._targets:
+            self._targets[key] = (strength_targets(self, factors, d) if what == "strength"
+                                  else deflection_targets(self, factors))
+        return self._targets[key]
 
     def present(self) -> list[str]:
         return [t for t in LOAD_TYPES if t in self.responses]
@@ -167,7 +176,9 @@ def strength_targets(model: BeamModel, factors: dict[str, float], d: float) -> l
         k = idx[int(np.argmin(mmin[idx]))]
         if mmin[k] < -EPS and round(float(x[k])) not in seen_negative:
             seen_negative.add(round(float(x[k])))
-            out.append(comb.target("M-", "M", k, -1, name, float(x[k]), length=b - a))
+            # over a support the bottom edge is in compression on both sides: the longer region sets L_u
+            beside = [bb - aa for _, aa, bb in g.regions if min(abs(aa - x[k]), abs(bb - x[k])) < EPS]
+            out.append(comb.target("M-", "M", k, -1, name, float(x[k]), length=max([b - a, *beside])))
     out += _shear_targets(comb, d)
     rmax, rmin = comb.envelope("R", +1), comb.envelope("R", -1)
     for j, s in enumerate(g.supports):

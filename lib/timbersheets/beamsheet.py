@@ -8,7 +8,7 @@ analysis functions the design used.
 from __future__ import annotations
 
 from .analysis import loading_mode, member_forces, service_cases
-from .beamdesign import is_model
+from .beamdesign import is_model, reactions_by_type
 from .calc import format_number, format_value
 from .errors import TimbersheetsError
 from .membertypes import member_type
@@ -17,8 +17,12 @@ from .tex import Cell, Table, escape
 from .units import to_display
 
 
-def member_rows(m, section) -> list[list[object]]:
-    """Rows of section 1 that describe the span, its supports and the limits."""
+def member_rows(m, section, checks: set[str] | None = None) -> list[list[object]]:
+    """Rows of section 1 that describe the span, its supports and the limits.
+
+    `checks` names the checks the design ran: deflection limits are listed only
+    for the deflection checks made (all scheduled limits when not known).
+    """
     try:
         frame = loading_mode(m) == "forces"
     except TimbersheetsError:
@@ -38,7 +42,9 @@ def member_rows(m, section) -> list[list[object]]:
     else:
         lateral = (f"compression edge laterally unsupported over $L_u = {format_value(m.Lu, 'mm')}$",
                    f"compression edge unsupported over Lu = {m.Lu:g} mm")
-    lateral_text = lateral[0] + "; ends held in position and against rotation at the bearings"
+    ends = ("; ends held in position and against rotation at the bearings" if member_type(m.type).axial is None
+            else "; ends held in position")  # a beam's bearings restrain twist; a column's ends are only held
+    lateral_text = lateral[0] + ends
     bearing = (Cell(f"$l_b = {format_value(m.bearing, 'mm')}$ at each end support",
                     f"l_b = {m.bearing:g} mm at each end support") if m.bearing is not None
                else "not given: no bearing check")
@@ -48,9 +54,7 @@ def member_rows(m, section) -> list[list[object]]:
         mode = ""
     loading = {"line": "uniform line loads on the span (the forces are computed below)",
                "forces": "moments and shears from a frame model, used as given"}.get(mode, "see section 5")
-    limits = Cell(f"$L/{format_number(m.defl_L, 'mm')}$ under live load, "
-                  f"$L/{format_number(m.defl_total, 'mm')}$ under total load",
-                  f"L/{m.defl_L:g} live, L/{m.defl_total:g} total")
+    limits = deflection_limits(m, checks)
     spans = [["Span", span]]
     if is_model(m):
         from .beammodel import library
@@ -59,11 +63,11 @@ def member_rows(m, section) -> list[list[object]]:
         spans = geometry_rows(m)
         if m.values.get("restraint") != "both-edges":
             lateral_text += ("; under negative moment the bottom edge is taken as laterally unsupported between "
-                             "supports (an overhang: its length)")
+                             "supports (over a support, the longer of the span or overhang beside it)")
         bearing = (Cell(f"$l_b = {format_value(m.bearing, 'mm')}$ at every support", f"l_b = {m.bearing:g} mm")
                    if m.bearing is not None else bearing)
         loading = f"beam model analysed with {escape(library())}, live and snow patterned (section 3)"
-        limits = Cell(f"span/{m.defl_L:g} live, span/{m.defl_total:g} "
+        limits = limits if isinstance(limits, str) else Cell(f"span/{m.defl_L:g} live, span/{m.defl_total:g} "
                       "total; at an overhang tip twice the overhang over the same divisor",
                       f"span/{m.defl_L:g} live, span/{m.defl_total:g} total; overhang tips 2 × overhang / n")
     return [
@@ -75,6 +79,17 @@ def member_rows(m, section) -> list[list[object]]:
         ["Net area", Cell(f"$A_n = {format_number(m.net_area)}\\,A_g = {format_value(section.A * m.net_area, 'mm**2')}$",
                           f"A_n = {m.net_area:g} A_g")],
     ]
+
+
+def deflection_limits(m, checks: set[str] | None) -> Cell | str:
+    """The limits of the deflection checks made; none when the member is not checked for deflection."""
+    limits = [(f"$L/{format_number(m.values[column], 'mm')}$ under {words} load", f"L/{m.values[column]:g} {words}")
+              for check, column, words in (("deflection-live", "defl_L", "live"),
+                                           ("deflection-total", "defl_total", "total"))
+              if checks is None or check in checks]
+    if not limits:
+        return "none checked: no SLS combination applies (they combine gravity line loads on the span only)"
+    return Cell(", ".join(latex for latex, _ in limits), ", ".join(text for _, text in limits))
 
 
 def forces_block(design) -> Block:
@@ -106,6 +121,11 @@ def forces_block(design) -> Block:
     if any(f.R_f < 0 for f in forces):
         out += para("A negative $Q_f$ is uplift at the supports: no bearing demand, but the connections must hold "
                     "the member down (not checked on this sheet).")
+    each = reactions_by_type(ctx.member)[1]
+    if each:
+        parts = ", ".join(f"{t} {format_number(to_display(v, 'N')[0], 'kN')}" for t, v in each.items())
+        out += para(escape(f"Specified reactions R1 = R2 = w L / 2 by load type: {parts} kN (what a member that "
+                           "carries this one takes)."))
     return out
 
 

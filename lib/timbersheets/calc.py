@@ -134,12 +134,18 @@ def unit_text(u: str) -> str:
 
 
 FORCE_UNITS = ("kN", "kN*m", "kN/m")
+#: Lengths to 0.1 mm at least, so that a dimension prints as used.
+LEAST_DECIMALS = {"mm": 1, "m": 4}
 
 
 def _decimals(value: float, unit: str, sig: int) -> int:
-    """Decimal places for `sig` significant figures; forces and moments to at least 0.1."""
+    """Decimal places for `sig` significant figures; forces and moments to 0.1 at least, lengths to 0.1 mm.
+
+    A length keeps its tenth so that a dimension shows as used: 152.4 mm (6 in), not 152 mm,
+    and 175 mm x 152.4 mm = 26670 mm² reproduces on a calculator.
+    """
     digits = sig - 1 - math.floor(math.log10(abs(value)))
-    return max(digits, 1) if unit in FORCE_UNITS else digits
+    return max(digits, LEAST_DECIMALS.get(unit, 1 if unit in FORCE_UNITS else digits))
 
 
 def round_sig(value: float, unit: str = "", sig: int = 3) -> float:
@@ -180,6 +186,11 @@ def format_number(value: float, unit: str = "", sig: int = 3) -> str:
     elif unit == "":
         text += ".0"
     return text
+
+
+def format_metres(mm: float) -> str:
+    """A length in mm as metres, to 0.1 mm, trailing zeros dropped (8026.65 mm → '8.0267')."""
+    return f"{mm / 1000:.4f}".rstrip("0").rstrip(".")
 
 
 def format_value(value: float, compute_unit: str, sig: int = 3) -> str:

@@ -7,20 +7,20 @@ of a :class:`Context`, the load cases and the record, returning check results.
 
 from __future__ import annotations
 
+import math
 import traceback
 from collections.abc import Callable
 from dataclasses import dataclass, field
 
-from .analysis import loading_mode, member_forces, service_cases
+from .analysis import loading_mode, member_forces
 from .beamdesign import design_model, geometry_of, is_model, total_loads
 from .checks import CheckResult
 from .checks.bearing import check_bearing
 from .checks.bending import check_bending
 from .checks.compression import check_compression
-from .checks.deflection import check_deflection
 from .checks.shear import check_shear
 from .checks.tension import check_tension
-from .combined import design_combined, refuse_reversal
+from .combined import deflections, design_combined, refuse_reversal
 from .data import DataSet, Datum, Recorded
 from .errors import DesignError, TimbersheetsError
 from .loads import EFFECTS, LOAD_TYPES, Effects, LoadCase, apply_combinations
@@ -103,7 +103,7 @@ def effects_of(member: Member) -> Effects:
     """Specified effects by type from the row's P_*, M_*, V_*, w_* columns, the axial loads a column carries
     from other members, and the total load F of a beam model."""
     values = {e: {t: member.values[f"{e}_{t}"] for t in LOAD_TYPES} for e in EFFECTS}
-    if member.type != "bending":
+    if member_type(member.type).axial is not None:
         for c in member.values.get("carried", ()):
             for t in LOAD_TYPES:
                 values["P"][t] += c.loads.get(t, 0.0)
@@ -166,7 +166,7 @@ def _bending(ctx: Context, cases: list[LoadCase], kind: MemberType) -> list[Chec
             strength["bearing"].append(bearing)
     out = [c for name in ("bending", "shear", "bearing") for c in strength[name]]
     if any(ctx.member.values[f"w_{t}"] for t in LOAD_TYPES):
-        out += [check_deflection(ctx, sc) for sc in service_cases(ctx.member, ctx.data)]
+        out += deflections(ctx)
     if not out:
         raise DesignError(ctx.mark, "carries no bending moment or shear under any combination")
     return out
@@ -228,7 +228,11 @@ class MemberDesign:
         if self.context is None or self.context.data is None:
             return []
         seen: dict[tuple[str, str, str], Datum] = {}
-        for used in self.data_used:
+        read: set[int] = set()
+        for used in self.data_used:  # the same Datum is recorded each time a check reads it
+            if id(used) in read:
+                continue
+            read.add(id(used))
             for d in self.context.data.value_datums(used):
                 seen.setdefault((d.data, d.key, d.column), d)
         return list(seen.values())
@@ -263,6 +267,7 @@ def design_member(member: Member, data: DataSet) -> MemberDesign:
         cases = apply_combinations(effects_of(member), data, ctx.used, member.K_D)
         outcome.context, outcome.cases = ctx, cases
         outcome.checks = design_function(kind)(ctx, cases)
+        refuse_non_finite(member, outcome.checks, ctx.used)
     except TimbersheetsError as exc:
         outcome.errors.append(str(exc))
     except Exception as exc:  # a defect must not stop the other members  # noqa: BLE001
@@ -273,6 +278,24 @@ def design_member(member: Member, data: DataSet) -> MemberDesign:
         outcome.data_used = list(outcome.context.used)
         outcome.warnings += [n for n in outcome.context.notes if n not in outcome.warnings]
     return outcome
+
+
+def refuse_non_finite(member: Member, checks: list[CheckResult], used: list[Datum]) -> None:
+    """A NaN or infinity anywhere in the results makes the member an error, naming its source.
+
+    Neither may reach a verdict: NaN compares false with every limit, so it would pass.
+    """
+    for c in checks:
+        numbers = {"demand": c.demand, "resistance": c.resistance, "utilization": c.utilization, **c.factors}
+        bad = [name for name, value in numbers.items() if not math.isfinite(value)]
+        if not bad:
+            continue
+        suspects = [f"{d.label} = {d.value} ({d.file})" for d in used if not math.isfinite(d.value)]
+        suspects += [f"{k} = {v}" for k, v in member.values.items()
+                     if isinstance(v, float) and not math.isfinite(v)]
+        cause = f"from {'; '.join(dict.fromkeys(suspects))}" if suspects else "from the member's inputs together"
+        raise DesignError(member.mark, f"{c.check} under {c.combination}: {', '.join(bad)} is not a finite number "
+                          f"({cause})", fix="Check the inputs and the data values named")
 
 
 def _sized_section(member: Member, data: DataSet, kind: MemberType, outcome: MemberDesign) -> Section:
@@ -296,9 +319,10 @@ def rejected(entry: RowError) -> MemberDesign:
     return MemberDesign(entry.mark, entry.row, None, errors=[str(e) for e in entry.errors], warnings=entry.warnings)
 
 
-def design_all(entries: list[Member | RowError], data: DataSet) -> list[MemberDesign]:
-    """Every entry designed, each member after the members it carries (:mod:`loadpath`)."""
+def design_all(entries: list[Member | RowError], data: DataSet, file: str = "schedule.csv") -> list[MemberDesign]:
+    """Every entry designed, each member after the members it carries (:mod:`loadpath`); `file` is the
+    schedule's name, for the load path's row errors."""
     from .loadpath import design_in_order
 
-    return design_in_order(entries, data)
+    return design_in_order(entries, data, file)
 

@@ -81,22 +81,25 @@ def beam_model_png(geometry, loads: dict, x, v_env: tuple, m_env: tuple, d: floa
         FigureCanvasAgg(fig)
         ax_b, ax_v, ax_m = fig.subplots(3, 1, sharex=True, gridspec_kw={"height_ratios": [1.3, 1, 1]})
         _draw_model(ax_b, geometry, loads)
-        for ax, (hi, lo), scale, name, unit in ((ax_v, v_env, 1e-3, "Shear $V$", "kN"),
-                                                (ax_m, m_env, 1e-6, "Moment $M$ (sagging +)", r"kN$\cdot$m")):
+        for ax, (hi, lo), scale, name, unit in ((ax_v, v_env, 1e-3, "$V$", "kN"),
+                                                (ax_m, m_env, 1e-6, "$M$, sagging +", r"kN$\cdot$m")):
             up, dn = [h * scale for h in hi], [lo_ * scale for lo_ in lo]
-            ax.fill_between(xs, up, dn, color="0.85", linewidth=0)
+            ax.fill_between(xs, up, 0, color="0.85", linewidth=0)
+            ax.fill_between(xs, dn, 0, color="0.85", linewidth=0)
             ax.plot(xs, up, color="black", linewidth=0.8)
             ax.plot(xs, dn, color="black", linewidth=0.8, linestyle="--" if up != dn else "-")
             ax.axhline(0, color="black", linewidth=0.6)
-            ax.set_title(f"{name} ({unit})", fontsize=7.5, pad=2, loc="left")
+            ax.set_ylabel(f"{name} ({unit})", labelpad=1)
             ax.spines[["top", "right"]].set_visible(False)
             ax.tick_params(length=2, pad=1.5)
             for values, pick in ((up, max), (dn, min)):
                 k = values.index(pick(values))
                 if abs(values[k]) > 1e-9:
+                    side = "left" if xs[k] < 0.2 * total else "right" if xs[k] > 0.8 * total else "center"
                     ax.annotate(f"${values[k]:.1f}$ at {xs[k]:.2f} m", (xs[k], values[k]), fontsize=6.5,
-                                xytext=(0, 3 if values[k] >= 0 else -3), textcoords="offset points", ha="center",
-                                va="bottom" if values[k] >= 0 else "top")
+                                xytext=({"left": 4, "right": -4, "center": 0}[side], 3 if values[k] >= 0 else -3),
+                                textcoords="offset points",
+                                ha=side, va="bottom" if values[k] >= 0 else "top")
             span = max(max(up), -min(dn), 1e-9)
             ax.set_ylim(-1.35 * span if min(dn) < 0 else -0.15 * span, 1.35 * span if max(up) > 0 else 0.15 * span)
         for s in geometry.supports:
@@ -133,7 +136,8 @@ def _draw_model(ax, geometry, loads: dict) -> None:
         for _, p, at in points:
             ax.annotate("", (at / 1000, 0.03), xytext=(at / 1000, level + 0.42),
                         arrowprops={"arrowstyle": "-|>", "linewidth": 0.7, "color": "black"})
-            ax.annotate(f"{t} {p / 1000:.1f}", (at / 1000, level + 0.44), ha="center", va="bottom", fontsize=5.5)
+            ax.annotate(f"{t} {p / 1000:.1f}", (at / 1000, level + 0.3), xytext=(3, 0), textcoords="offset points",
+                        ha="left", va="center", fontsize=5.5)
         level += 0.2
     ax.set_ylim(-0.6, max(level + 0.75, 1.0))
     ax.set_yticks([])

@@ -14,6 +14,7 @@ from . import __version__
 from .htmlsheet import STYLE, text
 from .package import SHORT_CAUTION, cover_lines, member_rows
 from .project import Project
+from .review import count_text, standing
 from .sheets import CAUTION
 
 
@@ -24,8 +25,9 @@ def index_html(project: Project, doc: dict[str, Any], outdir: Path) -> str:
     counts = {"total": len(members), "pass": 0, "fail": 0, "error": 0}
     for m in members:
         counts[m["status"]] += 1
-    checked = sum(1 for m in members if (m.get("review") or {}).get("status") == "checked")
-    lines = cover_lines(project, counts, checked, len(members) - checked)
+    states = [m.get("review") or {"status": "not-checked"} for m in members]
+    lines = cover_lines(project, counts, count_text(states))
+    all_ok = all(standing(state) == "ok" for state in states)
     f = {k: html.escape(v) for k, v in project.fields.items()}
     body = []
     for r in rows:
@@ -58,7 +60,7 @@ def index_html(project: Project, doc: dict[str, Any], outdir: Path) -> str:
 </tbody></table>
 <div class="caution"><p class="title">Cautions</p><p>{html.escape(CAUTION)}{unverified_text}</p></div>
 <h2>Index of members</h2>
-<p>{text(lines['unchecked']) if len(members) - checked else ''}</p>
+<p>{'' if all_ok else text(lines['unchecked'])}</p>
 <table><thead><tr><th>Mark</th><th>Description</th><th>Size</th><th>Governing</th><th class="r">Util.</th>
 <th>Verdict</th><th>Checked</th></tr></thead><tbody>
 {chr(10).join(body)}

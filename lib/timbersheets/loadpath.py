@@ -82,7 +82,7 @@ def order(members: list, file: str) -> tuple[list, dict[str, list[ScheduleError]
     return out, errors
 
 
-def resolve(member, carries_designs: dict) -> object:
+def resolve(member, carries_designs: dict, file: str = "schedule.csv") -> object:
     """`member` with its carried loads filled in from the designs of the members it carries."""
     from .beamdesign import reactions_by_type
 
@@ -95,7 +95,7 @@ def resolve(member, carries_designs: dict) -> object:
         elif c.reaction in reactions:
             n = c.reaction
         else:
-            raise ScheduleError("schedule.csv", member.row, "carries", c.label, f"asks for reaction {c.reaction}, "
+            raise ScheduleError(file, member.row, "carries", c.label, f"asks for reaction {c.reaction}, "
                                 f"but {c.mark} has {len(reactions)} support(s)",
                                 ", ".join(f"{c.mark}.R{j}" for j in reactions))
         loads.append(CarriedLoad(c.mark, n, c.at, dict(reactions[n]), c.reaction is None))
@@ -109,8 +109,11 @@ def source_reactions(design, beam_reactions) -> dict[int, dict[str, float]]:
     from .beamdesign import is_model
     from .errors import DesignError
 
-    m = design.member
-    if m.type == "bending":
+    from .membertypes import member_type
+
+    # the member as designed: with its own weight in the dead load where the design adds it
+    m = design.context.member if design.context is not None else design.member
+    if member_type(m.type).routine == "bending":
         if not is_model(m) and loading_mode(m) == "forces":
             raise DesignError(m.mark, "takes its moments and shears from a frame model, so its support reactions "
                               "are not known here", "", "Give its loads (w_*, point_*, …) to carry its reactions")
@@ -141,9 +144,10 @@ def design_in_order(entries: list, data, file: str = "schedule.csv") -> list:
                 "the loads it hands down are not known", "fix that member first")], list(m.warnings)))
             continue
         try:
-            resolved = resolve(m, designs) if m.values.get("carries") else m
+            resolved = resolve(m, designs, file) if m.values.get("carries") else m
         except TimbersheetsError as exc:
             designs[m.mark] = MemberDesign(m.mark, m.row, None, errors=[str(exc)], warnings=list(m.warnings))
             continue
         designs[m.mark] = design_member(resolved, data)
     return [designs[e.mark] if isinstance(e, Member) else rejected(e) for e in entries]
+

@@ -65,6 +65,9 @@ class MemberType:
 
 
 _LENGTHS = MappingProxyType({"Lx": "length", "Ly": "length"})
+#: Geometry and loads only a beam analysed along its length takes (spans, overhangs, area, point, partial loads).
+_BEAM_ONLY = ("spans", "overhang_left", "overhang_right", "trib",
+              *(f"{p}_{t}" for p in ("q", "point", "part") for t in "DLSWE"))
 _DEFLECTIONS = ("deflection-live", "deflection-total")
 
 
@@ -75,19 +78,21 @@ def member_types() -> dict[str, MemberType]:
     free_edge = MappingProxyType({**_LENGTHS, "Lu": "length"})  # a column's compression edge is not held unless stated
     types = [
         MemberType("tension", "tension member", "axial.ipynb", "axial", axial="tension", bends=False,
-                   checks=("tension",), plies=True, sections=("length", "net-area"), blank=_LENGTHS),
+                   checks=("tension",), plies=True, sections=("length", "net-area"), blank=_LENGTHS,
+                   refuses=_BEAM_ONLY),
         MemberType("compression", "compression member", "axial.ipynb", "axial", axial="compression", bends=False,
-                   checks=("compression",), plies=False, sections=("length", "net-area"), blank=_LENGTHS),
+                   checks=("compression",), plies=False, sections=("length", "net-area"), blank=_LENGTHS,
+                   refuses=_BEAM_ONLY),
         MemberType("bending", "bending member", "bending.ipynb", "bending", axial=None, bends=True,
                    checks=("bending", "shear", "bearing", *_DEFLECTIONS), plies=True,
                    sections=("span", "forces", "diagram", "serviceability"), blank=held_edge),
         MemberType("beam-column", "beam-column (axial compression with bending)", "combined.ipynb", "combined",
                    axial="compression", bends=True, checks=("compression", "bending", "shear", "interaction",
                                                             *_DEFLECTIONS),
-                   plies=False, sections=("span", "length"), blank=free_edge),
+                   plies=False, sections=("span", "length"), blank=free_edge, refuses=_BEAM_ONLY),
         MemberType("tension-bending", "tension member with bending", "combined.ipynb", "combined",
                    axial="tension", bends=True, checks=("tension", "bending", "shear", "interaction", *_DEFLECTIONS),
-                   plies=True, sections=("span", "length"), blank=free_edge),
+                   plies=True, sections=("span", "length"), blank=free_edge, refuses=_BEAM_ONLY),
     ]
     return {t.name: t for t in types}
 

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from .beamdesign import geometry_of, loads_of, model_of, reactions_by_type
 from .beammodel import PATTERNED, library
-from .beampattern import Combined, strength_targets
+from .beampattern import Combined
 from .calc import format_number
 from .sheets import Block, heading, para, q, table
 from .tex import Cell, Table, escape
@@ -79,7 +79,8 @@ def loads_block(m) -> Block:
 
 def forces_block(design) -> Block:
     """The analysis: package, method, arrangements; specified reactions; the governing factored extremes."""
-    m, ctx = design.member, design.context
+    ctx = design.context
+    m = ctx.member  # as designed (own weight in the dead load where the design adds it)
     model = model_of(m)
     out = heading("Member forces (beam model)", 2)
     patterned = [t for t in PATTERNED if t in model.present()]
@@ -103,7 +104,7 @@ def forces_block(design) -> Block:
                 "combination is checked; section 5 lists them all):")
     best: dict[tuple[str, str], tuple] = {}
     for case in design.cases:
-        for t in strength_targets(model, case.combination.factors, ctx.section.d):
+        for t in model.targets("strength", case.combination.factors, ctx.section.d):
             key = (t.kind, t.region)
             if key not in best or abs(t.value) > abs(best[key][1].value):
                 best[key] = (case, t)
@@ -112,6 +113,9 @@ def forces_block(design) -> Block:
             for case, t in best.values()]
     out += table(Table(["Effect", "Where", "x", "Value", "Combination", "Live/snow on"], rows, "llrrlX",
                        ["", "", "m", "kN·m or kN", "", ""]))
+    if any(t.kind == "R-" for _, t in best.values()):
+        out += para("Uplift at a support (a negative reaction): no bearing demand there, but the connection must "
+                    "hold the member down; it is not checked on this sheet.")
     return out
 
 
@@ -121,7 +125,8 @@ def diagram(design) -> list[object]:
 
     from .diagrams import beam_model_png
 
-    m, ctx = design.member, design.context
+    ctx = design.context
+    m = ctx.member
     gov = design.governing_by_check().get("bending")
     if gov is None:
         return []
@@ -139,7 +144,7 @@ def diagram(design) -> list[object]:
 def serviceability_block(design, data) -> Block:
     from .analysis import service_cases_for
 
-    m = design.member
+    m = design.context.member
     model = model_of(m)
     cases = service_cases_for(m, data, model.present())
     out = heading("Serviceability combinations", 2)

@@ -23,7 +23,7 @@ from . import __version__
 from .constants import CAUTION, SHORT_CAUTION
 from .data import DataSet
 from .pipeline import library_fingerprint, templates_dir
-from .sheetjobs import copy_atomic
+from .fileio import copy_atomic
 from .project import Project
 from .review import count_text, standing, titleblock_text
 from .revisions import MemberChange
@@ -134,7 +134,8 @@ def change_rows(changes: list[MemberChange]) -> list[dict[str, str]]:
         if c.kind != "changed":
             out.append({"mark": escape(c.mark), "what": escape(c.kind), "item": "", "old": "", "new": ""})
             continue
-        items = [("input", k, a, b) for k, a, b in c.inputs] + [("result", k, a, b) for k, a, b in c.results]
+        items = [("because", "carried", "", f"{source} changed") for source in c.because]
+        items += [("input", k, a, b) for k, a, b in c.inputs] + [("result", k, a, b) for k, a, b in c.results]
         if c.verdict_flip:
             items.append(("verdict flipped", "status", *c.verdict_flip))
         for j, (what, k, a, b) in enumerate(items):

@@ -16,6 +16,7 @@ from typing import Any
 
 from .constants import SHORT_CAUTION
 from .errors import ParameterError, TimbersheetsError
+from .fileio import write_atomic
 from .tex import escape
 
 
@@ -200,7 +201,4 @@ def to_html(notebook: Path, html: Path, titleblock: dict[str, str]) -> None:
     from .htmlsheet import sheet_html
 
     nb = nbformat.read(str(notebook), as_version=4)
-    html.parent.mkdir(parents=True, exist_ok=True)
-    staged = html.with_name(f".{html.name}.part")
-    staged.write_text(sheet_html(nb, titleblock), encoding="utf-8")
-    os.replace(staged, html)
+    write_atomic(html, sheet_html(nb, titleblock))

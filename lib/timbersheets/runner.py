@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import datetime as dt
 import os
+import re
 import shutil
 import time
 from dataclasses import dataclass, field
@@ -17,18 +18,19 @@ from pathlib import Path
 from . import __version__
 from .constants import SHORT_CAUTION
 from .data import DataSet
-from .design import MemberDesign, design_all
+from .design import MemberDesign
 from .errors import ExitCode, JobError
 from .membertypes import member_types
-from .fileio import write_atomic
+from .fileio import copy_atomic, remove_stale_parts, write_atomic
+from .lifetime import pid_alive
 from .keep import Carried, carry_package, carry_sheets, package_key, write_package_key
 from .pipeline import templates_dir
-from .project import Project, load_project
+from .job import load_job
+from .project import Project
 from .fileio import write_csv
 from .results import member_json, results_doc, write_results
-from .review import comment_text, latest, read_reviews, status, titleblock_text
+from .review import comment_text, latest, load_review_file, read_reviews, status, titleblock_text
 from .revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
-from .schedule import load_schedule
 from .sheetjobs import SheetOutcome, SheetTask, run_sheets
 from .tex import escape
 
@@ -176,12 +178,23 @@ def stage_dir(project: Project, opts: RunOptions) -> tuple[Path, Path]:
     """An empty staging folder beside the revision folder (what stays of the old one: keep.py)."""
     final = revision_dir(project, opts.out)
     final.parent.mkdir(parents=True, exist_ok=True)
+    remove_stale(final.parent)
     stage = final.parent / f".{final.name}.staging-{os.getpid()}"
     shutil.rmtree(stage, ignore_errors=True)
     stage.mkdir()
     return stage, final
 
 
+_STAGING = re.compile(r"^\.rev-.+\.(?:staging|old)-(\d+)$")
+
+
+def remove_stale(jobdir: Path) -> None:
+    """Staging folders and temporary files of killed runs of this user (their process is gone)."""
+    for path in jobdir.glob(".rev-*"):
+        match = _STAGING.match(path.name)
+        if match and path.is_dir() and path.stat().st_uid == os.getuid() and not pid_alive(int(match.group(1))):
+            shutil.rmtree(path, ignore_errors=True)
+    remove_stale_parts(jobdir / ".cache")
 def check_only(project: Project, entries: list, only: list[str] | None) -> None:
     """Refuse an --only mark the schedule does not have (a typo would otherwise run nothing, silently)."""
     known = {e.mark for e in entries}
@@ -206,7 +219,7 @@ def snapshot_inputs(project: Project, stage: Path) -> None:
     for path in (project.folder / "project.toml", project.schedule_path, project.folder / "review.csv",
                  project.materials):
         if path and path.exists():
-            shutil.copyfile(path, inputs / path.name)
+            copy_atomic(path, inputs / path.name)
 
 
 def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
@@ -217,11 +230,11 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     """
     opts = opts or RunOptions(**kw)
     started = time.monotonic()
-    project = load_project(folder)
-    data = DataSet(project.materials)
-    schedule = load_schedule(project.schedule_path, data)
+    job = load_job(folder)
+    project, schedule, data = job.project, job.schedule, job.data
+    schedule.warnings += load_review_file(project.folder).problems
     check_only(project, schedule.entries, opts.only)
-    designs = design_all(schedule.entries, data)
+    designs = job.designs
     jobdir = job_dir(project, opts.out)
     prev_label = previous_revision(jobdir, project.revision)
     previous = load_results(jobdir / f"rev-{prev_label}") if prev_label else None

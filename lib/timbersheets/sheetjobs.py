@@ -21,7 +21,6 @@ import json
 import math
 import multiprocessing
 import os
-import shutil
 import time
 import traceback
 from concurrent.futures import ProcessPoolExecutor, as_completed
@@ -32,6 +31,8 @@ from typing import Any
 
 from .batch import Body, Stamp, fixed_fields, stamp_sheets, stamped_fields, typeset_bodies
 from .constants import RESULT_MIME
+from .fileio import copy_atomic
+from .lifetime import die_with_parent
 from .pipeline import execute, file_hash, library_fingerprint, templates_dir, to_html
 
 BATCH = 20  # members per xelatex run: the ~2 s of preamble and fonts spread over 20 sheets
@@ -99,13 +100,6 @@ class SheetOutcome:
 
     def fail(self, problem: str) -> None:
         self.error = (self.error + "; " if self.error else "") + problem
-
-
-def copy_atomic(src: Path, dst: Path) -> None:
-    dst.parent.mkdir(parents=True, exist_ok=True)
-    staged = dst.with_name(f".{dst.name}.part")
-    shutil.copyfile(src, staged)
-    os.replace(staged, dst)
 
 
 def read_record(notebook: Path) -> tuple[dict[str, Any] | None, str | None]:
@@ -245,7 +239,8 @@ def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool,
             collect(_safe_batch(group))
     else:
         context = multiprocessing.get_context("spawn")
-        with ProcessPoolExecutor(max_workers=min(jobs, len(groups)), mp_context=context) as pool:
+        with ProcessPoolExecutor(max_workers=min(jobs, len(groups)), mp_context=context,
+                                 initializer=die_with_parent) as pool:
             for future in as_completed([pool.submit(_safe_batch, g) for g in groups]):
                 collect(future.result())
     bar.close()

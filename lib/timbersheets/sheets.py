@@ -112,10 +112,12 @@ class Sheet:
         if self.kind.shows("span") and section is not None:
             from .beamsheet import member_rows
 
-            rows += member_rows(m, section)
+            rows += member_rows(m, section, {c.check for c in d.checks} if not d.errors else None)
         if section is not None:
             length, net_area = self._axial_rows(m, section)
             rows += [row for name, row in (("length", length), ("net-area", net_area)) if self.kind.shows(name)]
+        if m.entered:
+            rows.append(["As entered", entered_cell(m)])
         if m.note:
             rows.append(["Note", m.note])
         rows.append(["Schedule", f"row {m.row}"])
@@ -158,7 +160,9 @@ class Sheet:
         rows = []
         if sz.chosen is not None:
             rows.append(row(sz.chosen, "chosen"))
-        rows += [row(c, "runner-up") for c in sz.runners_up]
+        rows += [row(c, f"lighter; passed over for prefer = {self.m.prefer}"
+                      if sz.chosen is not None and c.section.A < sz.chosen.section.A else "runner-up")
+                 for c in sz.runners_up]
         if sz.chosen is None and sz.best is not None:
             rows.append(row(sz.best, "best reached; does not pass"))
         words = (f"The schedule asks for the size (size = auto). The catalogue of standard sections "
@@ -368,7 +372,7 @@ class Sheet:
         clauses = (" Clause numbers follow the O86-14 numbering, believed unchanged in O86:19 (memory, unverified).")
         notes = ""
         if self.design.warnings:
-            items = "".join(f"\\item {escape(w)}\n" for w in self.design.warnings)
+            items = "".join(f"\\item {caption_latex(w)}\n" for w in self.design.warnings)
             notes = f"\\par\\smallskip Notes on this member:\n\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n"
             md += "\n\nNotes:\n" + "".join(f"- {md_escape(w)}\n" for w in self.design.warnings)
         return Block(f"\\begin{{cautionbox}}\n{escape(CAUTION)}{codes}{escape(clauses)}{escape(source)}\n{notes}"
@@ -412,6 +416,19 @@ def caption_latex(text: str) -> str:
         out += [escape(text[pos:match.start()]), f"${symbol_latex(match.group(0))}$"]
         pos = match.end()
     return "".join(out) + escape(text[pos:])
+
+
+def entered_cell(m: Member) -> Cell:
+    """Cells the schedule wrote in another unit (12 ft, 4.5 kip), as written, beside the value used."""
+    from .schedule import COLUMNS
+
+    latex, text = [], []
+    for name, written in m.entered.items():
+        unit = COLUMNS[name].compute
+        latex.append(f"\\texttt{{{escape(name)}}} {escape(written)} $= {format_value(m.values[name], unit)}$")
+        shown, shown_unit = to_display(m.values[name], unit)
+        text.append(f"{name} {written} = {format_number(shown, shown_unit)} {unit_text(shown_unit)}")
+    return Cell("; ".join(latex), md_escape("; ".join(text)))
 
 
 def basis_cell(basis: str) -> Cell:

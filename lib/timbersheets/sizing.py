@@ -72,7 +72,8 @@ def catalogue(member: Member, data: DataSet) -> list[Section]:
     sections: list[Section] = []
     if member.material == "glulam":
         lam, min_depth = data.lamination
-        deepest = max_depth or data.glulam_factor("depth_max_standard").value
+        standard = data.glulam_factor("depth_max_standard").value
+        deepest = min(max_depth, standard) if max_depth else standard  # the catalogue ends at the standard
         depths = [min_depth + lam * i for i in range(int((deepest - min_depth) // lam) + 1)]
         sections = [Section(float(w), d) for w in data.glulam_widths for d in depths]
     else:
@@ -105,7 +106,9 @@ def evaluate(member: Member, data: DataSet, section: Section, cases, design) -> 
         checks = design(ctx, cases)
     except DesignError as exc:
         return Candidate(section, math.inf, exc.problem)
-    gov = max(checks, key=lambda c: c.utilization)
+    gov = max(checks, key=lambda c: c.utilization if math.isfinite(c.utilization) else math.inf)
+    if not math.isfinite(gov.utilization):
+        return Candidate(section, math.inf, f"{gov.check} under {gov.combination} is not a finite number")
     return Candidate(section, gov.utilization, f"{gov.check} under {gov.combination}")
 
 
@@ -127,8 +130,9 @@ def size(member: Member, data: DataSet, design) -> Sizing:
 
     The chosen section is the lightest that passes (least area, then least
     depth); with ``prefer = deep`` or ``square``, the deepest or squarest of the
-    passing sections within 10 % of the lightest area. Runners-up are the next
-    passing sections, none lighter than the chosen one.
+    passing sections within 10 % of the lightest area. Runners-up are the other
+    passing sections in order of area: with a preference, the lighter ones it
+    passed over come first, then the next heavier ones.
     """
     from .design import effects_of
 
@@ -142,28 +146,27 @@ def size(member: Member, data: DataSet, design) -> Sizing:
         raise DesignError(member.mark, "no standard section meets the sizing constraints",
                           fix=f"Relax them ({result.constraints or 'none given'})")
     passing: list[Candidate] = []
-    limit = math.inf
+    prefer = member.values.get("prefer")
+    band = math.inf  # with prefer: the chosen section is one of those within PREFER_BAND of the lightest
     for section in sections:
-        if section.A > limit:
-            break
         candidate = evaluate(member, data, section, cases, design)
         result.searched += 1
         if result.best is None or candidate.utilization < result.best.utilization:
             result.best = candidate
         if candidate.passes:
             passing.append(candidate)
-            if len(passing) == 1:
-                limit = section.A * (1 + PREFER_BAND) if member.values.get("prefer") else math.inf
-            if not member.values.get("prefer") and len(passing) > RUNNERS_UP:
+            if len(passing) == 1 and prefer:
+                band = section.A * (1 + PREFER_BAND)
+            if len([c for c in passing if c.section.A > band] if prefer else passing[1:]) >= RUNNERS_UP:
                 break
     if not passing:
         return result
-    chosen = passing[0]
-    prefer = member.values.get("prefer")
+    in_band = [c for c in passing if c.section.A <= band]
+    chosen = in_band[0]
     if prefer == "deep":
-        chosen = max(passing, key=lambda c: (c.section.d, -c.section.A))
+        chosen = max(in_band, key=lambda c: (c.section.d, -c.section.A))
     elif prefer == "square":
-        chosen = min(passing, key=lambda c: (abs(math.log(c.section.d / c.section.b)), c.section.A))
+        chosen = min(in_band, key=lambda c: (abs(math.log(c.section.d / c.section.b)), c.section.A))
     result.chosen = chosen
-    result.runners_up = [c for c in passing if c is not chosen and c.section.A >= chosen.section.A][:RUNNERS_UP]
+    result.runners_up = [c for c in passing if c is not chosen][:RUNNERS_UP]
     return result

@@ -10,11 +10,10 @@ from __future__ import annotations
 from dataclasses import dataclass
 from pathlib import Path
 
-from .data import DataSet
 from .design import MemberDesign, design_all
+from .job import load_job
 from .loads import EFFECTS, LOAD_TYPES
-from .project import load_project
-from .schedule import Member, load_schedule
+from .schedule import Member
 
 
 @dataclass
@@ -58,6 +57,8 @@ def scaled(member: Member, scales: dict[str, float]) -> Member:
     for load, factor in scales.items():
         for effect in EFFECTS:
             values[f"{effect}_{load}"] = values[f"{effect}_{load}"] * factor
+        values[f"point_{load}"] = tuple((p * factor, x) for p, x in values[f"point_{load}"])
+        values[f"part_{load}"] = tuple((w * factor, a, b) for w, a, b in values[f"part_{load}"])
     return Member(member.mark, member.row, values, member.given, list(member.warnings))
 
 
@@ -75,15 +76,13 @@ def what_if(folder: Path, scales: dict[str, float], resize: bool = False) -> lis
 
     Auto members keep the sections of the scheduled loads; with `resize` they are sized again.
     """
-    project = load_project(folder)
-    data = DataSet(project.materials)
-    schedule = load_schedule(project.schedule_path, data)
-    before = design_all(schedule.entries, data)
+    job = load_job(folder)
+    schedule, data, before = job.schedule, job.data, job.designs
     after_entries = []
-    for entry, design in zip(schedule.entries, before):
+    for entry, design in zip(schedule.entries, before, strict=True):
         if isinstance(entry, Member):
             entry = scaled(entry if resize else as_sized(entry, design), scales)
         after_entries.append(entry)
     after = design_all(after_entries, data)
     return [WhatIf(b.mark, b, a, isinstance(e, Member) and e.size == "auto")
-            for e, b, a in zip(schedule.entries, before, after)]
+            for e, b, a in zip(schedule.entries, before, after, strict=True)]

@@ -25,7 +25,7 @@ from __future__ import annotations
 from dataclasses import replace
 from math import sqrt
 
-from ..calc import calc, format_number
+from ..calc import calc, format_metres, format_number
 from ..data import Datum
 from ..errors import DataError, DesignError
 from . import Step, result
@@ -117,15 +117,18 @@ def sawn_size_factors(m) -> tuple[Datum, Datum]:
     return kzb, kzv
 
 
-def _restraint_rule(m, L_u: float) -> tuple[str, Datum] | None:
-    """The loosest depth-to-width rule the restraint meets, or None (compute K_L)."""
+def _restraint_rule(m, L_u: float, bottom: bool = False) -> tuple[str, Datum] | None:
+    """The loosest depth-to-width rule the restraint meets, or None (compute K_L).
+
+    `bottom`: the bottom edge is in compression (negative moment); purlins hold the top edge only.
+    """
     ratio = m.section.d / m.section.b
     extra = m.member.values.get("restraint")
     if extra == "both-edges":
         actual = "both-edges"
     elif L_u == 0:
         actual = "blocking" if extra == "blocking" else "decking"
-    elif extra == "purlins" and L_u < m.length:
+    elif extra == "purlins" and L_u < m.length and not bottom:
         actual = "purlins"
     else:
         actual = None  # only the d/b ≤ 4 rule, else K_L is computed from L_u
@@ -156,7 +159,7 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
     if m.glulam and L_u == 0:
         return 1.0, [], "Lateral stability: compression edge held continuously (L_u = 0), so K_L = 1.0."
     if not m.glulam:
-        rule = _restraint_rule(m, L_u)
+        rule = _restraint_rule(m, L_u, negative)
         if rule is not None:
             given = ("both edges held in line (schedule: restraint = both-edges)" if rule[0] == "both-edges" else
                      "the compression edge held in line by purlins or tie rods (schedule: restraint = purlins)"
@@ -165,7 +168,7 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
                      "blocking)" if rule[0] == "blocking" else
                      "the compression edge held continuously (L_u = 0)" if L_u == 0 else
                      "no intermediate lateral support" if L_u >= m.length else
-                     f"the compression edge held at intervals of L_u = {L_u / 1000:g} m")
+                     f"the compression edge held at intervals of L_u = {format_metres(L_u)} m")
             words = (f"Lateral stability ({STABILITY_CLAUSE['sawn']}.1): d/b = {ratio:.2f} ≤ {rule[1].value:.1f}, the "
                      f"limit with {rule[1].label.split(', ', 1)[1]}; the member has {given}, so K_L = 1.0.")
             return 1.0, [], edge + words
@@ -189,7 +192,7 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
                           STABILITY_CLAUSE["glulam" if m.glulam else "sawn"],
                           "Brace the compression edge (shorter Lu) or choose a wider section")
     steps = [Step(lateral_slenderness, slender, f"{edge}Lateral stability, laterally unsupported length "
-                  f"L_u = {L_u / 1000:g} m ({'uniform load on a simple span' if line_loads else 'any loading'})")]
+                  f"L_u = {format_metres(L_u)} m ({'uniform load on a simple span' if line_loads else 'any loading'})")]
     if C_B <= CB_STOCKY:
         return 1.0, steps, f"C_B = {C_B:.2f} ≤ {CB_STOCKY:g}, so K_L = 1.0."
     if C_B <= C_K:

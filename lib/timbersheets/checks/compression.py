@@ -43,13 +43,20 @@ def sawn_compression_y(f_c, K_D, K_H, K_Sc, K_T, K_e, L_y, b, E_05, K_SE, phi, A
     return locals()
 
 
-_GLULAM = {**_SAWN, "Z": "m**3", "K_Zcg": ""}
+@calc(units={"f_c": "MPa", "K_D": "", "K_H": "", "K_Sc": "", "K_T": "", "F_c": "MPa", "b": "m", "d": "m", "L": "m",
+             "Z": "m**3", "K_Zcg": ""}, clause=GLULAM_CLAUSE)
+def glulam_compression_factors(f_c, K_D, K_H, K_Sc, K_T, b, d, L):
+    F_c = f_c * (K_D * K_H * K_Sc * K_T)
+    Z = b * d * L
+    K_Zcg = min(0.68 * Z ** (-0.13), 1.0)
+    return locals()
+
+
+_GLULAM = {"F_c": "MPa", "K_Zcg": "", "K_e": "", "E_05": "MPa", "K_SE": "", "K_T": "", "phi": "", "A": "mm**2"}
 
 
 @calc(units={**_GLULAM, "L_x": "mm", "d": "mm", "C_cx": "", "K_Cx": "", "P_rx": "N"}, clause=GLULAM_CLAUSE)
-def glulam_compression_x(f_c, K_D, K_H, K_Sc, K_T, K_e, L_x, d, E_05, K_SE, phi, A, Z):
-    F_c = f_c * (K_D * K_H * K_Sc * K_T)
-    K_Zcg = min(0.68 * Z ** (-0.13), 1.0)
+def glulam_compression_x(F_c, K_Zcg, K_e, L_x, d, E_05, K_SE, K_T, phi, A):
     C_cx = K_e * L_x / d
     K_Cx = (1.0 + F_c * K_Zcg * C_cx**3 / (35 * E_05 * K_SE * K_T)) ** (-1)
     P_rx = phi * F_c * A * K_Zcg * K_Cx
@@ -57,9 +64,7 @@ def glulam_compression_x(f_c, K_D, K_H, K_Sc, K_T, K_e, L_x, d, E_05, K_SE, phi,
 
 
 @calc(units={**_GLULAM, "L_y": "mm", "b": "mm", "C_cy": "", "K_Cy": "", "P_ry": "N"}, clause=GLULAM_CLAUSE)
-def glulam_compression_y(f_c, K_D, K_H, K_Sc, K_T, K_e, L_y, b, E_05, K_SE, phi, A, Z):
-    F_c = f_c * (K_D * K_H * K_Sc * K_T)
-    K_Zcg = min(0.68 * Z ** (-0.13), 1.0)
+def glulam_compression_y(F_c, K_Zcg, K_e, L_y, b, E_05, K_SE, K_T, phi, A):
     C_cy = K_e * L_y / b
     K_Cy = (1.0 + F_c * K_Zcg * C_cy**3 / (35 * E_05 * K_SE * K_T)) ** (-1)
     P_ry = phi * F_c * A * K_Zcg * K_Cy
@@ -73,14 +78,19 @@ def compression_resistance(m, K_D: float) -> tuple[float, tuple[Step, ...]]:
     """
     common = dict(f_c=m.f["f_c"], K_D=K_D, K_H=m.K_H_for("compression"), K_Sc=m.K_S["K_Sc"], K_T=m.K_T, K_e=m.K_e,
                   E_05=m.f["E05"], K_SE=m.K_S["K_SE"], phi=m.phi["compression"], A=m.section.A)
-    if m.glulam:
-        volume = m.section.A * m.length * 1e-9  # mm³ → m³
-        axes = ((glulam_compression_x, dict(L_x=m.L_x, d=m.section.d, Z=volume), "C_cx"),
-                (glulam_compression_y, dict(L_y=m.L_y, b=m.section.b, Z=volume), "C_cy"))
+    steps = []
+    if m.glulam:  # F_c and the volume size factor are the same about both axes: shown once
+        s = m.section
+        shared = glulam_compression_factors(f_c=common.pop("f_c"), K_D=common.pop("K_D"), K_H=common.pop("K_H"),
+                                            K_Sc=common.pop("K_Sc"), K_T=m.K_T, b=s.b / 1000, d=s.d / 1000,
+                                            L=m.length / 1000)  # mm → m: Z in m³
+        steps.append(Step(glulam_compression_factors, shared, "strength and size factor on the member volume Z, the same about both axes"))
+        common.update(F_c=shared["F_c"], K_Zcg=shared["K_Zcg"])
+        axes = ((glulam_compression_x, dict(L_x=m.L_x, d=s.d), "C_cx"),
+                (glulam_compression_y, dict(L_y=m.L_y, b=s.b), "C_cy"))
     else:
         axes = ((sawn_compression_x, dict(L_x=m.L_x, d=m.section.d), "C_cx"),
                 (sawn_compression_y, dict(L_y=m.L_y, b=m.section.b), "C_cy"))
-    steps = []
     for (calc_, geometry, slender), axis in zip(axes, ("x", "y")):
         if min(v for k, v in geometry.items() if k.startswith("L_")) <= 0:
             continue  # braced about this axis over its whole length: no buckling about it
@@ -92,9 +102,10 @@ def compression_resistance(m, K_D: float) -> tuple[float, tuple[Step, ...]]:
         caption = ("buckling about the strong axis x (across d)" if axis == "x"
                    else "buckling about the weak axis y (across b)")
         steps.append(Step(calc_, values, caption))
-    if not steps:
+    resistances = [st.values.get("P_rx", st.values.get("P_ry")) for st in steps]
+    if not any(r is not None for r in resistances):
         raise DesignError(m.mark, "is braced about both axes (Lx = Ly = 0); give the unbraced length of at least one")
-    P_r = min(s.values["P_rx" if "P_rx" in s.values else "P_ry"] for s in steps)
+    P_r = min(r for r in resistances if r is not None)
     return P_r, tuple(steps)
 
 

@@ -27,7 +27,8 @@ def check_deflection(m, case, n_lim: float | None = None):
     m.used += list(case.datums)
     values = sls_deflection(w_s=case.w_s, L=m.length, E=m.f["E"], K_SE=m.K_S["K_SE"], K_T=m.K_T, I_x=m.section.I_x,
                             n_lim=n_lim)
-    parts = " + ".join(f"{f:.1f}·{to_display(m.member.values[f'w_{t}'], 'N/mm')[0]:g}" for t, f in case.factors.items())
+    parts = " + ".join(f"{f:.1f}·{format_number(to_display(m.member.values[f'w_{t}'], 'N/mm')[0], 'kN/m')}"
+                      for t, f in case.factors.items())
     total = format_number(to_display(case.w_s, "N/mm")[0], "kN/m")
     words = (f"Specified {kind} load {case.label}: w_s = {parts} = {total} kN/m; "
              f"limit L/{n_lim:g} (schedule column {column})")

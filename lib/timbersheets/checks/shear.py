@@ -18,7 +18,7 @@ from __future__ import annotations
 
 from dataclasses import replace
 
-from ..calc import calc, format_number
+from ..calc import calc, format_metres, format_number
 from ..errors import DesignError
 from . import Step, result
 from .bending import sawn_size_factors
@@ -84,7 +84,8 @@ def _glulam_shear(m, forces, line_loads: bool, common: dict, given: str):
     z_max = replace(m.data.glulam_factor("shear_method_a_volume_max"), symbol="Z_max")
     m.used.append(z_max)
     options = []  # (utilization, demand, resistance, symbols, steps)
-    words = f"Z = b d L = {s.b / 1000:g} × {s.d / 1000:g} × {m.length / 1000:g} m = {volume:.3f} m³"
+    words = (f"Z = b d L = {format_metres(s.b)} × {format_metres(s.d)} × {format_metres(m.length)} m "
+             f"= {volume:.3f} m³")
     area = glulam_shear_area(K_N=NO_NOTCH, **common)
     if volume < z_max.value:
         steps = [Step(glulam_shear_area, area, f"Method (a), permitted as {words} < {z_max.value:g} m³")]
