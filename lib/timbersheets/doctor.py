@@ -20,7 +20,6 @@ from pathlib import Path
 PYTHON_MIN = (3, 11)
 FONTS = ("Latin Modern Roman", "DejaVu Sans")  # the text font and the fallback (sheet.tex.j2 \tsfallback)
 LATIN_MODERN_FILE = "lmroman10-regular.otf"
-LAYOUTS = ("latex/sheet/sheet.tex.j2", "latex/package/package.tex.j2")
 
 GET_TEX = {
     "Windows": "install MiKTeX (miktex.org; 'install for me only' needs no administrator rights) and let it "
@@ -79,8 +78,8 @@ def check_package() -> Finding:
 def layout_packages(templates: Path) -> list[str]:
     """Every LaTeX package the sheet and package layouts load, in order."""
     names: list[str] = []
-    for layout in LAYOUTS:
-        text = (templates / layout).read_text(encoding="utf-8")
+    for layout in sorted((templates / "latex").rglob("*.tex.j2")):  # every layout, so a new one is checked too
+        text = layout.read_text(encoding="utf-8")
         for group in re.findall(r"\\usepackage(?:\[[^\]]*\])?\{([^}]*)\}", text):
             names += [n.strip() for n in group.split(",") if n.strip() and n.strip() not in names]
     return names
