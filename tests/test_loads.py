@@ -13,7 +13,7 @@ from timbersheets.loads import Effects, apply_combinations, combinations, kd_per
     (1.5, 0.912), (2.0, 0.849), (3.0, 0.761), (4.0, 0.699), (5.01, 0.650), (8.0, 0.650),
 ])
 def test_kd_permanent_formula(ratio, expected):
-    values = kd_permanent(P_L=ratio * 10_000.0, P_S=10_000.0)
+    values = kd_permanent(X_lt=ratio * 10_000.0, X_st=10_000.0)
     assert values["K_D"] == pytest.approx(expected, abs=0.0006)
 
 
@@ -68,5 +68,10 @@ def test_no_zero_or_duplicate_combinations(data):
 
 
 def test_kd_override(data):
+    # The override replaces the computed K_D, but never raises the long-term 0.65 of the dead-only
+    # combination (O86 Table 5.1: dead load is long-term whatever the schedule says).
     cases = apply_combinations(effects(D=5, L=8), data, [], override=0.8)
-    assert {c.K_D for c in cases} == {0.8}
+    assert {c.K_D for c in cases if c.combination.principal != "D"} == {0.8}
+    dead = next(c for c in cases if c.combination.principal == "D")
+    assert dead.K_D == 0.65 and "not applied" in dead.basis
+    assert all("override" in c.basis for c in cases if c.combination.principal != "D")

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from .analysis import loading_mode, member_forces, service_cases
 from .calc import format_number, format_value
+from .checks.bending import bottom_edge_words
 from .errors import TimbersheetsError
 from .sheets import Block, heading, para, q, table
 from .tex import Cell, Table, escape
@@ -30,13 +31,7 @@ def member_rows(m, section) -> list[list[object]]:
     else:
         span = Cell(f"$L = {format_value(m.length, 'mm')}$; line loads act across the member between its ends, "
                     "which are held in position", f"L = {m.length:g} mm")
-    if m.Lu == 0:
-        lateral = ("compression edge held continuously ($L_u = 0$), e.g. by decking or joists fixed to it",
-                   "compression edge held continuously (Lu = 0)")
-    else:
-        lateral = (f"compression edge laterally unsupported over $L_u = {format_value(m.Lu, 'mm')}$",
-                   f"compression edge unsupported over Lu = {m.Lu:g} mm")
-    lateral_text = lateral[0] + "; ends held in position and against rotation at the bearings"
+    lateral = lateral_support_words(m)
     bearing = (Cell(f"$l_b = {format_value(m.bearing, 'mm')}$ at each end support",
                     f"l_b = {m.bearing:g} mm at each end support") if m.bearing is not None
                else "not given: no bearing check")
@@ -48,7 +43,7 @@ def member_rows(m, section) -> list[list[object]]:
                "forces": "moments and shears from a frame model, used as given"}.get(mode, "see section 5")
     return [
         ["Span", span],
-        ["Lateral support", Cell(lateral_text, lateral[1])],
+        ["Lateral support", Cell(escape(lateral), lateral)],
         ["Bearing", bearing],
         ["Loading", loading],
         ["Deflection limits", Cell(f"$L/{format_number(m.defl_L, 'mm')}$ under live load, "
@@ -57,6 +52,24 @@ def member_rows(m, section) -> list[list[object]]:
         ["Net area", Cell(f"$A_n = {format_number(m.net_area)}\\,A_g = {format_value(section.A * m.net_area, 'mm**2')}$",
                           f"A_n = {m.net_area:g} A_g")],
     ]
+
+
+def lateral_support_words(m) -> str:
+    """One statement of how each edge is held, from Lu, Lu_bottom and restraint together."""
+    restraint = m.restraint
+    if restraint == "both-edges":
+        top = "both edges held in line (restraint = both-edges; Lu = Lu_bottom = 0)"
+        return top + "; ends held in position and against rotation at the bearings"
+    if m.Lu == 0:
+        top = "top (compression) edge held continuously (Lu = 0), e.g. by decking or joists fixed to it"
+        if restraint == "blocking":
+            top += ", with bridging or blocking at no more than 8d (restraint = blocking)"
+    elif restraint == "purlins":
+        top = f"top (compression) edge held at purlins or tie rods every Lu = {m.Lu / 1000:g} m (restraint = purlins)"
+    else:
+        top = f"top (compression) edge laterally unsupported over Lu = {m.Lu / 1000:g} m"
+    return (f"{top}; bottom edge (in compression under negative moment): {bottom_edge_words(m)}; ends held in "
+            "position and against rotation at the bearings")
 
 
 def forces_block(design) -> Block:

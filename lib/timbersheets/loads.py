@@ -78,9 +78,17 @@ class Effects:
         return any(self.get(e, "D") * self.get(e, t) < 0 for e in EFFECTS for t in LOAD_TYPES[1:])
 
 
-@calc(units={"P_L": "N", "P_S": "N", "K_D": ""}, clause="O86:19 5.3.2.3")
-def kd_permanent(P_L, P_S):
-    K_D = max(1.0 - 0.50 * log10(P_L / P_S), 0.65)
+#: The symbols of :func:`kd_permanent`, in words for the sheet. O86 writes P_L and P_S; the schedule's
+#: P_L and P_S columns are the live and snow axial loads, so the sheet uses symbols of its own.
+KD_SYMBOLS = {"X_lt": "the specified long-term (dead-load) part of the effect",
+              "X_st": "the specified standard-term (live and snow) part of the same effect in this combination"}
+#: The K_D override of the schedule is bounded by the factors O86 Table 5.1 itself gives.
+KD_OVERRIDE_RANGE = (0.65, 1.15)
+
+
+@calc(units={"X_lt": "N", "X_st": "N", "K_D": ""}, clause="O86:19 5.3.2.3")
+def kd_permanent(X_lt, X_st):
+    K_D = max(1.0 - 0.50 * log10(X_lt / X_st), 0.65)
     return locals()
 
 
@@ -102,42 +110,40 @@ class LoadCase:
 
 def load_duration(comb: Combination, effects: Effects, data: DataSet, used: list[Datum],
                   override: float | None) -> tuple[float, str, dict[str, float], str]:
-    """K_D for one combination (CSA O86:19 5.3.2, Table 5.1).
+    """K_D for one combination (CSA O86:19 5.3.2, Table 5.1), one value for every resistance of it.
 
     The class of the principal load sets K_D: long term (dead only) 0.65,
     standard term (L or S principal) 1.0, short term (W or E principal) 1.15.
-    For a standard-term combination where the specified long-term (dead) effect
-    P_L exceeds the specified standard-term effect P_S of that combination,
-    K_D = 1.0 − 0.50 log10(P_L/P_S) ≥ 0.65 (5.3.2.3). Where the member has
-    several effects (P, M, V, w), the lowest K_D of them is used; an effect from
-    dead load alone is long-term (0.65) even in a standard-term combination. The schedule's
-    K_D column overrides all of this.
+    In a standard-term combination, each effect (P, M, V, w) that carries live
+    or snow load is tested: where its specified dead part X_lt exceeds its
+    standard-term part X_st, K_D = 1.0 − 0.50 log10(X_lt/X_st) ≥ 0.65
+    (5.3.2.3), and the lowest such value is the combination's K_D. An effect from
+    dead load alone does not set it: that effect is checked long-term (0.65)
+    in the dead-only combination, whose factor 1.4 against 1.25 makes it the
+    more severe case. The schedule's K_D replaces the computed value, except
+    that it never raises the K_D of a dead-only combination.
     """
-    if override is not None:
-        return override, "schedule K_D override", {}, ""
     cls = DURATION_CLASS[comb.principal]
     table = data.duration_factor(cls)
     used.append(table)
+    if override is not None:
+        if cls == "long" and override > table.value:
+            return table.value, (f"schedule K_D = {override:g} not applied: it would raise the long-term K_D of a "
+                                 "dead-only combination (Table 5.1)"), {}, ""
+        return override, f"schedule K_D override (computed: {cls}-term, Table 5.1)", {}, ""
     if cls != "standard":
         return table.value, f"{cls}-term ({comb.principal} principal), Table 5.1", {}, ""
     best: tuple[float, dict[str, float], str] = (table.value, {}, "")
     for effect in effects.present():
-        p_l = abs(effects.get(effect, "D"))
-        p_s = abs(sum(effects.get(effect, t) for t in STANDARD_TERM if comb.factors[t]))
-        if p_l > 0 and p_s == 0:
-            long_term = data.duration_factor("long")
-            used.append(long_term)
-            if long_term.value < best[0]:
-                best = (long_term.value, {}, effect)  # this effect is from dead load alone
-        elif p_s > 0 and p_l > p_s:
-            values = kd_permanent(P_L=p_l, P_S=p_s)
+        x_lt = abs(effects.get(effect, "D"))
+        x_st = abs(sum(effects.get(effect, t) for t in STANDARD_TERM if comb.factors[t]))
+        if x_st > 0 and x_lt > x_st:
+            values = kd_permanent(X_lt=x_lt, X_st=x_st)
             if values["K_D"] < best[0]:
                 best = (values["K_D"], values, effect)
     kd, values, effect = best
     if values:
-        return kd, f"standard-term, long-term part P_L > P_S (5.3.2.3, on {effect})", values, effect
-    if effect:
-        return kd, f"standard-term combination, but {effect} comes from dead load alone: long-term, Table 5.1", {}, ""
+        return kd, f"standard-term, long-term part X_lt > X_st (5.3.2.3, on {effect})", values, effect
     return kd, f"standard-term ({comb.principal} principal), Table 5.1", {}, ""
 
 

@@ -19,12 +19,15 @@ from pathlib import Path
 from typing import Any
 
 from .errors import JobError, ParameterError, ScheduleError
+from .loads import KD_OVERRIDE_RANGE
 from .materials import GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, sawn_table_grade
 from .sections import Section, parse_size, sawn_category
 from .units import UnitParseError, convert, parse_quantity
 
 LOAD_TYPES = ("D", "L", "S", "W", "E")
 MEMBER_TYPES = ("tension", "compression", "bending", "beam-column", "tension-bending")
+#: Types that bend: their compression edge can buckle sideways, so the row must say how it is held (Lu).
+BENDING_TYPES = ("bending", "beam-column", "tension-bending")
 MARK = re.compile(r"^[A-Za-z0-9._-]+$")
 EXTRA = "\x00extra"  # key marking a row with more cells than the header
 
@@ -60,7 +63,10 @@ def _columns() -> tuple[Column, ...]:
         Column("Ke", "number", default=1.0, minimum=0, strict=True),
         Column("Lx", "quantity", "m", "mm", minimum=0),  # 0 = braced about x over the length
         Column("Ly", "quantity", "m", "mm", minimum=0),  # 0 = braced about y (e.g. sheathing)
-        Column("Lu", "quantity", "m", "mm", default=0.0, minimum=0),
+        # required for the bending types (checked across cells): lateral support is never assumed
+        Column("Lu", "quantity", "m", "mm", minimum=0),
+        # the other edge, in compression when the moment reverses; blank = the full length between supports
+        Column("Lu_bottom", "quantity", "m", "mm", minimum=0),
         # lateral restraint beyond what Lu says (bending members): bridging or blocking at 8d, or both edges held
         Column("restraint", "choice", choices=("purlins", "blocking", "both-edges")),
         Column("net_area", "number", default=1.0, minimum=0, strict=True),
@@ -405,18 +411,53 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> li
         errs.append(ScheduleError(file, row, "net_area", f"{v['net_area']:g}",
                                   "leaves less than 75 % of the gross area; O86 does not allow designing on it",
                                   "a ratio from 0.75 to 1.0; reduce the holes or notches"))
-    for name in ("Lx", "Ly", "Lu"):
+    errs += _lateral_support_checks(file, row, v, given)
+    for name in ("Lx", "Ly", "Lu", "Lu_bottom"):
         if v[name] is not None and v[name] > v["length"] * (1 + 1e-9) and name in given:
             errs.append(ScheduleError(file, row, name, f"{v[name] / 1000:g} m", f"is longer than the member (length {v['length'] / 1000:g} m)",
                                       f"at most the length, {v['length'] / 1000:g} m"))
     for name in ("Lx", "Ly"):
         if v[name] is None:
             v[name] = v["length"]
-    if v["type"] in ("beam-column", "tension-bending") and "Lu" not in given:
-        v["Lu"] = v["length"]  # a column's compression edge is not held unless the row says so
+    low, high = KD_OVERRIDE_RANGE
+    if v["K_D"] is not None and not low <= v["K_D"] <= high:
+        errs.append(ScheduleError(file, row, "K_D", f"{v['K_D']:g}", "is outside the load-duration factors of "
+                                  f"O86 Table 5.1 ({low:g} long term to {high:g} short term)",
+                                  f"{low:g} to {high:g}, or blank to compute K_D per combination"))
     if v["K_H"] is not None and v["K_H"] > 1.4:
         errs.append(ScheduleError(file, row, "K_H", f"{v['K_H']:g}", "exceeds the largest system factor of O86 "
                                   "(1.4, Case 2 for bending and shear)", "1.0 to 1.4"))
+    return errs
+
+
+def _lateral_support_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> list[ScheduleError]:
+    """Lu and restraint must make one statement about how each edge is held (O86 6.5.4.2, 7.5.6.4)."""
+    if v["type"] not in BENDING_TYPES:
+        return []
+    if "Lu" not in given:
+        return [ScheduleError(file, row, "Lu", "", "is blank, but a member that bends must say how its compression "
+                              "edge is held (lateral support is never assumed)",
+                              "0 when decking, sheathing or joists fixed to it hold the compression edge "
+                              "continuously; else the distance between lateral supports in m (the length when "
+                              "nothing braces it)")]
+    errs = []
+    restraint, lu, lu_bottom = v["restraint"], v["Lu"], v["Lu_bottom"]
+    if restraint == "both-edges" and (lu > 0 or (lu_bottom or 0) > 0):
+        name = "Lu" if lu > 0 else "Lu_bottom"
+        errs.append(ScheduleError(file, row, name, f"{v[name] / 1000:g} m", "says an edge is unsupported over "
+                                  "that length, but restraint = both-edges says both edges are held in line",
+                                  "Lu = 0 and Lu_bottom = 0 (or blank) with both-edges; or another restraint"))
+    elif restraint == "both-edges":
+        v["Lu_bottom"] = 0.0  # the row states that the other edge is held too
+    elif restraint == "blocking" and lu > 0:
+        errs.append(ScheduleError(file, row, "restraint", restraint, f"describes decking on the compression edge "
+                                  f"plus bridging or blocking, but Lu = {lu / 1000:g} m says that edge is unsupported "
+                                  "over that length", "Lu = 0 with blocking; or purlins, or blank"))
+    elif restraint == "purlins" and not 0 < lu < v["length"]:
+        errs.append(ScheduleError(file, row, "restraint", restraint, f"describes the compression edge held at "
+                                  f"purlins or tie rods, but Lu = {lu / 1000:g} m says "
+                                  f"{'it is held continuously' if lu == 0 else 'nothing braces it between the supports'}",
+                                  "with purlins, Lu = the purlin spacing (more than 0, less than the length)"))
     return errs
 
 

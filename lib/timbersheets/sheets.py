@@ -17,7 +17,7 @@ from .calc import format_number, format_value, unit_latex, unit_text
 from .checks import CheckResult
 from .data import DataSet
 from .design import MemberDesign, design_member
-from .loads import EFFECT_UNITS, EFFECTS, LOAD_TYPES, kd_permanent
+from .loads import EFFECT_UNITS, EFFECTS, KD_SYMBOLS, LOAD_TYPES, kd_permanent
 from .schedule import Member
 from .symbols import ACTION_WORDS, meaning, symbol_latex, symbol_unit
 from .tex import Cell, Table, escape, md_escape
@@ -209,16 +209,23 @@ class Sheet:
         intro = para(f"ULS load combinations of NBC {escape(self.codes.get('nbc', '2020'))} Table 4.1.3.2.-A, "
                      "each principal load with and without its companion loads; 0.9D only where a load acts "
                      "against the dead load; combinations that repeat another are left out. "
-                     "$K_D$ by the duration class of the principal load (CSA O86:19 5.3.2, Table 5.1).",
-                     "ULS load combinations of NBC Table 4.1.3.2.-A; K_D by the principal load (CSA O86 5.3.2).")
+                     "$K_D$ by the duration class of the principal load (CSA O86:19 5.3.2, Table 5.1), one value "
+                     "for every resistance of the combination. In a live- or snow-principal combination, each "
+                     "effect that carries live or snow load is tested by 5.3.2.3 and the lowest value is used; an "
+                     "effect from dead load alone is checked long-term in the dead-only combination (1.4D with "
+                     "0.65 is the more severe case).",
+                     "ULS load combinations of NBC Table 4.1.3.2.-A; K_D by the principal load (CSA O86 5.3.2), one "
+                     "value per combination.")
         out = heading("Load combinations") + intro + table(
             Table(header, rows, "rl" + "r" * len(effects) + "rX", units))
         for case in d.cases:
             if case.kd_values:
                 unit = EFFECT_UNITS[case.kd_effect]
-                latex = kd_permanent.latex(case.kd_values, units={"P_L": unit, "P_S": unit})
+                latex = kd_permanent.latex(case.kd_values, units={"X_lt": unit, "X_st": unit})
+                words = "; ".join(f"${symbol_latex(k)}$ is {v}" for k, v in KD_SYMBOLS.items())
                 out += para(f"For {escape(case.label)} the long-term (dead) part exceeds the standard-term part, "
-                            f"so (CSA O86:19 5.3.2.3, on ${case.kd_effect}$):")
+                            f"so (CSA O86:19 5.3.2.3, on ${case.kd_effect}$; {words}; O86's own letters for "
+                            "these are those of the schedule's live and snow load columns, hence new names):")
                 out += math_block(latex)
         if self.m.type == "bending":
             from .beamsheet import forces_block
@@ -377,7 +384,7 @@ def caption_latex(text: str) -> str:
 
 def basis_cell(basis: str) -> Cell:
     """The K_D basis with its symbols set as maths."""
-    latex = escape(basis).replace(r"P\_L \textgreater{} P\_S", "$P_L > P_S$")
+    latex = escape(basis).replace(r"X\_lt \textgreater{} X\_st", "$X_{lt} > X_{st}$")
     return Cell(latex, md_escape(basis))
 
 

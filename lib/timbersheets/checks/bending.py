@@ -10,10 +10,12 @@ meets the rule for the restraint the row describes (Lu = 0: compression edge
 held by decking or joists; 0 < Lu < span: held at intervals by purlins or tie
 rods; Lu = span: no intermediate support); otherwise K_L is computed from
 C_B = √(L_e d / b²) ≤ 50 with L_e from Lu. Glulam: K_L = 1.0 for Lu = 0,
-computed otherwise. Under negative moment (uplift) the bottom edge is in
-compression; no row describes its restraint, so it is taken as laterally
-unsupported over the whole span. The ends are assumed held in position and
-against rotation at the bearings.
+computed otherwise. Under negative moment (uplift, hogging, suction) the bottom
+edge is in compression and ``Lu_bottom`` gives its unsupported length; blank,
+it is the whole length between supports. ``restraint = purlins`` and
+``blocking`` describe the top edge; ``both-edges`` holds both (Lu = Lu_bottom =
+0). The ends are assumed held in position and against rotation at the
+bearings.
 
 Clause numbers follow the O86-14 numbering (memory, unverified); the K_L and
 K_Zbg forms and the depth-to-width rules are from memory (reference notes
@@ -117,10 +119,22 @@ def sawn_size_factors(m) -> tuple[Datum, Datum]:
     return kzb, kzv
 
 
-def _restraint_rule(m, L_u: float) -> tuple[str, Datum] | None:
-    """The loosest depth-to-width rule the restraint meets, or None (compute K_L)."""
+def unsupported_length(member, negative: bool) -> float:
+    """L_u of the edge in compression (mm): Lu for the top edge; under negative moment the bottom edge,
+    Lu_bottom, or the full length between supports when the row leaves it blank (never assumed braced)."""
+    if not negative:
+        return member.Lu
+    return member.length if member.Lu_bottom is None else member.Lu_bottom
+
+
+def _restraint_rule(m, L_u: float, negative: bool) -> tuple[str, Datum] | None:
+    """The loosest depth-to-width rule the restraint meets, or None (compute K_L).
+
+    purlins and blocking describe the top edge; under negative moment only both-edges still applies."""
     ratio = m.section.d / m.section.b
     extra = m.member.values.get("restraint")
+    if negative and extra != "both-edges":
+        extra = None
     if extra == "both-edges":
         actual = "both-edges"
     elif L_u == 0:
@@ -137,17 +151,38 @@ def _restraint_rule(m, L_u: float) -> tuple[str, Datum] | None:
     return None
 
 
+def _restraint_hint(given: str) -> str:
+    """What the row could say instead: only restraints looser than the one it already states."""
+    options = {"decking": "restraint = blocking if there is bridging or blocking at no more than 8d; ",
+               "blocking": ""}.get(given, None)
+    if options is None:
+        return "Use a wider or built-up member"
+    return (f"{options}restraint = both-edges if both edges are held in line; else give the distance between "
+            "lateral supports as Lu to compute K_L, or use a wider or built-up member")
+
+
+def bottom_edge_words(member) -> str:
+    """How the row holds the bottom edge, in words for the sheet."""
+    if member.restraint == "both-edges":
+        return "restraint = both-edges holds it in line (L_u = 0)"
+    if member.Lu_bottom is None:
+        return (f"Lu_bottom is not given, so it is taken as laterally unsupported over the full length between "
+                f"supports, L_u = {member.length / 1000:g} m")
+    if member.Lu_bottom == 0:
+        return "Lu_bottom = 0: held continuously"
+    return f"held at intervals of Lu_bottom = {member.Lu_bottom / 1000:g} m"
+
+
 def lateral_stability(m, F_b: float, negative: bool, line_loads: bool) -> tuple[float, list[Step], str]:
     """K_L under one combination, its steps, and the words that explain it."""
     s, member = m.section, m.member
-    L_u = m.length if negative else member.Lu
-    edge = ("Negative moment: the bottom edge is in compression and is taken as laterally unsupported over the "
-            "span, L_u = L. " if negative else "")
+    L_u = unsupported_length(member, negative)
+    edge = f"Negative moment: the bottom edge is in compression; {bottom_edge_words(member)}. " if negative else ""
     ratio = s.d / s.b
     if m.glulam and L_u == 0:
-        return 1.0, [], "Lateral stability: compression edge held continuously (L_u = 0), so K_L = 1.0."
+        return 1.0, [], f"{edge}Lateral stability: compression edge held continuously (L_u = 0), so K_L = 1.0."
     if not m.glulam:
-        rule = _restraint_rule(m, L_u)
+        rule = _restraint_rule(m, L_u, negative)
         if rule is not None:
             given = ("both edges held in line (schedule: restraint = both-edges)" if rule[0] == "both-edges" else
                      "the compression edge held in line by purlins or tie rods (schedule: restraint = purlins)"
@@ -161,15 +196,13 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool) -> tuple[
                      f"limit with {rule[1].label.split(', ', 1)[1]}; the member has {given}, so K_L = 1.0.")
             return 1.0, [], edge + words
         if L_u == 0:
-            given = member.values.get("restraint") or "decking"
+            given = member.values.get("restraint") if not negative or member.restraint == "both-edges" else None
+            given = given or "decking"
             limit = next(d.value for n, d in m.data.lateral_restraints() if n == given)
             words = {"decking": "the compression edge held by decking or joists alone",
                      "blocking": "decking plus bridging or blocking at 8d"}.get(given, "both edges held")
             raise DesignError(m.mark, f"d/b = {ratio:.2f} exceeds {limit:g}, the most the depth-to-width rule "
-                              f"allows with {words}", STABILITY_CLAUSE["sawn"],
-                              "If there is bridging or blocking at no more than 8d, give restraint = blocking; if "
-                              "both edges are held, restraint = both-edges; else give Lu to compute K_L, or use a "
-                              "wider or built-up member")
+                              f"allows with {words}", STABILITY_CLAUSE["sawn"], _restraint_hint(given))
     k_le = m.data.bending_effective_length("simple-udl" if line_loads else "other")
     m.used.append(k_le)
     slender = lateral_slenderness(K_Le=k_le.value, L_u=L_u, d=s.d, b=s.b, E_05=m.f["E05"],
@@ -179,8 +212,12 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool) -> tuple[
         raise DesignError(m.mark, f"slenderness C_B = {C_B:.1f} exceeds {CB_MAX:g}",
                           STABILITY_CLAUSE["glulam" if m.glulam else "sawn"],
                           "Brace the compression edge (shorter Lu) or choose a wider section")
+    held = ""
+    if m.glulam and member.restraint == "purlins" and not negative:
+        held = ("; restraint = purlins: the compression edge is held at the purlins, so L_u is their spacing (the "
+                "depth-to-width rule is for sawn lumber; glulam computes K_L)")
     steps = [Step(lateral_slenderness, slender, f"{edge}Lateral stability, laterally unsupported length "
-                  f"L_u = {L_u / 1000:g} m ({'uniform load on a simple span' if line_loads else 'any loading'})")]
+                  f"L_u = {L_u / 1000:g} m ({'uniform load on a simple span' if line_loads else 'any loading'}){held}")]
     if C_B <= CB_STOCKY:
         return 1.0, steps, f"C_B = {C_B:.2f} ≤ {CB_STOCKY:g}, so K_L = 1.0."
     if C_B <= C_K:
