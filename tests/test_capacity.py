@@ -155,3 +155,51 @@ def test_kd_formula_symbols_are_not_the_schedule_columns(tmp_path, data):
     assert "X_{lt}" in block and "X_{st}" in block and "long-term (dead-load) part" in block
     formula = block[block.index("long-term (dead) part exceeds"):]
     assert "P_L" not in formula and "P_{L}" not in formula and "P_S" not in formula
+
+
+# ----------------------------------------------------------------------------- own weight
+GLULAM_BEAM = dict(type="bending", Ly="", P_D="", Lu="0", material="glulam", species="Spruce-Pine", grade="20f-E",
+                   size="130x456", length="6.0", w_D="3.0", w_S="7.0", bearing="100", self_weight="yes")
+
+
+def test_own_weight_of_a_glulam_beam_hand_calculation(tmp_path, data):
+    # Hand calculation with data/densities.csv (Spruce-Pine glulam, dry: 524 kg/m³, memory-unverified):
+    #   w_sw = 524 kg/m³ · 9.81 N/kg · (0.130·0.456) m² = 0.3047 kN/m
+    #   1.25D + 1.5S: w_f = 1.25·(3.0 + 0.3047) + 1.5·7.0 = 14.631 kN/m;  M_f = 14.631·6.0²/8 = 65.84 kN·m
+    assert data.density("glulam", "Spruce-Pine", "dry").value == 524
+    d = design_row(tmp_path, data, **GLULAM_BEAM)
+    assert d.context.own_weight.value == pytest.approx(0.3047, abs=0.0002)
+    c = next(c for c in d.checks if c.check == "bending" and c.combination == "1.25D + 1.5S")
+    assert c.demand == pytest.approx(65.84, abs=0.02)
+    assert any("rho glulam Spruce-Pine dry" in w for w in d.data_warnings)
+    text = Sheet(d, data, CODES).loads_section().latex
+    assert "Own weight (in D)" in text and "w_{sw}" in text and "524" in text
+
+
+def test_self_weight_no_leaves_the_dead_load_as_given(tmp_path, data):
+    # Hand calculation: 1.25·3.0 + 1.5·7.0 = 14.25 kN/m;  M_f = 14.25·36/8 = 64.13 kN·m
+    d = design_row(tmp_path, data, **dict(GLULAM_BEAM, self_weight="no"))
+    c = next(c for c in d.checks if c.check == "bending" and c.combination == "1.25D + 1.5S")
+    assert c.demand == pytest.approx(64.13, abs=0.01) and d.context.own_weight is None
+    assert "includes the member's own weight (self\\_weight = no)" in Sheet(d, data, CODES).loads_section().latex
+
+
+def test_own_weight_of_a_column_is_axial_at_the_base(tmp_path, data):
+    # Hand calculation (data/densities.csv: S-P-F sawn, dry, 500 kg/m³): 140x140, L = 3.0 m
+    #   w_sw = 500·9.81·0.140² = 96.1 N/m;  P_sw = 96.1·3.0 = 0.288 kN;  1.4D: P_f = 1.4·(5 + 0.288) = 7.40 kN
+    d = design_row(tmp_path, data, size="140x140", grade="No.2", Ly="", self_weight="yes")
+    assert d.context.own_weight.effect == "P"
+    assert d.context.own_weight.value == pytest.approx(288.4, abs=0.5)
+    assert next(c for c in d.checks if c.combination == "1.4D").demand == pytest.approx(7.40, abs=0.01)
+
+
+def test_a_sized_purlin_that_passed_only_without_own_weight_takes_the_next_section(tmp_path, data):
+    # Hand calculation. S-P-F No.1/No.2 purlin, K_H 1.1, L = 3.2 m, D 0.46 / S 1.16 kN/m, decked.
+    # Without own weight 38x184 passes: 1.25D + 1.5S gives w_f = 2.315 kN/m, M_f = 2.315·3.2²/8 = 2.963 kN·m,
+    # at utilization 0.986 (M_r = 3.006 kN·m). Its own weight, 500·9.81·0.038·0.184 = 0.0343 kN/m, adds
+    # 1.25·0.0343 = 0.0429 kN/m: M_f = 2.358·1.28 = 3.018 kN·m > 3.006 kN·m, so the search moves on to 38x235.
+    row = dict(PURLIN, size="auto", Lu="0", bearing="64")
+    without = design_row(tmp_path, data, **dict(row, self_weight="no"))
+    with_weight = design_row(tmp_path, data, **dict(row, self_weight="yes"))
+    assert without.size == "38x184" and without.governing.utilization == pytest.approx(0.986, abs=0.001)
+    assert with_weight.size == "38x235" and with_weight.status == "pass"

@@ -11,6 +11,7 @@ from .analysis import loading_mode, member_forces, service_cases
 from .calc import format_number, format_value
 from .checks.bending import bottom_edge_words
 from .errors import TimbersheetsError
+from .ownweight import gives_line_loads
 from .sheets import Block, heading, para, q, table
 from .tex import Cell, Table, escape
 from .units import to_display
@@ -102,12 +103,12 @@ def forces_block(design) -> Block:
 
 def serviceability_block(design, data) -> Block:
     """The SLS combinations used for deflection, with their sources."""
-    m = design.member
     out = heading("Serviceability combinations", 2)
     if design.errors or design.context is None:
         return Block("", "")
+    m = design.context.member  # with its own weight in the dead load
     mode = loading_mode(m)
-    cases = service_cases(m, data) if any(m.values[f"w_{t}"] for t in "DLSWE") else []
+    cases = service_cases(m, data) if gives_line_loads(m, design.context.own_weight) else []
     if not cases and mode == "forces":
         return out + para("Deflection is not checked: the row gives the moments and shears of a frame model, not "
                           "the loads that cause them. Check deflection in the frame model, or give the line loads "

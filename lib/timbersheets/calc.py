@@ -133,12 +133,15 @@ _UNIT_LATEX = {
     "mm**3": r"\mathrm{mm}^{3}",
     "mm**4": r"\mathrm{mm}^{4}",
     "m**3": r"\mathrm{m}^{3}",
+    "kN/m**3": r"\mathrm{kN/m}^{3}",
+    "kg/m**3": r"\mathrm{kg/m}^{3}",
     "N": r"\mathrm{N}",
     "N*mm": r"\mathrm{N{\cdot}mm}",
     "N/mm": r"\mathrm{N/mm}",
 }
 
-_UNIT_TEXT = {"kN*m": "kN·m", "mm**2": "mm²", "mm**3": "mm³", "mm**4": "mm⁴", "m**3": "m³"}
+_UNIT_TEXT = {"kN*m": "kN·m", "mm**2": "mm²", "mm**3": "mm³", "mm**4": "mm⁴", "m**3": "m³", "kN/m**3": "kN/m³",
+              "kg/m**3": "kg/m³"}
 
 
 def unit_latex(u: str) -> str:

@@ -22,6 +22,7 @@ from .data import DataSet, Datum, Recorded
 from .errors import DesignError, TimbersheetsError
 from .loads import EFFECTS, LOAD_TYPES, Effects, LoadCase, apply_combinations
 from .materials import Strengths, strengths
+from .ownweight import OwnWeight, gives_line_loads, own_weight, with_own_weight
 from .schedule import Member, RowError
 from .sections import Section, service_category
 from .sizing import Sizing, size
@@ -43,6 +44,7 @@ class Context:
     used: list[Datum] = field(default_factory=list)
     K_Zt: float = 1.0
     data: DataSet | None = None  # for the lookups a check makes itself (size factors, restraint rules)
+    own_weight: OwnWeight | None = None  # included in member's dead load (member is then the loaded copy)
 
     @property
     def mark(self) -> str:
@@ -101,15 +103,26 @@ def effects_of(member: Member) -> Effects:
 
 
 def build_context(member: Member, data: DataSet, section: Section | None = None) -> Context:
-    """Look up strengths and factors for `member` (or for `section` while sizing)."""
+    """Look up strengths and factors for `member` (or for `section` while sizing).
+
+    The context's member is the schedule's member with its own weight added to the dead load
+    (unless the row gives self_weight = no): the weight depends on the section."""
     section = section or member.section
     used: list[Datum] = []
+    weight = own_weight(member, section, data)
+    member = with_own_weight(member, weight)
+    if weight is not None:
+        used.append(weight.density)
     f = strengths(data, member.material, member.species, member.grade, section)
     category = "all" if member.material == "glulam" else service_category(section)
     K_S = {p: data.service_factor(member.material, category, p, member.service) for p in SERVICE_PROPERTIES}
     phi = {a: data.resistance_factor(a) for a in ("tension", "compression", "bending", "shear", "bearing")}
     ctx = Context(member, section, f, Recorded(f.values, used), Recorded(K_S, used), Recorded(phi, used), used,
-                  data=data)
+                  data=data, own_weight=weight)
+    if weight is not None and weight.effect == "w" and any(member.values[f"{e}_{t}"] for e in "MV" for t in LOAD_TYPES):
+        ctx.notes.append("own weight is not added to the frame model's moments and shears (the tool cannot place "
+                         "it in that model): include it in M_D and V_D; it is included in the line loads used for "
+                         "deflection")
     if member.material == "sawn" and member.type in ("tension", "tension-bending"):  # K_Zt: tension only
         kzt = data.size_factor_sawn("K_Zt", section.smaller, section.larger)
         ctx.K_Zt = kzt.value
@@ -151,7 +164,7 @@ def _bending(ctx: Context, cases: list[LoadCase]) -> list[CheckResult]:
         if bearing is not None:
             strength["bearing"].append(bearing)
     out = [c for name in ("bending", "shear", "bearing") for c in strength[name]]
-    if any(ctx.member.values[f"w_{t}"] for t in LOAD_TYPES):
+    if gives_line_loads(ctx.member, ctx.own_weight):
         out += [check_deflection(ctx, sc) for sc in service_cases(ctx.member, ctx.data)]
     if not out:
         raise DesignError(ctx.mark, "carries no bending moment or shear under any combination")
@@ -238,7 +251,7 @@ def design_member(member: Member, data: DataSet) -> MemberDesign:
         if member.size == "auto":
             section = _sized_section(member, data, kind, outcome)
         ctx = build_context(member, data, section)
-        cases = apply_combinations(effects_of(member), data, ctx.used, member.K_D)
+        cases = apply_combinations(effects_of(ctx.member), data, ctx.used, member.K_D)
         outcome.context, outcome.cases = ctx, cases
         outcome.checks = kind.design(ctx, cases)
     except TimbersheetsError as exc:

@@ -78,6 +78,8 @@ def _columns() -> tuple[Column, ...]:
         Column("defl_L", "number", default=360.0, minimum=0, strict=True),
         Column("defl_total", "number", default=240.0, minimum=0, strict=True),
         Column("K_D", "number", minimum=0, strict=True),
+        # yes: the tool adds the member's own weight to D; no: the row's dead load already includes it
+        Column("self_weight", "choice", default="yes", choices=("yes", "no")),
         Column("width", "quantity", "mm", "mm", minimum=0, strict=True),
         Column("max_depth", "quantity", "mm", "mm", minimum=0, strict=True),
         Column("prefer", "choice", choices=("deep", "square")),

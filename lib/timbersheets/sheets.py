@@ -170,7 +170,8 @@ class Sheet:
 
     # 2 -------------------------------------------------------------------------
     def present_effects(self) -> list[str]:
-        m = self.m
+        ctx = self.design.context
+        m = ctx.member if ctx else self.m  # with the own weight the tool adds
         return [e for e in EFFECTS if any(m.values[f"{e}_{t}"] for t in LOAD_TYPES)]
 
     def loads_section(self) -> Block:
@@ -186,14 +187,44 @@ class Sheet:
                 continue
             rows.append([LOAD_NAMES[t], Cell.math(t), *[q(m.values[f"{e}_{t}"], EFFECT_UNITS[e]) for e in effects],
                          DURATION_CLASS[t] + " term"])
+            if t == "D":
+                rows += self.own_weight_rows(effects)
         sense = ("Line loads act downward on the span, negative values upward (uplift); moments and shears are "
                  "the frame model's, by load type." if m.type == "bending" else
                  "Positive axial force acts in the member's own sense (tension for a tension member, compression "
                  "otherwise).")
-        intro = para("Specified loads from the schedule, including importance factors and the member's own "
-                     "weight (the tool adds none), by load type (NBC "
-                     f"{escape(self.codes.get('nbc', '2020'))} Part 4). {sense}")
-        return heading("Specified loads") + intro + table(Table(header, rows, "ll" + "r" * len(effects) + "l", units))
+        weight = self.design.context.own_weight if self.design.context else None
+        own = ("The tool adds the member's own weight to the dead load D, as its own line (worked below); "
+               "every combination's D includes it." if weight else
+               "The schedule's dead load includes the member's own weight (self_weight = no); the tool adds none.")
+        intro = para("Specified loads from the schedule, including importance factors, by load type (NBC "
+                     f"{escape(self.codes.get('nbc', '2020'))} Part 4). {escape(own)} {sense}")
+        out = heading("Specified loads") + intro + table(Table(header, rows, "ll" + "r" * len(effects) + "l", units))
+        return out + self.own_weight_block(weight)
+
+    def own_weight_rows(self, effects: list[str]) -> list[list[object]]:
+        weight = self.design.context.own_weight if self.design.context else None
+        if weight is None or weight.effect not in effects:
+            return []
+        cells = [q(weight.value, EFFECT_UNITS[e]) if e == weight.effect else "" for e in effects]
+        return [["Own weight (in D)", Cell.math("D"), *cells, "long term"]]
+
+    def own_weight_block(self, weight) -> Block:
+        if weight is None:
+            return Block("", "")
+        from .ownweight import own_weight_line, own_weight_total
+
+        d = weight.density
+        where = ("a uniform line load on the span" if weight.effect == "w" else
+                 "axial load at the base: the whole weight, on the safe side of the weight above the critical section")
+        out = para(f"Own weight, as {escape(where)}; density $\rho$ of {escape(self.m.material)} "
+                   f"{escape(self.m.species)} in {escape(self.m.service)} service from densities.csv "
+                   f"({escape(d.table or 'table number not recorded')}; {escape(d.source)}; {escape(d.status)}); "
+                   "$g$ = 9.81 N/kg:")
+        out += math_block(own_weight_line.latex(weight.line))
+        if weight.total is not None:
+            out += math_block(own_weight_total.latex(weight.total))
+        return out
 
     # 3 -------------------------------------------------------------------------
     def combinations_section(self) -> Block:

@@ -98,8 +98,12 @@ def evaluate(member: Member, data: DataSet, section: Section, cases, design) -> 
     """The governing utilization of `member` with `section` (fast path, no rendering)."""
     from .design import build_context
 
+    from .design import effects_of
+
     try:
         ctx = build_context(member, data, section)
+        if ctx.own_weight is not None:  # the weight, and so the combinations, change with the section
+            cases = apply_combinations(effects_of(ctx.member), data, [], member.K_D)
         checks = design(ctx, cases)
     except DesignError as exc:
         return Candidate(section, math.inf, exc.problem)
