@@ -203,3 +203,48 @@ def test_a_sized_purlin_that_passed_only_without_own_weight_takes_the_next_secti
     with_weight = design_row(tmp_path, data, **dict(row, self_weight="yes"))
     assert without.size == "38x184" and without.governing.utilization == pytest.approx(0.986, abs=0.001)
     assert with_weight.size == "38x235" and with_weight.status == "pass"
+
+
+# ----------------------------------------------------------------------------- wind both ways
+CANOPY = dict(type="bending", Ly="", P_D="", material="glulam", species="D.Fir-L", grade="24f-E", size="175x456",
+              service="wet", length="8.4", Lu="1.2", Lu_bottom="2.8", bearing="152", w_D="2.65", w_S="5.7",
+              w_W="-3.6")
+
+
+def test_canopy_beam_is_checked_under_uplift_and_downward_wind(tmp_path, data):
+    # Hand calculation. w_W = −3.6 kN/m is the uplift the schedule gives; the reversed sense presses down.
+    #   0.9D + 1.4W:  w_f = 0.9·2.65 − 1.4·3.6 = −2.655 kN/m;  M_f = −2.655·8.4²/8 = −23.42 kN·m (bottom edge)
+    #   1.25D − 1.4W: w_f = 1.25·2.65 + 1.4·3.6 = 8.353 kN/m;   M_f = 8.353·8.4²/8 = 73.67 kN·m (top edge)
+    d = design_row(tmp_path, data, **CANOPY)
+    up, down = bending_under(d, "0.9D + 1.4W"), bending_under(d, "1.25D − 1.4W")
+    assert up.demand == pytest.approx(-23.42, abs=0.02) and down.demand == pytest.approx(73.67, abs=0.02)
+    assert up.K_D == down.K_D == pytest.approx(1.15)
+    captions = " ".join(s.caption for s in up.steps)
+    assert "Lu_bottom = 2.8 m" in captions
+    one_way = design_row(tmp_path, data, **dict(CANOPY, wind_sense="one-way"))
+    assert not any("−" in c.combination for c in one_way.checks)
+
+
+def test_wall_stud_under_wind_both_ways(tmp_path, data):
+    # Hand calculation. Sheathed stud (both faces held: restraint = both-edges), w_W = 0.47 kN/m:
+    #   1.25D + 1.4W + 0.5S: M_f = +1.4·0.47·3.0²/8 = +0.740 kN·m;  1.25D − 1.4W + 0.5S: M_f = −0.740 kN·m
+    #   the same P_f = 1.25·2.2 + 0.5·3.9 = 4.70 kN, so both interaction values are the same, 0.356
+    #   (tests/test_combined.py, hand calculation, with K_L = 1.0 for both edges).
+    d = design_row(tmp_path, data, type="beam-column", size="38x140", K_H="1.1", length="3.0", Ly="0", Lu="0",
+                   restraint="both-edges", P_D="2.2", P_L="1.8", P_S="3.9", w_W="0.47")
+    plus = next(c for c in d.checks if c.check == "interaction" and c.combination == "1.25D + 1.4W + 0.5S")
+    minus = next(c for c in d.checks if c.check == "interaction" and c.combination == "1.25D − 1.4W + 0.5S")
+    assert bending_under(d, "1.25D + 1.4W + 0.5S").demand == pytest.approx(0.740, abs=0.001)
+    assert bending_under(d, "1.25D − 1.4W + 0.5S").demand == pytest.approx(-0.740, abs=0.001)
+    assert minus.demand == pytest.approx(plus.demand, rel=1e-6) and plus.demand == pytest.approx(0.356, abs=0.001)
+
+
+def test_tension_brace_under_reversing_wind_says_tension_only(tmp_path, data):
+    # Common practice: an X-brace diagonal is tension-only. P_D 0.5, P_W 18.5 kN, both senses:
+    #   1.25D + 1.4W: T_f = 0.625 + 25.9 = 26.5 kN (checked);  0.9D − 1.4W: 0.45 − 25.9 = −25.45 kN (compression)
+    d = design_row(tmp_path, data, type="tension", material="sawn", species="D.Fir-L", grade="No.1", size="89x140",
+                   service="wet", length="5.4", Ly="", net_area="0.85", P_D="0.5", P_W="18.5")
+    assert {c.check for c in d.checks} == {"tension"}
+    assert next(c for c in d.checks if c.combination == "1.25D + 1.4W").demand == pytest.approx(26.5, abs=0.05)
+    note = next(w for w in d.warnings if w.startswith("tension-only"))
+    assert "0.9D − 1.4W" in note and "compression is not checked" in note

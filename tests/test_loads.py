@@ -49,7 +49,7 @@ def test_dead_dominant_reduces_kd(data):
 
 def test_wind_is_short_term_and_reduced_dead_only_when_it_resists(data):
     # O86 Table 5.1: wind principal → short term, K_D = 1.15. NBC 4.1.3.2.(5): 0.9D where D resists.
-    same_sign = apply_combinations(effects(D=5, W=10), data, [])
+    same_sign = apply_combinations(effects(D=5, W=10), data, [], both_senses=False)
     assert all(not c.combination.reduced_dead for c in same_sign)
     wind = next(c for c in same_sign if c.label == "1.25D + 1.4W")
     assert wind.K_D == pytest.approx(1.15)
@@ -57,6 +57,18 @@ def test_wind_is_short_term_and_reduced_dead_only_when_it_resists(data):
     assert "0.9D + 1.4W" in [c.label for c in uplift]
     reduced = next(c for c in uplift if c.label == "0.9D + 1.4W")
     assert reduced.factored["P"] == pytest.approx(0.9 * 5000 - 1.4 * 10_000)
+
+
+def test_wind_and_earthquake_act_both_ways(data):
+    # Common practice (NBC 4.1.3.2: wind pressure and suction, earthquake in either direction): every
+    # combination with W or E is also applied reversed, with 0.9D where the reversed load opposes D.
+    cases = {c.label: c for c in apply_combinations(effects(D=5, W=10, E=4), data, [])}
+    assert cases["1.25D − 1.4W"].factored["P"] == pytest.approx(1.25 * 5000 - 1.4 * 10_000)
+    assert cases["0.9D − 1.4W"].factored["P"] == pytest.approx(0.9 * 5000 - 1.4 * 10_000)
+    assert cases["1.0D − 1.0E"].factored["P"] == pytest.approx(5000 - 4000)
+    assert cases["1.25D + 1.4W"].K_D == cases["1.25D − 1.4W"].K_D == pytest.approx(1.15)
+    one_way = [c.label for c in apply_combinations(effects(D=5, W=10, E=4), data, [], both_senses=False)]
+    assert not any("−" in label for label in one_way)
 
 
 def test_no_zero_or_duplicate_combinations(data):

@@ -17,7 +17,7 @@ from .checks.compression import check_compression
 from .checks.deflection import check_deflection
 from .checks.shear import check_shear
 from .checks.tension import check_tension
-from .combined import design_beam_column, design_tension_bending, refuse_reversal
+from .combined import design_beam_column, design_tension_bending, refuse_reversal, tension_only
 from .data import DataSet, Datum, Recorded
 from .errors import DesignError, TimbersheetsError
 from .loads import EFFECTS, LOAD_TYPES, Effects, LoadCase, apply_combinations
@@ -139,7 +139,10 @@ def _axial(sense: str) -> Callable[[Context, list[LoadCase]], list[CheckResult]]
             raise DesignError(ctx.mark, "built-up (multi-ply) columns need the rules for nailed or bolted "
                               "built-up columns, which this version does not implement", "O86:19 6.5.6.4",
                               "Design it as a solid section or by hand")
-        refuse_reversal(ctx, cases, sense)
+        if sense == "tension":
+            cases = tension_only(ctx, cases)
+        else:
+            refuse_reversal(ctx, cases, sense)
         out = [check(ctx, case, case.factored["P"]) for case in cases if case.factored["P"] > EPS]
         if not out:
             raise DesignError(ctx.mark, "carries no axial force", "", "Give the axial loads P_D … P_E")
@@ -251,7 +254,8 @@ def design_member(member: Member, data: DataSet) -> MemberDesign:
         if member.size == "auto":
             section = _sized_section(member, data, kind, outcome)
         ctx = build_context(member, data, section)
-        cases = apply_combinations(effects_of(ctx.member), data, ctx.used, member.K_D)
+        cases = apply_combinations(effects_of(ctx.member), data, ctx.used, member.K_D,
+                                    member.wind_sense != "one-way")
         outcome.context, outcome.cases = ctx, cases
         outcome.checks = kind.design(ctx, cases)
     except TimbersheetsError as exc:

@@ -7,7 +7,7 @@ moment M, shear V and line load w, each given per load type D, L, S, W, E.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from math import log10
 
 from .calc import calc
@@ -19,6 +19,8 @@ EFFECT_UNITS = {"P": "N", "M": "N*mm", "V": "N", "w": "N/mm"}
 #: Duration class of each load type (CSA O86 5.3.2; Table 5.1 examples).
 DURATION_CLASS = {"D": "long", "L": "standard", "S": "standard", "W": "short", "E": "short"}
 STANDARD_TERM = ("L", "S")
+#: Loads that act in either sense (wind pressure and suction, earthquake both ways).
+REVERSIBLE = ("W", "E")
 
 
 @dataclass(frozen=True)
@@ -36,13 +38,24 @@ class Combination:
     def label(self) -> str:
         """E.g. ``1.25D + 1.5S + 1.0L``: dead load, the principal load, then companions."""
         order = list(dict.fromkeys(["D", self.principal, *LOAD_TYPES]))
-        parts = []
+        out = ""
         for t in order:
             factor = self.factors[t]
             if factor:
-                text = f"{factor:.2f}".rstrip("0")
-                parts.append(f"{text}0{t}" if text.endswith(".") else f"{text}{t}")
-        return " + ".join(parts)
+                text = f"{abs(factor):.2f}".rstrip("0")
+                text = f"{text}0{t}" if text.endswith(".") else f"{text}{t}"
+                out += (" − " if factor < 0 else " + ") + text if out else ("−" if factor < 0 else "") + text
+        return out
+
+    @property
+    def reversed_loads(self) -> tuple[str, ...]:
+        """The load types this combination applies in the sense opposite to the schedule's."""
+        return tuple(t for t in LOAD_TYPES if self.factors[t] < 0)
+
+    def reversed(self) -> "Combination":
+        """The same combination with wind and earthquake acting in the opposite sense."""
+        factors = {t: -f if t in REVERSIBLE else f for t, f in self.factors.items()}
+        return replace(self, factors=factors)
 
     @property
     def reduced_dead(self) -> bool:
@@ -147,22 +160,36 @@ def load_duration(comb: Combination, effects: Effects, data: DataSet, used: list
     return kd, f"standard-term ({comb.principal} principal), Table 5.1", {}, ""
 
 
+def _senses(comb: Combination, effects: Effects, both_senses: bool) -> list[Combination]:
+    """The combination as the schedule gives it, and reversed when it carries wind or earthquake."""
+    carries = any(comb.factors[t] and effects.get(e, t) for t in REVERSIBLE for e in EFFECTS)
+    return [comb, comb.reversed()] if both_senses and carries else [comb]
+
+
+def _opposes_dead(comb: Combination, effects: Effects) -> bool:
+    """Some load of this combination (in its sense) acts against the dead load (NBC 4.1.3.2.(5))."""
+    return any(effects.get(e, "D") * comb.factors[t] * effects.get(e, t) < 0 for e in EFFECTS for t in LOAD_TYPES[1:])
+
+
 def apply_combinations(effects: Effects, data: DataSet, used: list[Datum],
-                       override: float | None = None) -> list[LoadCase]:
+                       override: float | None = None, both_senses: bool = True) -> list[LoadCase]:
     """Every combination that matters for the member, with factored effects and K_D.
 
-    Skipped: combinations whose principal load the member does not carry, the
-    0.9D alternatives unless some load acts against the dead load, combinations
-    whose factored effects are all zero, and duplicates (same effects and K_D)
-    of a combination listed before.
+    Wind and earthquake act in both senses unless `both_senses` is False (the
+    row's wind_sense = one-way): each combination that carries them is applied
+    as given and reversed. Skipped: combinations whose principal load the member
+    does not carry, the 0.9D alternatives unless a load of that combination acts
+    against the dead load, combinations whose factored effects are all zero, and
+    duplicates (same effects and K_D) of a combination listed before.
     """
     cases: list[LoadCase] = []
     seen: set[tuple] = set()
     resists = effects.dead_resists()
-    for comb in combinations(data):
+    senses = [c for comb in combinations(data) for c in _senses(comb, effects, both_senses)]
+    for comb in senses:
         if comb.principal != "D" and not any(effects.get(e, comb.principal) for e in EFFECTS):
             continue
-        if comb.reduced_dead and not resists:
+        if comb.reduced_dead and not (resists or _opposes_dead(comb, effects)):
             continue
         factored = {e: sum(comb.factors[t] * effects.get(e, t) for t in LOAD_TYPES) for e in EFFECTS}
         if all(abs(v) < 1e-9 for v in factored.values()):

@@ -80,6 +80,8 @@ def _columns() -> tuple[Column, ...]:
         Column("K_D", "number", minimum=0, strict=True),
         # yes: the tool adds the member's own weight to D; no: the row's dead load already includes it
         Column("self_weight", "choice", default="yes", choices=("yes", "no")),
+        # both: wind and earthquake are checked in both senses; one-way: only in the sense the row gives
+        Column("wind_sense", "choice", default="both", choices=("both", "one-way")),
         Column("width", "quantity", "mm", "mm", minimum=0, strict=True),
         Column("max_depth", "quantity", "mm", "mm", minimum=0, strict=True),
         Column("prefer", "choice", choices=("deep", "square")),

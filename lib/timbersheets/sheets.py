@@ -247,6 +247,11 @@ class Sheet:
                      "0.65 is the more severe case).",
                      "ULS load combinations of NBC Table 4.1.3.2.-A; K_D by the principal load (CSA O86 5.3.2), one "
                      "value per combination.")
+        if any(self.m.values[f"{e}_{t}"] for e in EFFECTS for t in ("W", "E")):
+            intro += para("Wind and earthquake act in both senses (wind_sense = both): every combination with W "
+                          "or E is applied as the schedule gives the load (+) and reversed (−), with 0.9D where the "
+                          "reversed load opposes the dead load." if self.m.wind_sense != "one-way" else
+                          "Wind and earthquake act only in the sense the schedule gives (wind_sense = one-way).")
         out = heading("Load combinations") + intro + table(
             Table(header, rows, "rl" + "r" * len(effects) + "rX", units))
         for case in d.cases:

@@ -103,7 +103,8 @@ def evaluate(member: Member, data: DataSet, section: Section, cases, design) -> 
     try:
         ctx = build_context(member, data, section)
         if ctx.own_weight is not None:  # the weight, and so the combinations, change with the section
-            cases = apply_combinations(effects_of(ctx.member), data, [], member.K_D)
+            cases = apply_combinations(effects_of(ctx.member), data, [], member.K_D,
+                                       member.wind_sense != "one-way")
         checks = design(ctx, cases)
     except DesignError as exc:
         return Candidate(section, math.inf, exc.problem)
@@ -135,7 +136,7 @@ def size(member: Member, data: DataSet, design) -> Sizing:
     from .design import effects_of
 
     try:
-        cases = apply_combinations(effects_of(member), data, [], member.K_D)
+        cases = apply_combinations(effects_of(member), data, [], member.K_D, member.wind_sense != "one-way")
     except TimbersheetsError as exc:
         raise DesignError(member.mark, f"cannot be sized: {exc}") from None
     sections = catalogue(member, data)
