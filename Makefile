@@ -6,11 +6,13 @@ BIN    := $(VENV)/bin
 STAMP  := $(VENV)/.installed
 DEMO   := calcsheets/kestrel-cove-boathouse
 
-.PHONY: help demo test bench lab system clean
+.PHONY: help demo check test wheel-check bench lab system clean
 
 help:
 	@echo "make demo   set up, then build the demo job's calc package (outputs/kestrel-cove-boathouse/)"
-	@echo "make test   set up, then run the test suite (real papermill, nbconvert and xelatex)"
+	@echo "make check  the fast tests (no notebooks, no TeX): the inner loop, well under a minute"
+	@echo "make test   set up, then run the whole test suite (real papermill, nbconvert and xelatex)"
+	@echo "make wheel-check  build the wheel, install it in a fresh venv, build a demo sheet from another folder"
 	@echo "make bench  set up, then time a 100-member package and the sizing search"
 	@echo "make lab    open JupyterLab on the templates"
 
@@ -26,13 +28,26 @@ system:
 demo: $(STAMP) system
 	$(BIN)/timbersheets run $(DEMO); status=$$?; [ $$status -le 1 ] || exit $$status
 
+check: $(STAMP)
+	$(BIN)/python -m pytest -q -m "not pipeline"
+
 test: $(STAMP) system
 	$(BIN)/python -m pytest -q
+
+wheel-check: $(STAMP) system
+	rm -rf build/wheel-check && mkdir -p build/wheel-check/elsewhere
+	$(BIN)/python -m pip wheel -q --no-deps -w build/wheel-check .
+	$(PYTHON) -m venv build/wheel-check/venv
+	build/wheel-check/venv/bin/python -m pip install -q build/wheel-check/timbersheets-*.whl
+	cp -r $(DEMO) build/wheel-check/elsewhere/job
+	cd build/wheel-check/elsewhere && ../venv/bin/timbersheets run job --only C-3 --jobs 1 --out out \
+		&& test -s out/rev-A/sheets/C-3.pdf && echo "wheel-check: the installed wheel built a sheet"
 
 bench: $(STAMP) system
 	$(BIN)/python tools/bench.py
 
 lab: $(STAMP)
+	$(BIN)/python -m pip install -q -e '.[lab]'
 	$(BIN)/jupyter lab templates/
 
 clean:

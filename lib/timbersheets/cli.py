@@ -80,6 +80,11 @@ def _parser() -> argparse.ArgumentParser:
     review.add_argument("--verdict", choices=VERDICTS, help="ok, or revise (needs changes)")
     review.add_argument("--comment", default="", help="a note for the designer")
     review.add_argument("--out", type=Path, help="the folder holding rev-<R>/ (as given to run --out)")
+
+    columns = sub.add_parser("columns", help="the schedule column reference: meaning, unit, default, allowed values",
+                             description="Print every schedule column with its meaning, unit, default and allowed "
+                                         "values, from the column table in the code.", epilog=EPILOG)
+    columns.add_argument("--markdown", action="store_true", help="print it as the Markdown table of docs/columns.md")
     return p
 
 
@@ -250,7 +255,15 @@ def cmd_review(args: argparse.Namespace) -> int:
     return 0
 
 
-COMMANDS = {"new": cmd_new, "run": cmd_run, "size": cmd_size, "diff": cmd_diff, "review": cmd_review}
+def cmd_columns(args: argparse.Namespace) -> int:
+    from .columnref import markdown, text
+
+    print(markdown() if args.markdown else text(), end="")
+    return 0
+
+
+COMMANDS = {"new": cmd_new, "run": cmd_run, "size": cmd_size, "diff": cmd_diff, "review": cmd_review,
+            "columns": cmd_columns}
 
 
 def main(argv: list[str] | None = None) -> int:

@@ -83,7 +83,7 @@ def member_rows(members: list[dict[str, Any]], outdir: Path, first: int = 1,
             flags.append(f"changed since {m['changed_since']}")
         rows.append({
             "mark": escape(m["mark"]), "plain": m["mark"], "anchor": f"m{i}",
-            "description": escape(note[:110] + ("..." if len(note) > 110 else "")),
+            "description": escape(shorten(note)),
             "size": escape(m.get("size") or ""),
             "governing": _governing(m),
             "utilization": "--" if m.get("utilization") is None or m["status"] == "error" else f"{m['utilization']:.3f}",
@@ -98,6 +98,33 @@ def member_rows(members: list[dict[str, Any]], outdir: Path, first: int = 1,
         if m["errors"]:
             notes.append(f"{escape(m['mark'])}: {escape(m['errors'][0])}")
     return rows, notes
+
+
+def shorten(text: str, limit: int = 200) -> str:
+    """Text of at most `limit` characters, cut only between words (then an ellipsis)."""
+    if len(text) <= limit:
+        return text
+    return text[:limit - 1].rsplit(" ", 1)[0].rstrip(" ,;:") + "\u2026"
+
+
+def plural(n: int, one: str, many: str) -> str:
+    """'1 member', '2 members'."""
+    return f"{n} {one if n == 1 else many}"
+
+
+def cover_lines(project: Project, counts: dict[str, int], checked: int, unchecked: int) -> dict[str, str]:
+    """The cover's and index's sentences about the members, in plain grammar (escaped)."""
+    total = counts["total"]
+    checker = project.fields["checker"] or "not named"
+    members = (f"{plural(total, 'member', 'members')}: {counts['pass']} {'passes' if counts['pass'] == 1 else 'pass'}, "
+               f"{counts['fail']} {'does' if counts['fail'] == 1 else 'do'} not pass, {counts['error']} not designed")
+    return {
+        "checker": escape(f"{checker} ({checked} of {plural(total, 'member', 'members')} checked)"),
+        "members": escape(members),
+        "unchecked": escape(f"{unchecked} of {plural(total, 'member', 'members')} "
+                            f"{'is' if unchecked == 1 else 'are'} not checked, or changed since "
+                            f"{'its' if unchecked == 1 else 'their'} check."),
+    }
 
 
 def change_rows(changes: list[MemberChange]) -> list[dict[str, str]]:
@@ -124,13 +151,14 @@ def package_tex(project: Project, doc: dict[str, Any], data: DataSet, outdir: Pa
     counts = {"total": len(members), "pass": 0, "fail": 0, "error": 0}
     for m in members:
         counts[m["status"]] += 1
+    checked = sum(1 for m in members if (m.get("review") or {}).get("status") == "checked")
+    unchecked = len(members) - checked
     context: dict[str, Any] = {
         "project": {k: escape(v) for k, v in project.fields.items()},
         "codes": {k: escape(v) for k, v in project.codes.items()},
         "counts": counts, "members": rows, "notes": notes,
         "unverified": len({w for m in members for w in m["data_warnings"]}),
-        "unchecked": sum(1 for m in members if (m.get("review") or {}).get("status") != "checked"),
-        "checked": sum(1 for m in members if (m.get("review") or {}).get("status") == "checked"),
+        "unchecked": unchecked, "lines": cover_lines(project, counts, checked, unchecked),
         "previous": escape(doc.get("previous_revision") or ""), "changes": change_rows(changes),
         "chart": chart, "caution": escape(SHORT_CAUTION), "caution_long": escape(CAUTION),
         "tool_version": f"timbersheets {__version__}", "data_hash": data.hash.split(":")[1][:12],

@@ -8,6 +8,7 @@ error marked in place by papermill, before the failure is reported.
 from __future__ import annotations
 
 import hashlib
+import importlib.resources
 import os
 import re
 import shutil
@@ -33,9 +34,22 @@ class ConversionError(TimbersheetsError):
 
 
 def templates_dir() -> Path:
-    """The repository's templates/ folder (or $TIMBERSHEETS_TEMPLATES)."""
+    """The folder of notebook and LaTeX templates.
+
+    $TIMBERSHEETS_TEMPLATES if set; in a source checkout, its top-level templates/
+    (the folder being edited, even when another checkout is installed editable);
+    otherwise the copy installed inside the package (timbersheets.templates).
+    """
     env = os.environ.get("TIMBERSHEETS_TEMPLATES")
-    return Path(env) if env else Path(__file__).resolve().parents[2] / "templates"
+    if env:
+        return Path(env)
+    checkout = Path(__file__).resolve().parents[2]
+    if (checkout / "pyproject.toml").is_file() and (checkout / "templates" / "latex").is_dir():
+        return checkout / "templates"
+    installed = Path(str(importlib.resources.files("timbersheets") / "templates"))
+    if not (installed / "latex").is_dir():
+        raise TimbersheetsError(f"the templates are missing from {installed}; reinstall timbersheets")
+    return installed
 
 
 def file_hash(path: Path) -> str:

@@ -22,6 +22,7 @@ class Project:
     codes: dict[str, str]
     materials: Path | None = None
     extra: dict = field(default_factory=dict)
+    warnings: list[str] = field(default_factory=list)
 
     @property
     def name(self) -> str:
@@ -72,7 +73,21 @@ def load_project(folder: Path) -> Project:
         if not materials.exists():
             raise JobError(str(path), f"[data] materials file '{data['materials']}' does not exist",
                            "Give a path relative to the job folder")
-    return Project(folder, fields, codes, materials, doc)
+    return Project(folder, fields, codes, materials, doc, placeholder_warnings(path, fields))
+
+
+# What `timbersheets new` writes, and no real job keeps.
+PLACEHOLDERS = {"title": "New project", "number": "0000"}
+
+
+def placeholder_warnings(path: Path, fields: dict[str, str]) -> list[str]:
+    """Title-block fields still holding the scaffold's text, or a blank title."""
+    out = [f"{path}: [project] {key} is still the placeholder '{value}' written by timbersheets new; "
+           "it prints on the cover and every title block"
+           for key, value in PLACEHOLDERS.items() if fields[key] == value]
+    if not fields["title"]:
+        out.append(f"{path}: [project] title is blank; the cover and every title block print no project name")
+    return out
 
 
 PROJECT_TEMPLATE = '''# timbersheets job: title block data, code editions, revision.

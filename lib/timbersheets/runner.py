@@ -253,7 +253,8 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     phases = {"design": time.monotonic() - started}
     stage, final = stage_dir(project, opts)
     try:
-        report = RunReport(project, final, designs, schedule.warnings)
+        warnings = project.warnings + schedule.warnings
+        report = RunReport(project, final, designs, warnings)
         chosen = designs if not opts.only else [d for d in designs if d.mark in set(opts.only)]
         tasks = sheet_tasks(project, chosen, data, stage, opts, extra)
         if tasks and opts.sheets:
@@ -264,7 +265,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                 if d.mark in report.sheets:
                     cross_check(d, report.sheets[d.mark])
         doc = results_doc(project.name, project.revision, project.codes, designs, data.manifest(), data.hash,
-                          schedule.warnings, extra)
+                          warnings, extra)
         doc["run_at"] = dt.datetime.now().isoformat(timespec="seconds")
         doc["previous_revision"] = prev_label
         changes = diff(previous, doc) if previous else []
@@ -294,7 +295,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                              f"{len(report.executed)} executed, {len(report.converted)} converted "
                              f"({time.monotonic() - started:.1f} s: "
                              + ", ".join(f"{k} {v:.1f} s" for k, v in phases.items()) + ")")
-        report.log += schedule.warnings
+        report.log += warnings
         for d in designs:
             report.log += [f"{d.mark}: {e}" for e in d.errors]
         write_atomic(stage / "run.log", "\n".join(report.log) + "\n")

@@ -29,12 +29,23 @@ MEMBER_TYPES = ("tension", "compression", "bending", "beam-column", "tension-ben
 #: Types that bend: their compression edge can buckle sideways, so the row must say how it is held (Lu).
 BENDING_TYPES = ("bending", "beam-column", "tension-bending")
 MARK = re.compile(r"^[A-Za-z0-9._-]+$")
+LOAD_NAMES = {"D": "dead", "L": "live", "S": "snow (with rain)", "W": "wind", "E": "earthquake"}
+LOAD_MEANING = {
+    "P": "axial force (positive = the member's own sense: tension for tension members, compression otherwise)",
+    "w": "uniform line load on the simple span `length`",
+    "M": "strong-axis moment, where a frame model gives it",
+    "V": "shear, where a frame model gives it",
+}
 EXTRA = "\x00extra"  # key marking a row with more cells than the header
 
 
 @dataclass(frozen=True)
 class Column:
-    """One schedule column: how to read it and what it defaults to."""
+    """One schedule column: what it means, how to read it and what it defaults to.
+
+    `meaning` is what `timbersheets columns` and docs/columns.md print; every
+    column has one.
+    """
 
     name: str
     kind: str  # text | choice | quantity | number | count | size
@@ -45,47 +56,81 @@ class Column:
     choices: tuple[str, ...] = ()
     minimum: float | None = None  # values must be >= minimum (or > when strict)
     strict: bool = False
+    meaning: str = ""
+    blank: str = ""  # what a blank cell means, where that is not simply `default`
 
 
 def _columns() -> tuple[Column, ...]:
     cols = [
-        Column("mark", "text", required=True),
-        Column("type", "choice", required=True, choices=MEMBER_TYPES),
-        Column("material", "choice", required=True, choices=("sawn", "glulam")),
-        Column("species", "text", required=True),
-        Column("grade", "text", required=True),
-        Column("size", "size", required=True),
-        Column("plies", "count", default=1, minimum=1),
-        Column("service", "choice", default="dry", choices=("dry", "wet")),
-        Column("K_T", "number", default=1.0, minimum=0, strict=True),
-        Column("K_H", "number", default=1.0, minimum=0, strict=True),
-        Column("length", "quantity", "m", "mm", required=True, minimum=0, strict=True),
-        Column("Ke", "number", default=1.0, minimum=0, strict=True),
-        Column("Lx", "quantity", "m", "mm", minimum=0),  # 0 = braced about x over the length
-        Column("Ly", "quantity", "m", "mm", minimum=0),  # 0 = braced about y (e.g. sheathing)
+        Column("mark", "text", required=True,
+               meaning="member mark, unique in the job"),
+        Column("type", "choice", required=True, choices=MEMBER_TYPES,
+               meaning="member type: what it carries and which checks it runs (beam-column = bending + axial compression)"),
+        Column("material", "choice", required=True, choices=("sawn", "glulam"),
+               meaning="sawn lumber or timber, or glulam"),
+        Column("species", "text", required=True,
+               meaning="species group: sawn D.Fir-L, Hem-Fir, S-P-F, Northern; glulam D.Fir-L, Spruce-Pine (short forms DFL, HF, SPF, NOR, SP accepted)"),
+        Column("grade", "text", required=True,
+               meaning="stress grade: sawn SS, No.1, No.2, No.1/No.2, No.3, Stud; glulam 20f-E, 20f-EX, 24f-E, 24f-EX, 16c-E, 12c-E, 18t-E, 14t-E"),
+        Column("size", "size", required=True,
+               meaning="dressed size b x d in mm (38x235, 130x228); auto = the tool picks the lightest passing section"),
+        Column("plies", "count", default=1, minimum=1,
+               meaning="number of laminations of a built-up sawn member"),
+        Column("service", "choice", default="dry", choices=("dry", "wet"),
+               meaning="service condition (O86 K_S)"),
+        Column("K_T", "number", default=1.0, minimum=0, strict=True,
+               meaning="treatment factor"),
+        Column("K_H", "number", default=1.0, minimum=0, strict=True,
+               meaning="system factor (load sharing), sawn lumber only"),
+        Column("length", "quantity", "m", "mm", required=True, minimum=0, strict=True,
+               meaning="member length (the span of a beam)"),
+        Column("Ke", "number", default=1.0, minimum=0, strict=True,
+               meaning="effective length factor, both axes"),
+        Column("Lx", "quantity", "m", "mm", minimum=0,
+               meaning="unbraced length about the strong (x) axis; 0 = braced over the length", blank="length"),
+        Column("Ly", "quantity", "m", "mm", minimum=0,
+               meaning="unbraced length about the weak (y) axis; 0 = braced (e.g. by sheathing)", blank="length"),
         # required for the bending types (checked across cells): lateral support is never assumed
-        Column("Lu", "quantity", "m", "mm", minimum=0),
-        # the other edge, in compression when the moment reverses; blank = the full length between supports
-        Column("Lu_bottom", "quantity", "m", "mm", minimum=0),
-        # lateral restraint beyond what Lu says (bending members): bridging or blocking at 8d, or both edges held
-        Column("restraint", "choice", choices=("purlins", "blocking", "both-edges")),
-        Column("net_area", "number", default=1.0, minimum=0, strict=True),
-        Column("bearing", "quantity", "mm", "mm", minimum=0, strict=True),
+        Column("Lu", "quantity", "m", "mm", minimum=0,
+               meaning="laterally unsupported length of the top (compression) edge: 0 when decking, sheathing or "
+                       "joists fixed to it hold it continuously, else the distance between lateral supports",
+               blank="required for bending, beam-column and tension-bending (row error: never assumed braced)"),
+        Column("Lu_bottom", "quantity", "m", "mm", minimum=0,
+               meaning="unsupported length of the bottom edge, in compression when the moment reverses (uplift, "
+                       "hogging, wind suction)",
+               blank="the full length between supports (said on the sheet); 0 with restraint = both-edges"),
+        Column("restraint", "choice", choices=("purlins", "blocking", "both-edges"),
+               meaning="lateral bracing beyond what Lu says: purlins (top edge held at the purlins, Lu = their "
+                       "spacing), blocking (Lu = 0 plus bridging or blocking at 8d), both-edges (Lu = Lu_bottom = 0)"),
+        Column("net_area", "number", default=1.0, minimum=0, strict=True,
+               meaning="A_n / A_g at the worst cross-section (holes, notches)"),
+        Column("bearing", "quantity", "mm", "mm", minimum=0, strict=True,
+               meaning="bearing length at each support", blank="none (no bearing check)"),
     ]
     for prefix, unit, compute in (("P", "kN", "N"), ("w", "kN/m", "N/mm"), ("M", "kN*m", "N*mm"), ("V", "kN", "N")):
-        cols += [Column(f"{prefix}_{t}", "quantity", unit, compute, default=0.0) for t in LOAD_TYPES]
+        cols += [Column(f"{prefix}_{t}", "quantity", unit, compute, default=0.0,
+                        meaning=f"specified {LOAD_MEANING[prefix]} from {LOAD_NAMES[t]} load") for t in LOAD_TYPES]
     cols += [
-        Column("defl_L", "number", default=360.0, minimum=0, strict=True),
-        Column("defl_total", "number", default=240.0, minimum=0, strict=True),
-        Column("K_D", "number", minimum=0, strict=True),
-        # yes: the tool adds the member's own weight to D; no: the row's dead load already includes it
-        Column("self_weight", "choice", default="yes", choices=("yes", "no")),
-        # both: wind and earthquake are checked in both senses; one-way: only in the sense the row gives
-        Column("wind_sense", "choice", default="both", choices=("both", "one-way")),
-        Column("width", "quantity", "mm", "mm", minimum=0, strict=True),
-        Column("max_depth", "quantity", "mm", "mm", minimum=0, strict=True),
-        Column("prefer", "choice", choices=("deep", "square")),
-        Column("note", "text", default=""),
+        Column("defl_L", "number", default=360.0, minimum=0, strict=True,
+               meaning="live-load deflection limit as a span divisor (360 = L/360)"),
+        Column("defl_total", "number", default=240.0, minimum=0, strict=True,
+               meaning="total-load deflection limit as a span divisor (240 = L/240)"),
+        Column("K_D", "number", minimum=0, strict=True,
+               meaning="override of the load-duration factor, 0.65 to 1.15; never raises the dead-only combination; "
+                       "marked on the sheet", blank="computed per combination"),
+        Column("self_weight", "choice", default="yes", choices=("yes", "no"),
+               meaning="yes: the tool adds the member's own weight to D from the density data; no: the given D "
+                       "includes it"),
+        Column("wind_sense", "choice", default="both", choices=("both", "one-way"),
+               meaning="both: wind and earthquake checked in both senses; one-way: only in the sense the row gives"),
+        Column("width", "quantity", "mm", "mm", minimum=0, strict=True,
+               meaning="sizing constraint for size = auto: a fixed width"),
+        Column("max_depth", "quantity", "mm", "mm", minimum=0, strict=True,
+               meaning="sizing constraint for size = auto: the largest depth"),
+        Column("prefer", "choice", choices=("deep", "square"),
+               meaning="sizing preference among passing sections of near-equal weight", blank="lightest"),
+        Column("note", "text", default="",
+               meaning="free text printed on the sheet"),
     ]
     return tuple(cols)
 

@@ -15,9 +15,14 @@ from functools import lru_cache
 
 import pint
 
-ureg = pint.UnitRegistry()
-ureg.formatter.default_format = "~"
-Q_ = ureg.Quantity
+
+@lru_cache(maxsize=1)
+def registry() -> pint.UnitRegistry:
+    """The program's one pint registry, built on first use (building it takes a noticeable fraction of a second)."""
+    ureg = pint.UnitRegistry()
+    ureg.formatter.default_format = "~"
+    return ureg
+
 
 #: Units the engineering arithmetic works in, by dimension name.
 COMPUTE_UNITS = {
@@ -52,6 +57,7 @@ class UnitParseError(ValueError):
 @lru_cache(maxsize=256)
 def unit(text: str) -> pint.Unit:
     """The pint unit for `text` ("" is dimensionless)."""
+    ureg = registry()
     return ureg.Unit(text) if text else ureg.dimensionless
 
 
@@ -81,7 +87,7 @@ def parse_quantity(text: str, default_unit: str) -> float:
             f"has unit '{unit_text}', which is not a {_dimension_words(target)} "
             f"(expected e.g. {default_unit or 'a plain number'})"
         )
-    return float(Q_(number, given).to(target).magnitude)
+    return float(registry().Quantity(number, given).to(target).magnitude)
 
 
 def _dimension_words(u: pint.Unit) -> str:
@@ -98,7 +104,7 @@ def _dimension_words(u: pint.Unit) -> str:
 @lru_cache(maxsize=256)
 def _factor(from_unit: str, to_unit: str) -> float:
     """The multiplier from one unit to another (pint, once per pair)."""
-    return float(Q_(1.0, unit(from_unit)).to(unit(to_unit)).magnitude)
+    return float(registry().Quantity(1.0, unit(from_unit)).to(unit(to_unit)).magnitude)
 
 
 def convert(value: float, from_unit: str, to_unit: str) -> float:

@@ -1,0 +1,95 @@
+"""The package's front matter: cover wording, seal box, the index of members fitting the page."""
+
+from __future__ import annotations
+
+import json
+import re
+import shutil
+import subprocess
+from pathlib import Path
+
+import pytest
+
+from conftest import member_row, write_job
+from timbersheets.data import DataSet
+from timbersheets.package import package_tex
+from timbersheets.pipeline import XELATEX
+from timbersheets.project import PROJECT_TEMPLATE, load_project
+from timbersheets.runner import RunOptions, run_job
+
+LONG_NOTE = ("Clubroom floor girder across the boat bay (wet service), on columns C-1; floor joists in "
+             "top-flange hangers hold the top edge; the clubroom partition above bears on it at midspan "
+             "through a doubled plate; supplementary notes from the framing plan follow here verbatim")
+
+
+def front_matter(tmp_path: Path, rows: list[dict[str, str]], extra: str = "", checker: str = "RD") -> str:
+    """The front matter's LaTeX for a job run without sheets (results only)."""
+    job = write_job(tmp_path / "job", rows, extra=extra)
+    toml = job / "project.toml"
+    toml.write_text(toml.read_text().replace('checker = "RD"', f'checker = "{checker}"'))
+    out = tmp_path / "out"
+    run_job(job, RunOptions(out=out, sheets=False, progress=False))
+    doc = json.loads((out / "rev-A" / "results.json").read_text())
+    tex, _ = package_tex(load_project(job), doc, DataSet(), out / "rev-A", [], "", 2)
+    return tex
+
+
+def test_cover_grammar_and_a_blank_checker(tmp_path):
+    # One member that fails (No.1/No.2 38x89, 3 m, 60 kN dead: hand calculation, far over any
+    # 38x89 stud's capacity) and one that passes.
+    rows = [member_row("A-1", size="38x89", P_D="60"), member_row("A-2")]
+    tex = front_matter(tmp_path, rows[:1], checker="")
+    assert "Checker & not named (0 of 1 member checked)" in tex
+    assert "1 member: 0 pass, 1 does not pass, 0 not designed" in tex
+    assert "1 of 1 member is not checked, or changed since its check." in tex
+    assert ";" not in tex.split("Checker &")[1].split("\\\\")[0]
+
+    tex = front_matter(tmp_path / "two", rows)
+    assert "Checker & RD (0 of 2 members checked)" in tex
+    assert "2 members: 1 passes, 1 does not pass, 0 not designed" in tex
+
+
+def test_cover_seal_box_leaves_room_for_seal_signature_and_date(tmp_path):
+    # Common practice (APEGBC/PEO seal sizes are about 40-45 mm across): the cover's seal box
+    # must be at least 50 mm square, with separate places for the signature and the date.
+    tex = front_matter(tmp_path, [member_row("A-1")])
+    box = tex[tex.index("The seal box"):tex.index("\\end{minipage}}", tex.index("The seal box"))]
+    height, width = (float(v) for v in re.search(r"\\begin\{minipage\}\[t\]\[([\d.]+)mm\]\[t\]\{([\d.]+)mm\}",
+                                                 box).groups())
+    assert width >= 50 and height >= 50 + 10
+    assert "SEAL" in box and "SIGNATURE" in box and "DATE" in box
+
+
+def test_scaffold_placeholder_title_warns(tmp_path):
+    job = tmp_path / "job"
+    job.mkdir()
+    (job / "project.toml").write_text(PROJECT_TEMPLATE.format(date="2026-12-01"))
+    warnings = load_project(job).warnings
+    assert any("title is still the placeholder 'New project'" in w for w in warnings)
+    assert any("number is still the placeholder '0000'" in w for w in warnings)
+    demo = load_project(Path(__file__).resolve().parent.parent / "calcsheets" / "kestrel-cove-boathouse")
+    assert demo.warnings == []
+
+
+def test_index_descriptions_break_at_words(tmp_path):
+    tex = front_matter(tmp_path, [member_row("A-1", note=LONG_NOTE)])
+    row = next(line for line in tex.splitlines() if line.startswith("A-1 &"))
+    description = row.split(" & ")[1]
+    assert description.endswith("\u2026")
+    words = description[:-1].split()
+    assert words == LONG_NOTE.split()[:len(words)]  # every word whole, none cut
+
+
+@pytest.mark.pipeline
+@pytest.mark.skipif(shutil.which("xelatex") is None, reason="needs xelatex")
+def test_index_fits_the_text_width(tmp_path):
+    # A table wider than the text width is reported by TeX as an overfull box.
+    rows = [member_row(f"RB-1{i}A", note=LONG_NOTE, size="38x184") for i in range(3)]
+    tex = front_matter(tmp_path, rows)
+    (tmp_path / "front.tex").write_text(tex)
+    done = subprocess.run([*XELATEX, "front.tex"], cwd=tmp_path, capture_output=True, text=True)
+    assert done.returncode == 0, done.stdout[-2000:]
+    assert "Overfull \\hbox" not in (tmp_path / "front.log").read_text(errors="replace")
+    text = subprocess.run(["pdftotext", "-layout", str(tmp_path / "front.pdf"), "-"], capture_output=True,
+                          text=True, check=True).stdout
+    assert "verbatim" not in text and "Clubroom floor girder" in text
