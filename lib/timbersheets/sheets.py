@@ -248,10 +248,11 @@ class Sheet:
                      "ULS load combinations of NBC Table 4.1.3.2.-A; K_D by the principal load (CSA O86 5.3.2), one "
                      "value per combination.")
         if any(self.m.values[f"{e}_{t}"] for e in EFFECTS for t in ("W", "E")):
-            intro += para("Wind and earthquake act in both senses (wind_sense = both): every combination with W "
-                          "or E is applied as the schedule gives the load (+) and reversed (−), with 0.9D where the "
-                          "reversed load opposes the dead load." if self.m.wind_sense != "one-way" else
-                          "Wind and earthquake act only in the sense the schedule gives (wind_sense = one-way).")
+            senses = ("Wind and earthquake act in both senses (wind_sense = both): every combination with W or E "
+                      "is applied as the schedule gives the load (+) and reversed (−), with 0.9D where the reversed "
+                      "load opposes the dead load." if self.m.wind_sense != "one-way" else
+                      "Wind and earthquake act only in the sense the schedule gives (wind_sense = one-way).")
+            intro += para(escape(senses), senses)
         out = heading("Load combinations") + intro + table(
             Table(header, rows, "rl" + "r" * len(effects) + "rX", units))
         for case in d.cases:
@@ -321,15 +322,19 @@ class Sheet:
 
     def _check_block(self, name: str, gov: CheckResult, all_cases: list[CheckResult]) -> Block:
         out = heading(f"{ACTION_WORDS.get(name, name)} ({gov.clause})", 2)
-        kd = ("specified loads; $K_D$ does not apply to stiffness" if serviceability(gov)
-              else f"$K_D = {format_number(gov.K_D)}$")
-        out += para(f"Shown in full for the governing combination {escape(gov.combination)} "
-                    f"({kd}); every combination is listed after.")
-        for step in gov.steps:
-            if step.caption:
-                out += para(f"\\emph{{{caption_latex(step.caption)}}}", f"*{md_escape(step.caption)}*")
-            out += math_block(step.latex())
-        out += math_block(self._utilization_latex(gov))
+        shown = branches(name, all_cases)
+        for result in shown:
+            kd = ("specified loads; $K_D$ does not apply to stiffness" if serviceability(result)
+                  else f"$K_D = {format_number(result.K_D)}$")
+            branch = (("Negative moment (bottom edge in compression)" if result.demand < 0 else
+                       "Positive moment (top edge in compression)") + ", shown in full for the combination that "
+                      "governs it" if len(shown) > 1 else "Shown in full for the governing combination")
+            out += para(f"{branch} {escape(result.combination)} ({kd}); every combination is listed after.")
+            for step in result.steps:
+                if step.caption:
+                    out += para(f"\\emph{{{caption_latex(step.caption)}}}", f"*{md_escape(step.caption)}*")
+                out += math_block(step.latex())
+            out += math_block(self._utilization_latex(result))
         unit = gov.unit
         header = ["Combination", Cell.math("K_D"), Cell.math(gov.demand_symbol_latex),
                   Cell.math(gov.resistance_symbol_latex), "Utilization"]
@@ -416,6 +421,17 @@ def caption_latex(text: str) -> str:
         out += [escape(text[pos:match.start()]), f"${symbol_latex(match.group(0))}$"]
         pos = match.end()
     return "".join(out) + escape(text[pos:])
+
+
+def branches(name: str, results: list[CheckResult]) -> list[CheckResult]:
+    """The results a sheet works in full: the governing one of each branch of the check.
+
+    Bending has two branches, positive and negative moment (top or bottom edge in compression, with its
+    own f_b and L_u); each that occurs is shown for the combination that governs it, worst first."""
+    if name != "bending":
+        return [max(results, key=lambda c: c.utilization)]
+    groups = [[c for c in results if (c.demand < 0) == negative] for negative in (False, True)]
+    return sorted((max(g, key=lambda c: c.utilization) for g in groups if g), key=lambda c: -c.utilization)
 
 
 def basis_cell(basis: str) -> Cell:
