@@ -248,3 +248,21 @@ def test_tension_brace_under_reversing_wind_says_tension_only(tmp_path, data):
     assert next(c for c in d.checks if c.combination == "1.25D + 1.4W").demand == pytest.approx(26.5, abs=0.05)
     note = next(w for w in d.warnings if w.startswith("tension-only"))
     assert "0.9D − 1.4W" in note and "compression is not checked" in note
+
+
+# ----------------------------------------------------------------------------- least tension
+def test_tension_bending_compression_face_governed_by_least_tension(tmp_path, data):
+    # Hand calculation (O86 7.5.13 compression face, as in checks/combined.py: I_cs = (M_f − T_f d/6)/M_r).
+    # 130x190 D.Fir-L 18t-E chord, L = 4.8 m, truss dead tension P_D = 60 kN, ceiling w_D 0.1, attic w_L 2.5 kN/m:
+    #   1.25D + 1.5L: T_f = 75.0 kN, M_f = (0.125 + 3.75)·4.8²/8 = 11.16 kN·m
+    #   0.9D + 1.5L:  T_f = 54.0 kN, M_f = (0.09 + 3.75)·4.8²/8 = 11.06 kN·m
+    #   with the same M_r (K_D 1.0 in both): I_cs = (11.06 − 54·0.190/6)/M_r = 9.349/M_r
+    #                                   against (11.16 − 75·0.190/6)/M_r = 8.785/M_r: 0.9D governs the face
+    d = design_row(tmp_path, data, type="tension-bending", material="glulam", species="D.Fir-L", grade="18t-E",
+                   size="130x190", length="4.8", Ly="", Lu="0", P_D="60", w_D="0.1", w_L="2.5")
+    faces = {c.combination: c for c in d.checks if c.check == "interaction"}
+    least = faces["0.9D + 1.5L"]
+    assert least.factors["T_f"] == pytest.approx(54.0) and least.factors["M_f"] == pytest.approx(11.06, abs=0.01)
+    M_r = least.factors["M_r"]
+    assert least.factors["I_cs"] == pytest.approx((11.0592 - 54.0 * 0.190 / 6) / M_r, rel=1e-3)
+    assert max(faces.values(), key=lambda c: c.factors["I_cs"]) is least

@@ -102,6 +102,15 @@ def effects_of(member: Member) -> Effects:
     return Effects({e: {t: member.values[f"{e}_{t}"] for t in LOAD_TYPES} for e in EFFECTS})
 
 
+def load_cases(member: Member, data: DataSet, used: list[Datum]) -> list[LoadCase]:
+    """The ULS combinations of `member` (with its own weight already in it) as its row asks for them.
+
+    A tension member with bending also gets every 0.9D alternative: least dead-load tension with the full
+    moment is what puts its compression face in compression (O86 interaction, compression face)."""
+    return apply_combinations(effects_of(member), data, used, member.K_D, both_senses=member.wind_sense != "one-way",
+                              least_tension=member.type == "tension-bending")
+
+
 def build_context(member: Member, data: DataSet, section: Section | None = None) -> Context:
     """Look up strengths and factors for `member` (or for `section` while sizing).
 
@@ -254,8 +263,7 @@ def design_member(member: Member, data: DataSet) -> MemberDesign:
         if member.size == "auto":
             section = _sized_section(member, data, kind, outcome)
         ctx = build_context(member, data, section)
-        cases = apply_combinations(effects_of(ctx.member), data, ctx.used, member.K_D,
-                                    member.wind_sense != "one-way")
+        cases = load_cases(ctx.member, data, ctx.used)
         outcome.context, outcome.cases = ctx, cases
         outcome.checks = kind.design(ctx, cases)
     except TimbersheetsError as exc:

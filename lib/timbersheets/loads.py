@@ -172,14 +172,17 @@ def _opposes_dead(comb: Combination, effects: Effects) -> bool:
 
 
 def apply_combinations(effects: Effects, data: DataSet, used: list[Datum],
-                       override: float | None = None, both_senses: bool = True) -> list[LoadCase]:
+                       override: float | None = None, both_senses: bool = True,
+                       least_tension: bool = False) -> list[LoadCase]:
     """Every combination that matters for the member, with factored effects and K_D.
 
     Wind and earthquake act in both senses unless `both_senses` is False (the
     row's wind_sense = one-way): each combination that carries them is applied
-    as given and reversed. Skipped: combinations whose principal load the member
+    as given and reversed. With `least_tension` (tension with bending) every
+    0.9D alternative is kept: it gives the least axial tension with the moment.
+    Skipped: combinations whose principal load the member
     does not carry, the 0.9D alternatives unless a load of that combination acts
-    against the dead load, combinations whose factored effects are all zero, and
+    against the dead load (or `least_tension`), combinations whose factored effects are all zero, and
     duplicates (same effects and K_D) of a combination listed before.
     """
     cases: list[LoadCase] = []
@@ -189,7 +192,7 @@ def apply_combinations(effects: Effects, data: DataSet, used: list[Datum],
     for comb in senses:
         if comb.principal != "D" and not any(effects.get(e, comb.principal) for e in EFFECTS):
             continue
-        if comb.reduced_dead and not (resists or _opposes_dead(comb, effects)):
+        if comb.reduced_dead and not (resists or least_tension or _opposes_dead(comb, effects)):
             continue
         factored = {e: sum(comb.factors[t] * effects.get(e, t) for t in LOAD_TYPES) for e in EFFECTS}
         if all(abs(v) < 1e-9 for v in factored.values()):

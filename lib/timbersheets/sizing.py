@@ -14,7 +14,6 @@ from dataclasses import dataclass, field
 
 from .data import DataSet
 from .errors import DesignError, TimbersheetsError
-from .loads import apply_combinations
 from .materials import sawn_table_grade
 from .schedule import Member
 from .sections import Section, sawn_category
@@ -98,13 +97,12 @@ def evaluate(member: Member, data: DataSet, section: Section, cases, design) -> 
     """The governing utilization of `member` with `section` (fast path, no rendering)."""
     from .design import build_context
 
-    from .design import effects_of
+    from .design import load_cases
 
     try:
         ctx = build_context(member, data, section)
         if ctx.own_weight is not None:  # the weight, and so the combinations, change with the section
-            cases = apply_combinations(effects_of(ctx.member), data, [], member.K_D,
-                                       member.wind_sense != "one-way")
+            cases = load_cases(ctx.member, data, [])
         checks = design(ctx, cases)
     except DesignError as exc:
         return Candidate(section, math.inf, exc.problem)
@@ -133,10 +131,10 @@ def size(member: Member, data: DataSet, design) -> Sizing:
     passing sections within 10 % of the lightest area. Runners-up are the next
     passing sections, none lighter than the chosen one.
     """
-    from .design import effects_of
+    from .design import load_cases
 
     try:
-        cases = apply_combinations(effects_of(member), data, [], member.K_D, member.wind_sense != "one-way")
+        cases = load_cases(member, data, [])
     except TimbersheetsError as exc:
         raise DesignError(member.mark, f"cannot be sized: {exc}") from None
     sections = catalogue(member, data)
