@@ -266,3 +266,52 @@ def test_tension_bending_compression_face_governed_by_least_tension(tmp_path, da
     M_r = least.factors["M_r"]
     assert least.factors["I_cs"] == pytest.approx((11.0592 - 54.0 * 0.190 / 6) / M_r, rel=1e-3)
     assert max(faces.values(), key=lambda c: c.factors["I_cs"]) is least
+
+
+# ----------------------------------------------------------------------------- bearing everywhere
+POST = dict(size="140x191", grade="No.2", Ly="", P_D="10", P_L="30")
+
+
+def test_column_end_bearing_on_a_sawn_sill_hand_calculation(tmp_path, data):
+    # Hand calculation. 140x191 S-P-F post on an S-P-F No.1 sill, dry. f_cp of the sill 5.3 MPa (S-P-F, every
+    # size category of data/sawn_strengths.csv), K_Scp 1.0, φ = 0.8 (O86 5.1.4, data file), K_B = K_Zcp = 1.0:
+    #   1.25D + 1.5L (K_D = 1.0): P_f = 1.25·10 + 1.5·30 = 57.5 kN
+    #   Q_r = 0.8·(5.3·1.0·1.0)·(140·191)·1.0·1.0 = 0.8·5.3·26 740 = 113.4 kN
+    d = design_row(tmp_path, data, bears_on="sawn SPF no.1", **POST)
+    assert d.member.bears_on == "sawn S-P-F No.1"
+    c = next(c for c in d.checks if c.check == "bearing" and c.combination == "1.25D + 1.5L")
+    assert c.demand == pytest.approx(57.5) and c.resistance == pytest.approx(113.4, abs=0.05)
+    from timbersheets.results import member_json
+
+    assert not any("bearing on the support" in w for w in member_json(d)["warnings"])
+
+
+def test_blank_bears_on_warns_in_results_and_on_the_sheet(tmp_path, data):
+    from timbersheets.results import member_json
+
+    d = design_row(tmp_path, data, **POST)
+    assert not [c for c in d.checks if c.check == "bearing"]
+    assert any("bearing on the support was not checked" in w for w in member_json(d)["warnings"])
+    assert "bearing on the support was not checked" in Sheet(d, data, CODES).cautions().latex
+
+
+@pytest.mark.parametrize("cells,column", [
+    (dict(POST, bears_on="sawn S-P-F No.9"), "bears_on"),
+    (dict(POST, bears_on="brick"), "bears_on"),
+    (dict(PURLIN, Lu="0", bears_on="steel"), "bears_on"),
+    (dict(PURLIN, Lu="0", bearing="64", bearing_width="50"), "bearing_width"),
+    (dict(PURLIN, Lu="0", bearing_width="30"), "bearing_width"),
+], ids=["bad-grade", "unknown", "on-a-beam", "wider-than-member", "no-bearing-length"])
+def test_bearing_columns_are_validated(tmp_path, cells, column):
+    _, errors = errors_of(tmp_path, [member_row("B-9", **cells)])
+    assert f"column '{column}'" in errors["B-9"][0]
+
+
+def test_beam_bearing_width_and_skipped_bearing(tmp_path, data):
+    # Hand calculation. 38x184 S-P-F purlin on a 30 mm wide ledger, l_b = 64 mm, dry: f_cp 5.3 MPa, φ 0.8,
+    # K_B 1.0, K_Zcp 1.0 (b/d ≤ 1): 1.25D + 1.5S (K_D 1.0): Q_r = 0.8·5.3·(30·64) = 8.14 kN (38 mm: 10.31 kN)
+    d = design_row(tmp_path, data, **dict(PURLIN, Lu="0", bearing="64", bearing_width="30"))
+    c = next(c for c in d.checks if c.check == "bearing" and c.combination == "1.25D + 1.5S")
+    assert c.resistance == pytest.approx(8.14, abs=0.01)
+    skipped = design_row(tmp_path, data, **dict(PURLIN, Lu="0"))
+    assert any("bearing at the supports not checked" in w for w in skipped.warnings)

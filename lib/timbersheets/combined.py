@@ -90,6 +90,10 @@ def design_combined(ctx, cases: list[LoadCase], sense: str) -> list[CheckResult]
             check = check_beam_column if sense == "compression" else check_tension_bending
             groups["interaction"].append(check(ctx, case, axial, axial_r, forces.M_f, moment_r))
     out = [c for name in (sense, "bending", "shear", "interaction") for c in groups[name]]
+    if sense == "compression":
+        from .design import support_bearings
+
+        out += support_bearings(ctx, cases)
     if not groups[sense] or not groups["bending"]:
         missing = "axial force (P_D … P_E)" if not groups[sense] else "bending (w_* or M_*)"
         raise DesignError(ctx.mark, f"carries no {missing} under any combination", "",

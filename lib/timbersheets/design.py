@@ -11,7 +11,7 @@ from dataclasses import dataclass, field
 
 from .analysis import loading_mode, member_forces, service_cases
 from .checks import CheckResult
-from .checks.bearing import check_bearing
+from .checks.bearing import check_bearing, check_support_bearing
 from .checks.bending import check_bending
 from .checks.compression import check_compression
 from .checks.deflection import check_deflection
@@ -155,9 +155,17 @@ def _axial(sense: str) -> Callable[[Context, list[LoadCase]], list[CheckResult]]
         out = [check(ctx, case, case.factored["P"]) for case in cases if case.factored["P"] > EPS]
         if not out:
             raise DesignError(ctx.mark, "carries no axial force", "", "Give the axial loads P_D … P_E")
+        if sense == "compression":
+            out += support_bearings(ctx, cases)
         return out
 
     return design
+
+
+def support_bearings(ctx: Context, cases: list[LoadCase]) -> list[CheckResult]:
+    """Bearing of a column's end on the timber it bears on, per combination that compresses it."""
+    out = [check_support_bearing(ctx, case, case.factored["P"]) for case in cases if case.factored["P"] > EPS]
+    return [c for c in out if c is not None]
 
 
 def _bending(ctx: Context, cases: list[LoadCase]) -> list[CheckResult]:

@@ -20,7 +20,8 @@ from typing import Any
 
 from .errors import JobError, ParameterError, ScheduleError
 from .loads import KD_OVERRIDE_RANGE
-from .materials import GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, sawn_table_grade
+from .materials import (GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, parse_support,
+                        sawn_table_grade)
 from .sections import Section, parse_size, sawn_category
 from .units import UnitParseError, convert, parse_quantity
 
@@ -102,6 +103,13 @@ def _columns() -> tuple[Column, ...]:
         Column("restraint", "choice", choices=("purlins", "blocking", "both-edges"),
                meaning="lateral bracing beyond what Lu says: purlins (top edge held at the purlins, Lu = their "
                        "spacing), blocking (Lu = 0 plus bridging or blocking at 8d), both-edges (Lu = Lu_bottom = 0)"),
+        Column("bears_on", "text",
+               meaning="what a column or post bears on: sawn <species> <grade>, glulam <species> <grade>, steel, "
+                       "concrete (timber: compression perpendicular to grain checked in the support)",
+               blank="none: the sheet and results warn that bearing on the support was not checked"),
+        Column("bearing_width", "quantity", "mm", "mm", minimum=0, strict=True,
+               meaning="width of a beam's bearing where the support is narrower than the beam",
+               blank="the member width"),
         Column("net_area", "number", default=1.0, minimum=0, strict=True,
                meaning="A_n / A_g at the worst cross-section (holes, notches)"),
         Column("bearing", "quantity", "mm", "mm", minimum=0, strict=True,
@@ -461,6 +469,7 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> li
                                   "leaves less than 75 % of the gross area; O86 does not allow designing on it",
                                   "a ratio from 0.75 to 1.0; reduce the holes or notches"))
     errs += _lateral_support_checks(file, row, v, given)
+    errs += _bearing_checks(file, row, v, data)
     for name in ("Lx", "Ly", "Lu", "Lu_bottom"):
         if v[name] is not None and v[name] > v["length"] * (1 + 1e-9) and name in given:
             errs.append(ScheduleError(file, row, name, f"{v[name] / 1000:g} m", f"is longer than the member (length {v['length'] / 1000:g} m)",
@@ -476,6 +485,40 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> li
     if v["K_H"] is not None and v["K_H"] > 1.4:
         errs.append(ScheduleError(file, row, "K_H", f"{v['K_H']:g}", "exceeds the largest system factor of O86 "
                                   "(1.4, Case 2 for bending and shear)", "1.0 to 1.4"))
+    return errs
+
+
+def _bearing_checks(file: str, row: int, v: dict[str, Any], data) -> list[ScheduleError]:
+    """bears_on for columns and posts (named timber, steel or concrete); bearing_width for beams."""
+    errs = []
+    if v["bears_on"]:
+        allowed = "sawn <species> <grade>, glulam <species> <grade>, steel or concrete, e.g. 'sawn S-P-F No.1'"
+        if v["type"] not in ("compression", "beam-column"):
+            return [ScheduleError(file, row, "bears_on", v["bears_on"], "applies to columns and posts (compression, "
+                                  "beam-column)", "blank for this type; give bearing for a beam's supports")]
+        try:
+            support = parse_support(v["bears_on"])
+        except ValueError as exc:
+            return [ScheduleError(file, row, "bears_on", v["bears_on"], str(exc), allowed)]
+        if isinstance(support, tuple):
+            material, species, grade = support
+            grades = (SAWN_GRADES if material == "sawn" else tuple(sorted(data.glulam_grades().get(species, ()))))
+            found = canonical_grade(grade, grades)
+            if found is None:
+                return [ScheduleError(file, row, "bears_on", v["bears_on"], f"names a grade that is not a {material} "
+                                      f"grade of {species}", ", ".join(grades))]
+            v["bears_on"] = f"{material} {species} {found}"
+        else:
+            v["bears_on"] = support
+    if v["bearing_width"] is not None:
+        if v["type"] != "bending" or v["bearing"] is None:
+            errs.append(ScheduleError(file, row, "bearing_width", f"{v['bearing_width']:g} mm", "applies to a "
+                                      "beam's bearings and needs their length in 'bearing'",
+                                      "blank, or give bearing (the length) on a bending member"))
+        elif v["size"] != "auto" and v["bearing_width"] > v["size"][0]:
+            errs.append(ScheduleError(file, row, "bearing_width", f"{v['bearing_width']:g} mm", f"is wider than the "
+                                      f"member ({v['size'][0]:g} mm); the bearing area cannot exceed it",
+                                      f"at most {v['size'][0]:g} mm, or blank for the member width"))
     return errs
 
 
