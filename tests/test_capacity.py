@@ -315,3 +315,37 @@ def test_beam_bearing_width_and_skipped_bearing(tmp_path, data):
     assert c.resistance == pytest.approx(8.14, abs=0.01)
     skipped = design_row(tmp_path, data, **dict(PURLIN, Lu="0"))
     assert any("bearing at the supports not checked" in w for w in skipped.warnings)
+
+
+# ----------------------------------------------------------------------------- storage live load
+def test_storage_companion_and_long_term_kd(data):
+    # NBC 4.1.3.2 note (data/nbc2020_uls_combinations.csv rows 4b, 4e, memory): companion 0.5L → 1.0L for
+    # storage; O86 Table 5.1 (memory of its wording): storage loads are long-term. Hand calculation, D 5, L 8,
+    # S 2, W 3 kN (axial):
+    #   1.25D + 1.5L: long-term → K_D = 0.65 (general: 1.0)
+    #   1.25D + 1.4W + 1.0L: P_f = 6.25 + 4.2 + 8.0 = 18.45 kN (general 0.5L: 14.45 kN); K_D 1.15 (W principal)
+    #   1.25D + 1.5S + 1.0L: X_lt = 5 + 8 = 13 > X_st = 2: K_D = 1 − 0.5·log10(13/2) = 0.594 → 0.65 (floor)
+    from timbersheets.loads import Effects, apply_combinations
+
+    effects = Effects({"P": {"D": 5000.0, "L": 8000.0, "S": 2000.0, "W": 3000.0, "E": 0.0}})
+    storage = {c.label: c for c in apply_combinations(effects, data, [], storage=True)}
+    general = {c.label: c for c in apply_combinations(effects, data, [])}
+    assert storage["1.25D + 1.5L"].K_D == 0.65 and general["1.25D + 1.5L"].K_D == 1.0
+    assert "storage" in storage["1.25D + 1.5L"].basis
+    assert storage["1.25D + 1.4W + 1.0L"].factored["P"] == pytest.approx(18450.0)
+    assert general["1.25D + 1.4W + 0.5L"].factored["P"] == pytest.approx(14450.0)
+    assert "1.25D + 1.4W + 0.5L" not in storage
+    assert storage["1.25D + 1.5S + 1.0L"].K_D == pytest.approx(0.65)
+    assert general["1.25D + 1.5S + 1.0L"].K_D == pytest.approx(1.0)  # X_lt = 5 < X_st = 10
+
+
+def test_storage_floor_beam_hand_calculation(tmp_path, data):
+    # Hand calculation. 38x235 S-P-F No.1/No.2 joist (f_b 11.8 MPa), K_H 1.1, L = 3.4 m, decked, w_D 0.31,
+    # w_L 1.46 kN/m, live_use = storage: 1.25D + 1.5L with K_D = 0.65 (long term):
+    #   F_b = 11.8·0.65·1.1 = 8.437 MPa;  S = 38·235²/6 = 349 758 mm³;  K_Zb = 1.1 (235 mm);  K_L = 1.0
+    #   M_r = 0.9·8.437·349 758·1.1 = 2.921 kN·m (general use, K_D 1.0: 4.494 kN·m)
+    d = design_row(tmp_path, data, **dict(PURLIN, size="38x235", length="3.4", Lu="0", w_D="0.31", w_S="",
+                                          w_L="1.46", live_use="storage"))
+    c = bending_under(d, "1.25D + 1.5L")
+    assert c.K_D == 0.65 and c.resistance == pytest.approx(2.921, rel=0.002)
+    assert "live\\_use = storage" in Sheet(d, data, CODES).combinations_section().latex

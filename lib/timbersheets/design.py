@@ -108,7 +108,7 @@ def load_cases(member: Member, data: DataSet, used: list[Datum]) -> list[LoadCas
     A tension member with bending also gets every 0.9D alternative: least dead-load tension with the full
     moment is what puts its compression face in compression (O86 interaction, compression face)."""
     return apply_combinations(effects_of(member), data, used, member.K_D, both_senses=member.wind_sense != "one-way",
-                              least_tension=member.type == "tension-bending")
+                              least_tension=member.type == "tension-bending", storage=member.live_use == "storage")
 
 
 def build_context(member: Member, data: DataSet, section: Section | None = None) -> Context:

@@ -122,7 +122,7 @@ class LoadCase:
 
 
 def load_duration(comb: Combination, effects: Effects, data: DataSet, used: list[Datum],
-                  override: float | None) -> tuple[float, str, dict[str, float], str]:
+                  override: float | None, storage: bool = False) -> tuple[float, str, dict[str, float], str]:
     """K_D for one combination (CSA O86:19 5.3.2, Table 5.1), one value for every resistance of it.
 
     The class of the principal load sets K_D: long term (dead only) 0.65,
@@ -135,8 +135,12 @@ def load_duration(comb: Combination, effects: Effects, data: DataSet, used: list
     in the dead-only combination, whose factor 1.4 against 1.25 makes it the
     more severe case. The schedule's K_D replaces the computed value, except
     that it never raises the K_D of a dead-only combination.
+
+    With `storage` (live_use = storage) the live load is long-term load, as O86
+    Table 5.1 classes storage loads with dead load: an L-principal combination is
+    long-term, and elsewhere L joins the long-term part X_lt.
     """
-    cls = DURATION_CLASS[comb.principal]
+    cls = "long" if storage and comb.principal == "L" else DURATION_CLASS[comb.principal]
     table = data.duration_factor(cls)
     used.append(table)
     if override is not None:
@@ -144,20 +148,38 @@ def load_duration(comb: Combination, effects: Effects, data: DataSet, used: list
             return table.value, (f"schedule K_D = {override:g} not applied: it would raise the long-term K_D of a "
                                  "dead-only combination (Table 5.1)"), {}, ""
         return override, f"schedule K_D override (computed: {cls}-term, Table 5.1)", {}, ""
+    if cls != "standard" and storage and comb.principal == "L":
+        return table.value, "long-term (storage live load L principal), Table 5.1", {}, ""
     if cls != "standard":
         return table.value, f"{cls}-term ({comb.principal} principal), Table 5.1", {}, ""
     best: tuple[float, dict[str, float], str] = (table.value, {}, "")
+    long_loads = ("D", "L") if storage else ("D",)
     for effect in effects.present():
-        x_lt = abs(effects.get(effect, "D"))
-        x_st = abs(sum(effects.get(effect, t) for t in STANDARD_TERM if comb.factors[t]))
+        x_lt = abs(sum(effects.get(effect, t) for t in long_loads if comb.factors[t]))
+        x_st = abs(sum(effects.get(effect, t) for t in STANDARD_TERM if comb.factors[t] and t not in long_loads))
         if x_st > 0 and x_lt > x_st:
             values = kd_permanent(X_lt=x_lt, X_st=x_st)
             if values["K_D"] < best[0]:
                 best = (values["K_D"], values, effect)
     kd, values, effect = best
     if values:
-        return kd, f"standard-term, long-term part X_lt > X_st (5.3.2.3, on {effect})", values, effect
+        part = "dead and storage" if storage else "dead"
+        return kd, f"standard-term, long-term ({part}) part X_lt > X_st (5.3.2.3, on {effect})", values, effect
     return kd, f"standard-term ({comb.principal} principal), Table 5.1", {}, ""
+
+
+#: NBC 4.1.3.2 (table note on storage, equipment and service areas; memory, as data/nbc2020_uls_combinations.csv
+#: records it for combinations 4b and 4e): the companion factor 0.5 on L rises to 1.0. Applied to every 0.5L
+#: companion, on the safe side where the note's reach is not recorded.
+STORAGE_COMPANION = (0.5, 1.0)
+
+
+def storage_companions(comb: Combination) -> Combination:
+    """`comb` for a storage, equipment or service area: a companion 0.5L becomes 1.0L."""
+    low, high = STORAGE_COMPANION
+    if comb.principal == "L" or comb.factors["L"] != low:
+        return comb
+    return replace(comb, factors={**comb.factors, "L": high})
 
 
 def _senses(comb: Combination, effects: Effects, both_senses: bool) -> list[Combination]:
@@ -173,13 +195,15 @@ def _opposes_dead(comb: Combination, effects: Effects) -> bool:
 
 def apply_combinations(effects: Effects, data: DataSet, used: list[Datum],
                        override: float | None = None, both_senses: bool = True,
-                       least_tension: bool = False) -> list[LoadCase]:
+                       least_tension: bool = False, storage: bool = False) -> list[LoadCase]:
     """Every combination that matters for the member, with factored effects and K_D.
 
     Wind and earthquake act in both senses unless `both_senses` is False (the
     row's wind_sense = one-way): each combination that carries them is applied
     as given and reversed. With `least_tension` (tension with bending) every
     0.9D alternative is kept: it gives the least axial tension with the moment.
+    With `storage` (live_use = storage) every companion 0.5L becomes 1.0L
+    (:func:`storage_companions`) and live load is long-term in K_D.
     Skipped: combinations whose principal load the member
     does not carry, the 0.9D alternatives unless a load of that combination acts
     against the dead load (or `least_tension`), combinations whose factored effects are all zero, and
@@ -188,7 +212,8 @@ def apply_combinations(effects: Effects, data: DataSet, used: list[Datum],
     cases: list[LoadCase] = []
     seen: set[tuple] = set()
     resists = effects.dead_resists()
-    senses = [c for comb in combinations(data) for c in _senses(comb, effects, both_senses)]
+    table = [storage_companions(c) for c in combinations(data)] if storage else combinations(data)
+    senses = [c for comb in table for c in _senses(comb, effects, both_senses)]
     for comb in senses:
         if comb.principal != "D" and not any(effects.get(e, comb.principal) for e in EFFECTS):
             continue
@@ -197,7 +222,7 @@ def apply_combinations(effects: Effects, data: DataSet, used: list[Datum],
         factored = {e: sum(comb.factors[t] * effects.get(e, t) for t in LOAD_TYPES) for e in EFFECTS}
         if all(abs(v) < 1e-9 for v in factored.values()):
             continue
-        kd, basis, values, effect = load_duration(comb, effects, data, used, override)
+        kd, basis, values, effect = load_duration(comb, effects, data, used, override, storage)
         key = tuple(round(factored[e], 6) for e in EFFECTS) + (round(kd, 6),)
         if key in seen:
             continue

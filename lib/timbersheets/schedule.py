@@ -126,6 +126,9 @@ def _columns() -> tuple[Column, ...]:
         Column("K_D", "number", minimum=0, strict=True,
                meaning="override of the load-duration factor, 0.65 to 1.15; never raises the dead-only combination; "
                        "marked on the sheet", blank="computed per combination"),
+        Column("live_use", "choice", default="general", choices=("general", "storage"),
+               meaning="general, or storage (storage, equipment and service areas): companion 0.5L becomes 1.0L "
+                       "(NBC note) and live load is long-term in K_D (O86 Table 5.1)"),
         Column("self_weight", "choice", default="yes", choices=("yes", "no"),
                meaning="yes: the tool adds the member's own weight to D from the density data; no: the given D "
                        "includes it"),

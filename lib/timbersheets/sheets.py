@@ -247,6 +247,12 @@ class Sheet:
                      "0.65 is the more severe case).",
                      "ULS load combinations of NBC Table 4.1.3.2.-A; K_D by the principal load (CSA O86 5.3.2), one "
                      "value per combination.")
+        if self.m.live_use == "storage" and any(self.m.values[f"{e}_L"] for e in EFFECTS):
+            storage = ("Storage live load (live_use = storage): every companion 0.5L is raised to 1.0L (the NBC "
+                       "4.1.3.2 note on storage areas, equipment areas and service rooms; recorded from memory), and "
+                       "the live load is long-term load in K_D, as O86 Table 5.1 classes storage loads: 0.65 where L "
+                       "is the principal load, and L counted in the long-term part X_lt elsewhere.")
+            intro += para(escape(storage), storage)
         if any(self.m.values[f"{e}_{t}"] for e in EFFECTS for t in ("W", "E")):
             senses = ("Wind and earthquake act in both senses (wind_sense = both): every combination with W or E "
                       "is applied as the schedule gives the load (+) and reversed (−), with 0.9D where the reversed "
