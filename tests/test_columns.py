@@ -26,5 +26,5 @@ def test_columns_command_prints_every_column():
     heads = [line.split()[0] for line in out.splitlines() if line and not line.startswith(" ")]
     assert heads == list(COLUMNS)
     # the unit of a bare number and a default, as the table gives them
-    assert "length [m]  (default: required)" in out
+    assert "length [m]  (default: required, except on a beam that gives spans)" in out
     assert "defl_L  (default: 360)" in out

@@ -14,7 +14,8 @@ from hypothesis import strategies as st
 
 from conftest import design_row, write_schedule
 from timbersheets.checks.combined import beam_column, euler_load
-from timbersheets.design import design_member, member_types
+from timbersheets.design import design_member
+from timbersheets.membertypes import member_types
 from timbersheets.schedule import load_schedule
 from timbersheets.sizing import catalogue, size
 

@@ -39,13 +39,13 @@ def test_cover_grammar_and_a_blank_checker(tmp_path):
     # 38x89 stud's capacity) and one that passes.
     rows = [member_row("A-1", size="38x89", P_D="60"), member_row("A-2")]
     tex = front_matter(tmp_path, rows[:1], checker="")
-    assert "Checker & not named (0 of 1 member checked)" in tex
+    assert "Checker & not named (0 of 1 member checked ok, 1 not checked)" in tex
     assert "1 member: 0 pass, 1 does not pass, 0 not designed" in tex
-    assert "1 of 1 member is not checked, or changed since its check." in tex
+    assert "Review: 0 of 1 member checked ok, 1 not checked." in tex
     assert ";" not in tex.split("Checker &")[1].split("\\\\")[0]
 
     tex = front_matter(tmp_path / "two", rows)
-    assert "Checker & RD (0 of 2 members checked)" in tex
+    assert "Checker & RD (0 of 2 members checked ok, 2 not checked)" in tex
     assert "2 members: 1 passes, 1 does not pass, 0 not designed" in tex
 
 

@@ -184,7 +184,8 @@ def test_templates_run_top_to_bottom_with_their_defaults(tmp_path):
     import papermill
 
     from timbersheets.data import DataSet
-    from timbersheets.design import design_member, member_types
+    from timbersheets.design import design_member
+    from timbersheets.membertypes import member_types
     from timbersheets.pipeline import templates_dir
     from timbersheets.results import member_json
     from timbersheets.schedule import load_schedule

@@ -37,6 +37,13 @@ BAD = [
     ("bad-type", {"type": "arch"}, "type", ["'arch'", "tension", "compression"]),
     ("timber-grade", {"size": "140x140", "grade": "No.1/No.2"}, "grade", ["'No.1/No.2'", "SS, No.1, No.2"]),
     ("lx-too-long", {"Lx": "4"}, "Lx", ["'4 m'", "longer than the member"]),
+    ("unclosed-bracket", {"length": "12 ft)"}, "length", ["'12 ft)'", "unknown unit", "12 ft"]),
+    ("trailing-slash", {"length": "3 m/"}, "length", ["'3 m/'", "unknown unit", "3.6 m"]),
+    ("divide-by-zero", {"P_D": "20 kN/0"}, "P_D", ["'20 kN/0'", "unknown unit", "12 kN"]),
+    ("power-zero", {"length": "3 m**0"}, "length", ["'3 m**0'", "unknown unit"]),
+    ("moment-hint", {"M_D": "3 kN"}, "M_D", ["'3 kN'", "not a moment", "kip-ft", "kN*m"]),
+    ("line-load-hint", {"w_L": "3 ft"}, "w_L", ["'3 ft'", "not a line load", "plf"]),
+    ("too-many-inches", {"length": "9'-14\""}, "length", ["'9'-14\"'", "12 inches"]),
 ]
 
 
@@ -54,6 +61,7 @@ def test_bad_cell_names_row_column_and_value(tmp_path, case_id, cells, column, w
     assert f"column '{column}'" in message
     for word in words:
         assert word in message, message
+    assert "[" not in message and "Error" not in message, message  # no pint dimension or exception text
     assert by_mark["OK-1"].status == "pass" and by_mark["OK-2"].status == "pass"
     results = json.loads((tmp_path / "out" / "rev-A" / "results.json").read_text())
     statuses = {m["mark"]: m["status"] for m in results["members"]}
@@ -111,14 +119,49 @@ def test_imperial_units_give_the_same_member(tmp_path):
     assert imperial.P_D == pytest.approx(si.P_D, rel=1e-5)
 
 
-def test_cli_exit_codes(tmp_path):
+# Exact conversions by definition (international yard and pound, 1959; NIST SP 811 appendix B):
+# 1 ft = 0.3048 m, 1 in = 25.4 mm, 1 lbf = 4.4482216152605 N, 1 kip = 1000 lbf.
+LBF, FT = 4.4482216152605, 304.8  # N, mm
+TRADE_UNITS = [
+    ("feet-mark", "length", "12'", 12 * FT),
+    ("inch-mark", "length", '12"', 12 * 25.4),
+    ("feet-and-inches-words", "length", "12 ft 6 in", 12.5 * FT),
+    ("feet-and-inches-marks", "length", "12'-6\"", 12.5 * FT),
+    ("feet-and-inches-space", "length", "12' 6\"", 12.5 * FT),
+    ("kip-ft", "M_D", "10 kip-ft", 10 * 1000 * LBF * FT),
+    ("kN-m", "M_D", "3 kN-m", 3e6),
+    ("kNm", "M_D", "3 kNm", 3e6),
+    ("plf", "w_D", "300 plf", 300 * LBF / FT),
+    ("klf", "w_D", "2 klf", 2000 * LBF / FT),
+]
+
+
+@pytest.mark.parametrize("case_id,column,text,expected", TRADE_UNITS, ids=[t[0] for t in TRADE_UNITS])
+def test_trade_unit_spellings(tmp_path, case_id, column, text, expected):
+    cells = {column: text} if column != "length" else {"length": text, "Ly": "0"}
+    s = load_schedule(write_schedule(tmp_path, [member_row("A", **cells)]))
+    assert not s.rejected, [str(e) for r in s.rejected for e in r.errors]
+    assert getattr(s.members[0], column) == pytest.approx(expected, rel=1e-9)
+
+
+def test_psf_reads_as_a_pressure():
+    from timbersheets.units import parse_quantity
+
+    # 50 psf = 50 lbf / (0.3048 m)² = 50 × 4.4482216152605 / 0.09290304 Pa = 2394.0 Pa
+    assert parse_quantity("50 psf", "kPa") == pytest.approx(50 * LBF / 0.3048**2 / 1000, rel=1e-9)
+
+
+def test_cli_exit_codes(tmp_path, capsys):
+    from timbersheets.cli import main
+
     job = write_job(tmp_path / "job", [GOOD])
-    run = [sys.executable, "-m", "timbersheets.cli", "run", "--no-pdf", "--out", str(tmp_path / "o")]
-    assert subprocess.run([*run, str(job)], capture_output=True).returncode == 0
+    run = ["run", "--no-pdf", "--out", str(tmp_path / "o")]
+    assert main([*run, str(job)]) == 0
     write_job(tmp_path / "job", [GOOD, member_row("BIG", P_D="500")])
-    assert subprocess.run([*run, str(job)], capture_output=True).returncode == 1
+    assert main([*run, str(job)]) == 1
     (job / "project.toml").write_text("[project\n", encoding="utf-8")
-    done = subprocess.run([*run, str(job)], capture_output=True, text=True)
-    assert done.returncode == 2 and "project.toml" in done.stderr
-    done = subprocess.run([*run, str(tmp_path / "nowhere")], capture_output=True, text=True)
+    assert main([*run, str(job)]) == 2 and "project.toml" in capsys.readouterr().err
+    # the process itself exits with the code main returns
+    done = subprocess.run([sys.executable, "-m", "timbersheets.cli", *run, str(tmp_path / "nowhere")],
+                          capture_output=True, text=True)
     assert done.returncode == 2 and "not a job folder" in done.stderr

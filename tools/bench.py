@@ -7,7 +7,11 @@ load changes, and a naive loop on the same members (papermill CLI, then
 machine: cold run at least 5x faster than the naive loop; one-member change
 within 10 s.
 
-    python tools/bench.py [--members 100] [--naive N]   (N members for the naive loop; 0 skips it)
+Beam models: the analysis time of each demo member analysed as a beam model (PyCBA, cache cleared)
+and the sizing time of the two-span continuous floor joist FJ-1 (size = auto); targets <= 50 ms a
+member's analysis, <= 0.5 s the joist's sizing. `--beams` reports only these.
+
+    python tools/bench.py [--members 100] [--naive N] [--beams]   (N members for the naive loop; 0 skips it)
 """
 
 from __future__ import annotations
@@ -15,6 +19,7 @@ from __future__ import annotations
 import argparse
 import csv
 import json
+import re
 import shutil
 import subprocess
 import sys
@@ -37,7 +42,11 @@ def build_job(root: Path, members: int) -> Path:
     out = []
     for i in range(members):
         row = dict(rows[i % len(rows)])
-        row["mark"] = f"{row['mark']}-{i // len(rows) + 1:02d}"
+        suffix = f"-{i // len(rows) + 1:02d}"
+        row["mark"] += suffix
+        if row.get("carries"):  # carry the member of the same copy
+            row["carries"] = "; ".join(re.sub(r"^([^@]+?)(?=\.R\d+(@|$)|@|$)", lambda m: m.group(1) + suffix, e.strip())
+                                       for e in row["carries"].split(";"))
         out.append(row)
     with open(job / "schedule.csv", "w", newline="", encoding="utf-8") as handle:
         writer = csv.DictWriter(handle, fieldnames=header, lineterminator="\n")
@@ -72,7 +81,7 @@ def naive_loop(job: Path, out: Path, count: int) -> tuple[float, int]:
     work is organised (a process and a kernel per member, three TeX passes, no cache).
     """
     sys.path.insert(0, str(REPO / "lib"))
-    from timbersheets.design import member_types
+    from timbersheets.membertypes import member_types
     from timbersheets.schedule import load_schedule
 
     members = load_schedule(job / "schedule.csv").members[:count]
@@ -94,7 +103,8 @@ def sizing_times(job: Path) -> list[str]:
     """Sizing time of every auto member, and of a full-catalogue sweep (the worst case)."""
     sys.path.insert(0, str(REPO / "lib"))
     from timbersheets.data import DataSet
-    from timbersheets.design import effects_of, member_types
+    from timbersheets.design import design_function, effects_of
+    from timbersheets.membertypes import member_type
     from timbersheets.loads import apply_combinations
     from timbersheets.schedule import load_schedule
     from timbersheets.sizing import catalogue, evaluate, size
@@ -103,7 +113,7 @@ def sizing_times(job: Path) -> list[str]:
     members = [m for m in load_schedule(job / "schedule.csv").members if m.size == "auto"]
     lines, worst = [], 0.0
     for m in members:
-        design = member_types()[m.type].design
+        design = design_function(member_type(m.type))
         size(m, data, design)  # warm the data look-ups once
         start = time.perf_counter()
         result = size(m, data, design)
@@ -123,11 +133,52 @@ def sizing_times(job: Path) -> list[str]:
     return lines
 
 
+def beam_times() -> list[str]:
+    """Analysis time per beam-model member of the demo, and the sizing time of the continuous joist FJ-1."""
+    sys.path.insert(0, str(REPO / "lib"))
+    from timbersheets import beamdesign, beammodel
+    from timbersheets.data import DataSet
+    from timbersheets.design import design_all, design_member
+    from timbersheets.schedule import load_schedule
+
+    data = DataSet()
+    schedule = load_schedule(DEMO / "schedule.csv")
+    designs = design_all(schedule.entries, data)  # resolves carried loads; imports PyCBA once
+    members = [d.member for d in designs if d.member is not None and beamdesign.is_model(d.member)]
+    lines, worst = [], 0.0
+    for m in members:
+        beammodel.region_responses.cache_clear()
+        beamdesign._model.cache_clear()
+        start = time.perf_counter()
+        design_member(m, data)
+        took = time.perf_counter() - start
+        worst = max(worst, took)
+        lines.append(f"    {m.mark:<10} analysis and checks {took * 1000:6.1f} ms ({len(beamdesign.geometry_of(m).regions)} "
+                     "regions)")
+    lines.append(f"  beam model: slowest {worst * 1000:.0f} ms a member   target <= 50 ms: "
+                 f"{'met' if worst <= 0.05 else 'NOT met'}")
+    joist = next(m for m in members if m.mark == "FJ-1")
+    auto = type(joist)(joist.mark, joist.row, {**joist.values, "size": "auto"}, joist.given)
+    beammodel.region_responses.cache_clear()
+    beamdesign._model.cache_clear()
+    start = time.perf_counter()
+    outcome = design_member(auto, data)
+    took = time.perf_counter() - start
+    chosen = outcome.sizing.chosen.label if outcome.sizing and outcome.sizing.chosen else "none"
+    lines.append(f"  continuous joist FJ-1 sized in {took:.2f} s ({outcome.sizing.searched} tried, chose {chosen})   "
+                 f"target <= 0.5 s: {'met' if took <= 0.5 else 'NOT met'}")
+    return lines
+
+
 def main() -> int:
     parser = argparse.ArgumentParser(description=__doc__, formatter_class=argparse.RawDescriptionHelpFormatter)
     parser.add_argument("--members", type=int, default=100)
     parser.add_argument("--naive", type=int, default=None, help="members in the naive loop (default: all)")
+    parser.add_argument("--beams", action="store_true", help="only the beam-model analysis and sizing figures")
     args = parser.parse_args()
+    if args.beams:
+        print("\n".join(beam_times()))
+        return 0
     cli = [str(BIN / "timbersheets"), "run"]
     with tempfile.TemporaryDirectory(prefix="ts-bench-") as tmp:
         root = Path(tmp)
@@ -145,6 +196,7 @@ def main() -> int:
         print(f"  one load changed ({mark}) {one:7.1f} s   target <= 10 s: {'met' if one <= 10 else 'NOT met'}")
         print(f"  last run: {log}")
         print("\n".join(sizing_times(job)))
+        print("\n".join(beam_times()))
         count = args.members if args.naive is None else args.naive
         if count:
             naive, n = naive_loop(job, root / "naive", count)

@@ -21,6 +21,7 @@ from .calc import calc
 from .data import Datum
 from .errors import DesignError
 from .loads import LOAD_TYPES, LoadCase
+from .membertypes import member_type
 
 SPAN_CLAUSE = "simply supported span, uniform load"
 #: Deflection under specified loads (CSA O86:19 5.4.2; memory, unverified clause number).
@@ -60,7 +61,7 @@ def loading_mode(member) -> str:
     def given(prefix: str) -> bool:
         return any(member.values[f"{prefix}_{t}"] for t in LOAD_TYPES)
 
-    combined = member.type in ("beam-column", "tension-bending")
+    combined = member_type(member.type).axial is not None  # a type that takes axial force with its bending
     if given("P") and not combined:
         raise DesignError(member.mark, "a bending member with axial load P_* needs the combined check", "",
                           "Give type beam-column (compression) or tension-bending, or remove P_*")
@@ -120,6 +121,21 @@ class ServiceCase:
     @property
     def label(self) -> str:
         return " + ".join(f"{f:.1f}{t}" for t, f in self.factors.items())
+
+
+def service_cases_for(member, data, present: list[str]) -> list[ServiceCase]:
+    """The SLS combinations of :func:`service_cases` for a beam model carrying the load types `present`;
+    `w_s` is not used (the model gives the deflection)."""
+    out = []
+    by_check: dict[str, list[tuple[str, Datum]]] = {}
+    for check, load, datum in data.sls_factors():
+        by_check.setdefault(check, []).append((load, datum))
+    for check, rows in by_check.items():
+        used = [(t, d) for t, d in rows if t in present]
+        if not used or (check == "deflection-live" and all(t == "D" for t, _ in used)):
+            continue
+        out.append(ServiceCase(check, {t: d.value for t, d in used}, 0.0, tuple(d for _, d in used)))
+    return out
 
 
 def service_cases(member, data) -> list[ServiceCase]:

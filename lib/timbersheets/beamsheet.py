@@ -8,10 +8,12 @@ analysis functions the design used.
 from __future__ import annotations
 
 from .analysis import loading_mode, member_forces, service_cases
+from .beamdesign import is_model
 from .calc import format_number, format_value
 from .checks.bending import bottom_edge_words
 from .errors import TimbersheetsError
 from .ownweight import gives_line_loads
+from .membertypes import member_type
 from .sheets import Block, heading, para, q, table
 from .tex import Cell, Table, escape
 from .units import to_display
@@ -26,7 +28,7 @@ def member_rows(m, section) -> list[list[object]]:
     if frame:
         span = Cell(f"$L = {format_value(m.length, 'mm')}$; moments and shears from the frame model (the length "
                     "sets lateral stability and the glulam size factor)", f"L = {m.length:g} mm, frame-model forces")
-    elif m.type == "bending":
+    elif member_type(m.type).axial is None:  # a beam on its supports, no axial force
         span = Cell(f"$L = {format_value(m.length, 'mm')}$, simply supported; the design span between the centres of "
                     "the bearings", f"L = {m.length:g} mm, simply supported")
     else:
@@ -42,21 +44,36 @@ def member_rows(m, section) -> list[list[object]]:
         mode = ""
     loading = {"line": "uniform line loads on the span (the forces are computed below)",
                "forces": "moments and shears from a frame model, used as given"}.get(mode, "see section 5")
+    limits = Cell(f"$L/{format_number(m.defl_L, 'mm')}$ under live load, "
+                  f"$L/{format_number(m.defl_total, 'mm')}$ under total load",
+                  f"L/{m.defl_L:g} live, L/{m.defl_total:g} total")
+    spans = [["Span", span]]
+    if is_model(m):
+        from .beammodel import library
+        from .modelsheet import geometry_rows
+
+        spans = geometry_rows(m)
+        lateral = lateral_support_words(m, model=True)
+        bearing = (Cell(f"$l_b = {format_value(m.bearing, 'mm')}$ at every support", f"l_b = {m.bearing:g} mm")
+                   if m.bearing is not None else bearing)
+        loading = f"beam model analysed with {escape(library())}, live and snow patterned (section 3)"
+        limits = Cell(f"span/{m.defl_L:g} live, span/{m.defl_total:g} "
+                      "total; at an overhang tip twice the overhang over the same divisor",
+                      f"span/{m.defl_L:g} live, span/{m.defl_total:g} total; overhang tips 2 × overhang / n")
     return [
-        ["Span", span],
+        *spans,
         ["Lateral support", Cell(escape(lateral), lateral)],
         ["Bearing", bearing],
         ["Loading", loading],
-        ["Deflection limits", Cell(f"$L/{format_number(m.defl_L, 'mm')}$ under live load, "
-                                   f"$L/{format_number(m.defl_total, 'mm')}$ under total load",
-                                   f"L/{m.defl_L:g} live, L/{m.defl_total:g} total")],
+        ["Deflection limits", limits],
         ["Net area", Cell(f"$A_n = {format_number(m.net_area)}\\,A_g = {format_value(section.A * m.net_area, 'mm**2')}$",
                           f"A_n = {m.net_area:g} A_g")],
     ]
 
 
-def lateral_support_words(m) -> str:
-    """One statement of how each edge is held, from Lu, Lu_bottom and restraint together."""
+def lateral_support_words(m, model: bool = False) -> str:
+    """One statement of how each edge is held, from Lu, Lu_bottom and restraint together (`model`: a beam
+    model, whose bottom edge without Lu_bottom is unsupported between supports)."""
     restraint = m.restraint
     if restraint == "both-edges":
         top = "both edges held in line (restraint = both-edges; Lu = Lu_bottom = 0)"
@@ -69,7 +86,11 @@ def lateral_support_words(m) -> str:
         top = f"top (compression) edge held at purlins or tie rods every Lu = {m.Lu / 1000:g} m (restraint = purlins)"
     else:
         top = f"top (compression) edge laterally unsupported over Lu = {m.Lu / 1000:g} m"
-    return (f"{top}; bottom edge (in compression under negative moment): {bottom_edge_words(m)}; ends held in "
+    bottom = bottom_edge_words(m)
+    if model and m.Lu_bottom is None:
+        bottom = ("Lu_bottom is not given, so it is taken as laterally unsupported between supports (an overhang: "
+                  "its length)")
+    return (f"{top}; bottom edge (in compression under negative moment): {bottom}; ends held in "
             "position and against rotation at the bearings")
 
 
@@ -78,6 +99,10 @@ def forces_block(design) -> Block:
     ctx, m = design.context, design.member
     if ctx is None or design.errors:
         return Block("", "")
+    if is_model(m):
+        from .modelsheet import forces_block as model_forces
+
+        return model_forces(design)
     out = heading("Member forces", 2)
     if loading_mode(m) == "forces":
         return out + para("Moments and shears from the frame model, combined by the factors of each combination "
@@ -107,6 +132,10 @@ def serviceability_block(design, data) -> Block:
     if design.errors or design.context is None:
         return Block("", "")
     m = design.context.member  # with its own weight in the dead load
+    if is_model(m):
+        from .modelsheet import serviceability_block as model_serviceability
+
+        return model_serviceability(design, data)
     mode = loading_mode(m)
     cases = service_cases(m, data) if gives_line_loads(m, design.context.own_weight) else []
     if not cases and mode == "forces":
@@ -142,6 +171,10 @@ def diagram(design) -> list[object]:
     from .diagrams import shear_moment_png
 
     m, ctx = design.member, design.context
+    if not design.errors and ctx is not None and is_model(m):
+        from .modelsheet import diagram as model_diagram
+
+        return model_diagram(design)
     if design.errors or ctx is None or loading_mode(m) != "line":
         return []
     gov = design.governing_by_check().get("bending")

@@ -25,6 +25,7 @@ from collections.abc import Callable, Mapping
 from functools import cached_property
 from typing import Any
 
+from .constants import UNIT_LATEX, UNIT_TEXT
 from .units import display_unit, to_display
 
 class Calc:
@@ -122,36 +123,14 @@ class Shown:
     __repr__ = __str__
 
 
-_UNIT_LATEX = {
-    "kN": r"\mathrm{kN}",
-    "kN*m": r"\mathrm{kN{\cdot}m}",
-    "kN/m": r"\mathrm{kN/m}",
-    "MPa": r"\mathrm{MPa}",
-    "mm": r"\mathrm{mm}",
-    "m": r"\mathrm{m}",
-    "mm**2": r"\mathrm{mm}^{2}",
-    "mm**3": r"\mathrm{mm}^{3}",
-    "mm**4": r"\mathrm{mm}^{4}",
-    "m**3": r"\mathrm{m}^{3}",
-    "kN/m**3": r"\mathrm{kN/m}^{3}",
-    "kg/m**3": r"\mathrm{kg/m}^{3}",
-    "N": r"\mathrm{N}",
-    "N*mm": r"\mathrm{N{\cdot}mm}",
-    "N/mm": r"\mathrm{N/mm}",
-}
-
-_UNIT_TEXT = {"kN*m": "kN·m", "mm**2": "mm²", "mm**3": "mm³", "mm**4": "mm⁴", "m**3": "m³", "kN/m**3": "kN/m³",
-              "kg/m**3": "kg/m³"}
-
-
 def unit_latex(u: str) -> str:
     """LaTeX for a display unit."""
-    return _UNIT_LATEX[u] if u in _UNIT_LATEX else rf"\mathrm{{{u}}}"
+    return UNIT_LATEX[u] if u in UNIT_LATEX else rf"\mathrm{{{u}}}"
 
 
 def unit_text(u: str) -> str:
     """Plain-text symbol for a display unit (kN·m, mm²)."""
-    return _UNIT_TEXT.get(u, u)
+    return UNIT_TEXT.get(u, u)
 
 
 FORCE_UNITS = ("kN", "kN*m", "kN/m")

@@ -30,7 +30,9 @@ def utilization_chart(members: list[dict[str, Any]], title: str) -> bytes:
             bar.set_hatch("////")
             bar.set_facecolor("white")
     ax.axvline(1.0, color="black", linewidth=1.2)
-    ax.text(1.0, -0.9, " 1.0", va="center", ha="left", fontsize=7)
+    # x in data units, y in axes units: the label sits at the top of the 1.0 line however many rows there
+    # are (at a data y above the rows, it fell outside the axes when no member had a utilization)
+    ax.text(1.0, 1.0, " 1.0", transform=ax.get_xaxis_transform(), va="bottom", ha="left", fontsize=7)
     ax.set_yticks(range(len(rows)), marks, fontsize=6 if len(rows) > 30 else 7)
     ax.invert_yaxis()
     ax.set_xlabel("governing utilization (demand / resistance)", fontsize=8)

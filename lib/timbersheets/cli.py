@@ -12,65 +12,79 @@ import sys
 from pathlib import Path
 
 from . import __version__
-from .errors import TimbersheetsError
+from .errors import ExitCode, TimbersheetsError, UsageError
 from .review import VERDICTS
+from .project import OUTPUT_RULE
 
 EPILOG = "Exit status: 0 all members pass; 1 a member fails or has an error; 2 the job is unusable."
+SIZE_EPILOG = "Exit status: 0 every member named has a passing section; 1 one has none; 2 the job is unusable."
+DIFF_EPILOG = "Exit status: 0 the changes were listed; 2 a revision or the job is unusable."
+REVIEW_EPILOG = ("Exit status: 0 the verdicts were recorded (with --status: nothing left to check); "
+                 "1 with --status, something is left to check; 2 the verdict was refused or the job is unusable.")
 
 
 def _parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(
         prog="timbersheets",
         description="CSA O86 timber member calc sheets from a member schedule (NBC Part 4 load combinations).",
-        epilog=EPILOG,
+        epilog="Each command's --help gives its exit status.",
     )
     p.add_argument("--version", action="version", version=f"timbersheets {__version__}")
     sub = p.add_subparsers(dest="command", required=True, metavar="COMMAND")
 
     new = sub.add_parser("new", help="scaffold a job folder (project.toml, schedule.csv)",
-                         description="Create DIR with a project.toml and a one-row schedule.csv to fill in.",
-                         epilog=EPILOG)
+                         description="Create DIR with a project.toml and a schedule.csv of two example members "
+                                     "(a post and a floor joist) that design as written; replace them with yours.",
+                         epilog="Exit status: 0 created; 2 DIR already holds a job.")
     new.add_argument("dir", type=Path, help="the job folder to create, e.g. calcsheets/harbour-hall")
 
     run = sub.add_parser("run", help="validate the schedule, design every member, write the outputs",
                          description="Validate every row of DIR/schedule.csv, design every member and write "
-                                     "outputs/<job>/rev-<R>/: results.json, summary.csv, run.log.",
+                                     "rev-<R>/ (results.json, summary.csv, run.log, sheets, package.pdf) in "
+                                     f"{OUTPUT_RULE}. The folder is printed at the end.",
                          epilog=EPILOG)
     run.add_argument("dir", type=Path, help="the job folder (holds project.toml and schedule.csv)")
     run.add_argument("--no-pdf", action="store_true", help="write results only; no notebooks or PDFs")
-    run.add_argument("--out", type=Path, help="put the revision folder in OUTDIR/rev-<R>/ instead of outputs/<job>/")
-    run.add_argument("--only", metavar="MARKS", help="comma-separated member marks to run (others are left out)")
+    run.add_argument("--out", type=Path, metavar="OUTDIR",
+                     help="put the revision folder in OUTDIR/rev-<R>/ instead")
+    run.add_argument("--only", metavar="MARKS",
+                     help="comma-separated marks whose notebooks and sheets to make; every member is still designed "
+                          "and listed in results.json, and the others keep the sheets of the last run of this "
+                          "revision that are still current (out-of-date ones are removed and listed in run.log)")
     run.add_argument("--jobs", type=int, metavar="N", help="members executed at once (default: number of CPUs)")
     run.add_argument("--force", action="store_true", help="re-execute every member, ignoring the cache")
     run.add_argument("--format", choices=("pdf", "html"), default="pdf",
                      help="sheet format: pdf (xelatex) or html (needs no TeX); default pdf")
     run.add_argument("--scale", action="append", metavar="TYPE=FACTOR", default=[],
                      help="what-if: scale a load type (D, L, S, W, E), e.g. S=1.2; repeatable. Reports which "
-                          "members would fail or change governing case, and writes nothing")
+                          "members would fail or change governing case, and writes nothing. Members with size = auto "
+                          "keep the sections sized for the scheduled loads")
+    run.add_argument("--resize", action="store_true",
+                     help="with --scale: size the auto members again for the scaled loads and show the new sections")
 
     size = sub.add_parser("size", help="size members: the lightest standard section that passes, and runners-up",
                           description="Search the standard catalogue (sawn dimension lumber in 1 to 4 plies, timbers, "
                                       "glulam widths by 38 mm laminations) for the lightest section that passes every "
                                       "check under every combination. Without --mark, sizes the members whose size is "
                                       "auto; with --mark, sizes those members whatever their scheduled size. Writes "
-                                      "nothing.", epilog=EPILOG)
+                                      "nothing.", epilog=SIZE_EPILOG)
     size.add_argument("dir", type=Path, help="the job folder")
     size.add_argument("--mark", action="append", metavar="M", help="member mark (repeatable)")
 
     diff = sub.add_parser("diff", help="what changed between two revisions",
                           description="Compare outputs/<job>/rev-R1 and rev-R2: members added and removed, changed "
                                       "inputs (old -> new), changed results, flipped verdicts. Prints the changes "
-                                      "and writes them to rev-R2/diff.csv.", epilog=EPILOG)
+                                      "and writes them to rev-R2/diff.csv.", epilog=DIFF_EPILOG)
     diff.add_argument("dir", type=Path, help="the job folder")
     diff.add_argument("--from", dest="r1", required=True, metavar="R1", help="the earlier revision, e.g. A")
     diff.add_argument("--to", dest="r2", required=True, metavar="R2", help="the later revision, e.g. B")
-    diff.add_argument("--out", type=Path, help="the folder holding rev-<R>/ (as given to run --out)")
+    diff.add_argument("--out", type=Path, metavar="OUTDIR", help="the folder holding rev-<R>/ (as given to run --out)")
 
     review = sub.add_parser("review", help="record a checker's verdict on members, or list what needs checking",
                             description="Append the checker's verdict to DIR/review.csv, tied to the inputs hash of "
                                         "the member as last run. A member whose inputs change afterwards shows as "
                                         "changed since check. With --status, list what is not checked, stale or to "
-                                        "revise; the exit status is 1 while anything is.", epilog=EPILOG)
+                                        "revise.", epilog=REVIEW_EPILOG)
     review.add_argument("dir", type=Path, help="the job folder")
     which = review.add_mutually_exclusive_group(required=True)
     which.add_argument("--mark", action="append", metavar="M", help="member mark (repeatable)")
@@ -78,12 +92,15 @@ def _parser() -> argparse.ArgumentParser:
     which.add_argument("--status", action="store_true", help="list what still needs checking")
     review.add_argument("--by", metavar="INITIALS", help="the checker's initials or name")
     review.add_argument("--verdict", choices=VERDICTS, help="ok, or revise (needs changes)")
-    review.add_argument("--comment", default="", help="a note for the designer")
-    review.add_argument("--out", type=Path, help="the folder holding rev-<R>/ (as given to run --out)")
+    review.add_argument("--comment", default="",
+                        help="a note for the designer, printed on the sheet; required for ok on a member that "
+                             "fails or has an error")
+    review.add_argument("--out", type=Path, metavar="OUTDIR", help="the folder holding rev-<R>/ (as given to run --out)")
 
     columns = sub.add_parser("columns", help="the schedule column reference: meaning, unit, default, allowed values",
                              description="Print every schedule column with its meaning, unit, default and allowed "
-                                         "values, from the column table in the code.", epilog=EPILOG)
+                                         "values, from the column table in the code.",
+                             epilog="Exit status: 0.")
     columns.add_argument("--markdown", action="store_true", help="print it as the Markdown table of docs/columns.md")
     return p
 
@@ -93,14 +110,13 @@ def cmd_new(args: argparse.Namespace) -> int:
 
     folder: Path = args.dir
     if (folder / "project.toml").exists() or (folder / "schedule.csv").exists():
-        print(f"timbersheets: {folder} already holds a job; nothing was changed", file=sys.stderr)
-        return 2
+        raise UsageError(f"{folder} already holds a job; nothing was changed")
     folder.mkdir(parents=True, exist_ok=True)
     (folder / "project.toml").write_text(PROJECT_TEMPLATE.format(date=dt.date.today().isoformat()), encoding="utf-8")
     (folder / "schedule.csv").write_text(SCHEDULE_TEMPLATE, encoding="utf-8")
     print(f"created {folder}/project.toml and {folder}/schedule.csv")
     print(f"next: fill them in, then run: timbersheets run {folder}")
-    return 0
+    return ExitCode.OK
 
 
 def cmd_run(args: argparse.Namespace) -> int:
@@ -109,6 +125,8 @@ def cmd_run(args: argparse.Namespace) -> int:
 
     if args.scale:
         return cmd_what_if(args)
+    if args.resize:
+        raise UsageError("--resize goes with --scale (a what-if); a run always sizes auto members")
     only = [m.strip() for m in args.only.split(",") if m.strip()] if args.only else None
     from .runner import RunOptions
 
@@ -123,10 +141,13 @@ def cmd_run(args: argparse.Namespace) -> int:
         print(f"  {d.mark:<12} {d.size:<12} {d.status:<6} {util}  {gov}")
         for e in d.errors:
             print(f"      error: {e}")
+    for line in report.carried.log_lines():
+        print(f"note: {line}")
     if report.package_error:
         print(f"error: package.pdf was not written: {report.package_error}", file=sys.stderr)
     c = report.counts()
-    print(f"{c['pass']} pass, {c['fail']} fail, {c['error']} error -> {report.outdir}")
+    print(f"{c['pass']} pass, {c['fail']} fail, {c['error']} error")
+    print(f"outputs: {report.outdir.resolve()}")
     return report.exit_code
 
 
@@ -137,28 +158,38 @@ def cmd_what_if(args: argparse.Namespace) -> int:
     try:
         scales = parse_scales(args.scale)
     except ValueError as exc:
-        print(f"timbersheets: {exc}", file=sys.stderr)
-        return 2
-    rows = what_if(args.dir, scales)
+        raise UsageError(str(exc)) from None
+    rows = what_if(args.dir, scales, resize=args.resize)
     label = ", ".join(f"{k} x {v:g}" for k, v in scales.items())
     print(f"what-if ({label}); nothing is written")
-    changed = [r for r in rows if r.flipped or r.governing_changed]
+    auto = [r for r in rows if r.auto and r.before.size]
+    if auto and args.resize:
+        print("auto members sized again for the scaled loads: "
+              + ", ".join(f"{r.mark} {r.before.size} -> {r.after.size}" for r in auto))
+    elif auto:
+        print("auto members keep the sections sized for the scheduled loads (--resize sizes them again): "
+              + ", ".join(f"{r.mark} {r.before.size}" for r in auto))
+    changed = [r for r in rows if r.flipped or r.governing_changed or r.resized]
     for r in rows:
         b, a = r.before.governing, r.after.governing
         if not (b and a) or r.before.errors or r.after.errors:
             continue
         note = "VERDICT FLIPS" if r.flipped else "governing case changes" if r.governing_changed else ""
+        if r.resized:
+            note = f"{note}; " if note else ""
+            note += f"section {r.before.size} -> {r.after.size}"
         print(f"  {r.mark:<12} {round_utilization(b.utilization):6.3f} -> {round_utilization(a.utilization):6.3f}  "
               f"{r.before.status:>4} -> {r.after.status:<4} {a.check} under {a.combination}  {note}")
     print(f"{sum(r.flipped for r in rows)} verdict(s) flip, {len(changed)} member(s) change")
-    return 1 if any(r.after.status != "pass" for r in rows) else 0
+    return ExitCode.MEMBERS if any(r.after.status != "pass" for r in rows) else ExitCode.OK
 
 
 def cmd_size(args: argparse.Namespace) -> int:
     import time
 
     from .data import DataSet
-    from .design import member_types
+    from .design import design_function
+    from .membertypes import member_type
     from .project import load_project
     from .schedule import load_schedule
     from .sizing import size
@@ -170,22 +201,21 @@ def cmd_size(args: argparse.Namespace) -> int:
     marks = args.mark or [m.mark for m in schedule.members if m.size == "auto"]
     unknown = [m for m in marks if m not in members]
     if unknown:
-        print(f"timbersheets: no valid member {', '.join(unknown)} in {project.schedule_path}", file=sys.stderr)
-        return 2
+        raise UsageError(f"no valid member {', '.join(unknown)} in {project.schedule_path}")
     if not marks:
         print("no member has size = auto; name one with --mark M")
-        return 0
-    status = 0
+        return ExitCode.OK
+    status = ExitCode.OK
     for mark in marks:
         member = members[mark]
         started = time.perf_counter()
-        result = size(member, data, member_types()[member.type].design)
+        result = size(member, data, design_function(member_type(member.type)))
         ms = (time.perf_counter() - started) * 1000
         where = f" ({result.constraints})" if result.constraints else ""
         print(f"{mark}: {member.type} {member.material} {member.species} {member.grade}{where}; "
               f"{result.searched} sections tried in {ms:.0f} ms")
         if result.chosen is None:
-            status = 1
+            status = ExitCode.MEMBERS
             best = result.best
             print(f"  no standard section passes; best {best.label} at {best.utilization:.3f} ({best.governing})"
                   if best else "  no standard section can carry the loads")
@@ -209,12 +239,13 @@ def cmd_diff(args: argparse.Namespace) -> int:
     print(format_diff(changes, args.r1, args.r2))
     write_csv(base / f"rev-{args.r2}" / "diff.csv", DIFF_HEADER, diff_rows(changes))
     print(f"written: {base / f'rev-{args.r2}' / 'diff.csv'}")
-    return 0
+    return ExitCode.OK
 
 
 def cmd_review(args: argparse.Namespace) -> int:
     from .project import load_project
-    from .review import Review, append_reviews, latest, read_reviews, status, today
+    from .review import (Review, append_reviews, comment_text, count_text, latest, read_reviews,
+                         refuse_unexplained_ok, standing, status, today)
     from .revisions import load_results
     from .runner import job_dir
     from .schedule import load_schedule
@@ -224,42 +255,41 @@ def cmd_review(args: argparse.Namespace) -> int:
     members = {m["mark"]: m for m in results["members"]}
     if args.status:
         reviews = latest(read_reviews(project.folder))
+        states = {mark: status(reviews.get(mark), m.get("inputs_hash")) for mark, m in members.items()}
         pending = []
-        for mark, m in members.items():
-            state = status(reviews.get(mark), m.get("inputs_hash"))
-            if state["status"] != "checked" or state.get("verdict") == "revise":
-                word = "revise" if state.get("verdict") == "revise" and state["status"] == "checked" else state["status"]
-                pending.append(f"  {mark:<12} {word}")
-        print(f"rev {project.revision}: {len(members) - len(pending)} of {len(members)} members checked")
+        for mark, state in states.items():
+            word = standing(state)
+            if word != "ok":
+                comment = comment_text(state)
+                pending.append(f"  {mark:<12} {word:<11} {comment}".rstrip())
+        print(f"rev {project.revision}: {count_text(list(states.values()))}")
         print("\n".join(pending) if pending else "  nothing left to check")
-        return 1 if pending else 0
+        return ExitCode.MEMBERS if pending else ExitCode.OK
     if not args.by or not args.verdict:
-        print("timbersheets: review needs --by INITIALS and --verdict ok|revise (or --status)", file=sys.stderr)
-        return 2
+        raise UsageError("review needs --by INITIALS and --verdict ok|revise (or --status)")
     marks = list(members) if args.all else args.mark
     unknown = [m for m in marks if m not in members]
     if unknown:
-        print(f"timbersheets: not in rev {project.revision}: {', '.join(unknown)}", file=sys.stderr)
-        return 2
+        raise UsageError(f"not in rev {project.revision}: {', '.join(unknown)}")
     current = {m.mark: m.inputs_hash for m in load_schedule(project.schedule_path).members}
     stale = [m for m in marks if current.get(m) != members[m].get("inputs_hash")]
     if stale:
-        print(f"timbersheets: the schedule changed after the last run for {', '.join(stale)}; "
-              f"run it again so the sheets show what you check", file=sys.stderr)
-        return 2
+        raise UsageError(f"the schedule changed after the last run for {', '.join(stale)}; "
+                         "run it again so the sheets show what you check")
+    refuse_unexplained_ok(args.verdict, args.comment, {m: members[m]["status"] for m in marks})
     records = [Review(m, args.by, today(), args.verdict, args.comment, members[m]["inputs_hash"], project.revision)
                for m in marks]
     append_reviews(project.folder, records)
     print(f"recorded {args.verdict} by {args.by} for {len(records)} member(s) in {project.folder / 'review.csv'}")
     print(f"next: timbersheets run {args.dir}  (prints the check on the sheets; nothing is re-executed)")
-    return 0
+    return ExitCode.OK
 
 
 def cmd_columns(args: argparse.Namespace) -> int:
     from .columnref import markdown, text
 
     print(markdown() if args.markdown else text(), end="")
-    return 0
+    return ExitCode.OK
 
 
 COMMANDS = {"new": cmd_new, "run": cmd_run, "size": cmd_size, "diff": cmd_diff, "review": cmd_review,
@@ -269,13 +299,13 @@ COMMANDS = {"new": cmd_new, "run": cmd_run, "size": cmd_size, "diff": cmd_diff, 
 def main(argv: list[str] | None = None) -> int:
     args = _parser().parse_args(argv)
     try:
-        return COMMANDS[args.command](args)
+        return int(COMMANDS[args.command](args))
     except TimbersheetsError as exc:
         print(f"timbersheets: {exc}", file=sys.stderr)
-        return 2
+        return int(exc.exit_code)
     except KeyboardInterrupt:
         print("timbersheets: interrupted; files already written are complete", file=sys.stderr)
-        return 130
+        return int(ExitCode.INTERRUPTED)
 
 
 if __name__ == "__main__":

@@ -6,9 +6,8 @@ writes it to docs/columns.md (a test keeps that file equal to the code).
 
 from __future__ import annotations
 
+from .constants import UNIT_TEXT
 from .schedule import COLUMNS, Column, _allowed
-
-UNIT_LABELS = {"kN*m": "kN·m"}
 
 
 def default_text(col: Column) -> str:
@@ -28,7 +27,7 @@ def default_text(col: Column) -> str:
 
 def rows() -> list[tuple[str, str, str, str, str]]:
     """(column, meaning, unit, default, allowed) for every column, in schedule order."""
-    return [(c.name, c.meaning, UNIT_LABELS.get(c.unit, c.unit), default_text(c), _allowed(c) or "text")
+    return [(c.name, c.meaning, UNIT_TEXT.get(c.unit, c.unit), default_text(c), _allowed(c) or "text")
             for c in COLUMNS.values()]
 
 
@@ -40,7 +39,8 @@ def markdown() -> str:
         "Generated from the column table in `lib/timbersheets/schedule.py` by",
         "`tools/write-column-reference`; do not edit by hand. `timbersheets columns` prints the same.",
         "",
-        "A blank cell means the default. A number may carry its own unit (`3.6 m`, `12 ft`, `4.5 kip`);",
+        "A blank cell means the default. A number may carry its own unit (`3.6 m`, `12 ft`, `12'-6\"`,",
+        "`12 ft 6 in`, `4.5 kip`, `300 plf`, `klf`, `18 kip-ft`, `25 kN-m` or `kNm`, `50 psf`);",
         "a bare number takes the column's unit. Column names are case-sensitive. Load types: D dead,",
         "L live, S snow (with rain), W wind, E earthquake: specified loads including their importance",
         "factors.",

@@ -58,9 +58,10 @@ def _deflections(ctx) -> list[CheckResult]:
     return out
 
 
-def design_combined(ctx, cases: list[LoadCase], sense: str) -> list[CheckResult]:
-    """Checks of a member with axial force (`sense`: compression or tension) and bending."""
-    if sense == "compression" and ctx.section.plies > 1:
+def design_combined(ctx, cases: list[LoadCase], kind) -> list[CheckResult]:
+    """Checks of a member with axial force (in the sense of the type `kind`) and bending."""
+    sense = kind.axial
+    if ctx.section.plies > 1 and not kind.plies:
         raise DesignError(ctx.mark, "built-up (multi-ply) beam-columns need the rules for built-up columns, which "
                           "this version does not implement", "O86:19 6.5.6.4", "Design it as a solid section")
     refuse_reversal(ctx, cases, sense)
@@ -99,11 +100,3 @@ def design_combined(ctx, cases: list[LoadCase], sense: str) -> list[CheckResult]
         raise DesignError(ctx.mark, f"carries no {missing} under any combination", "",
                           f"Give it, or design the member as {'bending' if not groups[sense] else sense}")
     return out + _deflections(ctx)
-
-
-def design_beam_column(ctx, cases: list[LoadCase]) -> list[CheckResult]:
-    return design_combined(ctx, cases, "compression")
-
-
-def design_tension_bending(ctx, cases: list[LoadCase]) -> list[CheckResult]:
-    return design_combined(ctx, cases, "tension")

@@ -1,15 +1,18 @@
 """Designing one member: context (strengths, factors, section), load cases, checks.
 
-The member types are a small registry filled in :func:`member_types`; each
-type is a function from a :class:`Context` to its list of check results.
+What a member type is comes from its record (:mod:`timbersheets.membertypes`);
+the record names one of the design routines in :data:`ROUTINES`, each a function
+of a :class:`Context`, the load cases and the record, returning check results.
 """
 
 from __future__ import annotations
 
+import traceback
 from collections.abc import Callable
 from dataclasses import dataclass, field
 
 from .analysis import loading_mode, member_forces, service_cases
+from .beamdesign import design_model, geometry_of, is_model, total_loads
 from .checks import CheckResult
 from .checks.bearing import check_bearing, check_support_bearing
 from .checks.bending import check_bending
@@ -17,12 +20,13 @@ from .checks.compression import check_compression
 from .checks.deflection import check_deflection
 from .checks.shear import check_shear
 from .checks.tension import check_tension
-from .combined import design_beam_column, design_tension_bending, refuse_reversal, tension_only
+from .combined import design_combined, refuse_reversal, tension_only
 from .data import DataSet, Datum, Recorded
 from .errors import DesignError, TimbersheetsError
 from .loads import EFFECTS, LOAD_TYPES, Effects, LoadCase, apply_combinations
 from .materials import Strengths, strengths
 from .ownweight import OwnWeight, gives_line_loads, own_weight, with_own_weight
+from .membertypes import MemberType, member_type, member_types
 from .schedule import Member, RowError
 from .sections import Section, service_category
 from .sizing import Sizing, size
@@ -98,8 +102,20 @@ class Context:
 
 
 def effects_of(member: Member) -> Effects:
-    """Specified effects by type from the row's P_*, M_*, V_*, w_* columns."""
-    return Effects({e: {t: member.values[f"{e}_{t}"] for t in LOAD_TYPES} for e in EFFECTS})
+    """Specified effects by type from the row's P_*, M_*, V_*, w_* columns, the axial loads a column carries
+    from other members, and the total load F of a beam model."""
+    values = {e: {t: member.values[f"{e}_{t}"] for t in LOAD_TYPES} for e in EFFECTS}
+    if member.type != "bending":
+        for c in member.values.get("carried", ()):
+            for t in LOAD_TYPES:
+                values["P"][t] += c.loads.get(t, 0.0)
+    if not is_model(member):
+        return Effects(values)
+    # a beam model's loads act together: K_D is taken on their total F, not on the line loads alone
+    values = {e: {t: 0.0 for t in LOAD_TYPES} for e in EFFECTS}
+    values["F"] = {t: total_loads(member).get(t, 0.0) for t in LOAD_TYPES}
+    geometry = geometry_of(member)
+    return Effects(values, reversible=len(geometry.spans) > 1 or bool(geometry.left or geometry.right))
 
 
 def load_cases(member: Member, data: DataSet, used: list[Datum]) -> list[LoadCase]:
@@ -108,7 +124,8 @@ def load_cases(member: Member, data: DataSet, used: list[Datum]) -> list[LoadCas
     A tension member with bending also gets every 0.9D alternative: least dead-load tension with the full
     moment is what puts its compression face in compression (O86 interaction, compression face)."""
     return apply_combinations(effects_of(member), data, used, member.K_D, both_senses=member.wind_sense != "one-way",
-                              least_tension=member.type == "tension-bending", storage=member.live_use == "storage")
+                              least_tension=member_type(member.type).axial == "tension" and member_type(member.type).bends,
+                              storage=member.live_use == "storage")
 
 
 def build_context(member: Member, data: DataSet, section: Section | None = None) -> Context:
@@ -132,34 +149,30 @@ def build_context(member: Member, data: DataSet, section: Section | None = None)
         ctx.notes.append("own weight is not added to the frame model's moments and shears (the tool cannot place "
                          "it in that model): include it in M_D and V_D; it is included in the line loads used for "
                          "deflection")
-    if member.material == "sawn" and member.type in ("tension", "tension-bending"):  # K_Zt: tension only
+    if member.material == "sawn" and member_type(member.type).axial == "tension":  # K_Zt: tension only
         kzt = data.size_factor_sawn("K_Zt", section.smaller, section.larger)
         ctx.K_Zt = kzt.value
         used.append(kzt)
     return ctx
 
 
-def _axial(sense: str) -> Callable[[Context, list[LoadCase]], list[CheckResult]]:
-    """Design function for an axial member; `sense` is 'tension' or 'compression'."""
-    check = check_tension if sense == "tension" else check_compression
-
-    def design(ctx: Context, cases: list[LoadCase]) -> list[CheckResult]:
-        if ctx.section.plies > 1 and sense == "compression":
-            raise DesignError(ctx.mark, "built-up (multi-ply) columns need the rules for nailed or bolted "
-                              "built-up columns, which this version does not implement", "O86:19 6.5.6.4",
-                              "Design it as a solid section or by hand")
-        if sense == "tension":
-            cases = tension_only(ctx, cases)
-        else:
-            refuse_reversal(ctx, cases, sense)
-        out = [check(ctx, case, case.factored["P"]) for case in cases if case.factored["P"] > EPS]
-        if not out:
-            raise DesignError(ctx.mark, "carries no axial force", "", "Give the axial loads P_D … P_E")
-        if sense == "compression":
-            out += support_bearings(ctx, cases)
-        return out
-
-    return design
+def _axial(ctx: Context, cases: list[LoadCase], kind: MemberType) -> list[CheckResult]:
+    """Design routine of an axial member, in the type's sense (tension or compression)."""
+    check = check_tension if kind.axial == "tension" else check_compression
+    if ctx.section.plies > 1 and not kind.plies:
+        raise DesignError(ctx.mark, "built-up (multi-ply) columns need the rules for nailed or bolted "
+                          "built-up columns, which this version does not implement", "O86:19 6.5.6.4",
+                          "Design it as a solid section or by hand")
+    if kind.axial == "tension":
+        cases = tension_only(ctx, cases)
+    else:
+        refuse_reversal(ctx, cases, kind.axial)
+    out = [check(ctx, case, case.factored["P"]) for case in cases if case.factored["P"] > EPS]
+    if not out:
+        raise DesignError(ctx.mark, "carries no axial force", "", "Give the axial loads P_D … P_E")
+    if kind.axial == "compression":
+        out += support_bearings(ctx, cases)
+    return out
 
 
 def support_bearings(ctx: Context, cases: list[LoadCase]) -> list[CheckResult]:
@@ -168,9 +181,11 @@ def support_bearings(ctx: Context, cases: list[LoadCase]) -> list[CheckResult]:
     return [c for c in out if c is not None]
 
 
-def _bending(ctx: Context, cases: list[LoadCase]) -> list[CheckResult]:
+def _bending(ctx: Context, cases: list[LoadCase], kind: MemberType) -> list[CheckResult]:
     """Design function for a bending member on a simple span: strength per ULS
     combination (bending, shear, bearing), then deflection per SLS combination."""
+    if is_model(ctx.member):
+        return design_model(ctx, cases)
     mode = loading_mode(ctx.member)
     line = mode == "line"
     strength: dict[str, list[CheckResult]] = {"bending": [], "shear": [], "bearing": []}
@@ -191,25 +206,16 @@ def _bending(ctx: Context, cases: list[LoadCase]) -> list[CheckResult]:
     return out
 
 
-@dataclass(frozen=True)
-class MemberType:
-    name: str
-    design: Callable[[Context, list[LoadCase]], list[CheckResult]]
-    template: str
-    description: str
+Routine = Callable[[Context, list[LoadCase], MemberType], list[CheckResult]]
+
+#: The design routines a member type record names (MemberType.routine).
+ROUTINES: dict[str, Routine] = {"axial": _axial, "bending": _bending, "combined": design_combined}
 
 
-def member_types() -> dict[str, MemberType]:
-    """The member types this version designs (the one place they are registered)."""
-    return {
-        "tension": MemberType("tension", _axial("tension"), "axial.ipynb", "tension member"),
-        "compression": MemberType("compression", _axial("compression"), "axial.ipynb", "compression member"),
-        "bending": MemberType("bending", _bending, "bending.ipynb", "bending member"),
-        "beam-column": MemberType("beam-column", design_beam_column, "combined.ipynb",
-                                  "beam-column (axial compression with bending)"),
-        "tension-bending": MemberType("tension-bending", design_tension_bending, "combined.ipynb",
-                                      "tension member with bending"),
-    }
+def design_function(kind: MemberType) -> Callable[[Context, list[LoadCase]], list[CheckResult]]:
+    """The checks of `kind` as a function of (context, cases): what design and sizing call."""
+    routine = ROUTINES[kind.routine]
+    return lambda ctx, cases: routine(ctx, cases, kind)
 
 
 @dataclass
@@ -226,6 +232,7 @@ class MemberDesign:
     warnings: list[str] = field(default_factory=list)
     data_used: list[Datum] = field(default_factory=list)
     sizing: Sizing | None = None
+    trace: str = field(default="", repr=False)  # traceback of an internal error, for run.log
 
     @property
     def status(self) -> str:
@@ -261,7 +268,7 @@ class MemberDesign:
 def design_member(member: Member, data: DataSet) -> MemberDesign:
     """Design one validated member. Engineering limits become errors, not crashes."""
     outcome = MemberDesign(member.mark, member.row, member, warnings=list(member.warnings))
-    kind = member_types().get(member.type)
+    kind = member_type(member.type)
     if kind is None:
         outcome.errors.append(f"type '{member.type}' is not designed by this version "
                               f"(available: {', '.join(member_types())})")
@@ -273,11 +280,13 @@ def design_member(member: Member, data: DataSet) -> MemberDesign:
         ctx = build_context(member, data, section)
         cases = load_cases(ctx.member, data, ctx.used)
         outcome.context, outcome.cases = ctx, cases
-        outcome.checks = kind.design(ctx, cases)
+        outcome.checks = design_function(kind)(ctx, cases)
     except TimbersheetsError as exc:
         outcome.errors.append(str(exc))
     except Exception as exc:  # a defect must not stop the other members  # noqa: BLE001
-        outcome.errors.append(f"internal error while designing ({type(exc).__name__}: {exc}); please report it")
+        outcome.errors.append(f"internal error while designing ({type(exc).__name__}: {exc}); please report it "
+                              "with run.log, which holds the traceback")
+        outcome.trace = traceback.format_exc()
     if outcome.context:
         outcome.data_used = list(outcome.context.used)
         outcome.warnings += [n for n in outcome.context.notes if n not in outcome.warnings]
@@ -286,7 +295,7 @@ def design_member(member: Member, data: DataSet) -> MemberDesign:
 
 def _sized_section(member: Member, data: DataSet, kind: MemberType, outcome: MemberDesign) -> Section:
     """The section the search chose; when none passes, the best one found (the member then fails)."""
-    outcome.sizing = size(member, data, kind.design)
+    outcome.sizing = size(member, data, design_function(kind))
     chosen = outcome.sizing.chosen
     if chosen is not None:
         return chosen.section
@@ -306,5 +315,8 @@ def rejected(entry: RowError) -> MemberDesign:
 
 
 def design_all(entries: list[Member | RowError], data: DataSet) -> list[MemberDesign]:
-    return [design_member(e, data) if isinstance(e, Member) else rejected(e) for e in entries]
+    """Every entry designed, each member after the members it carries (:mod:`loadpath`)."""
+    from .loadpath import design_in_order
+
+    return design_in_order(entries, data)
 

@@ -6,9 +6,33 @@ so it can be logged, pickled across worker processes and shown the same way.
 
 from __future__ import annotations
 
+from enum import IntEnum
+
+
+class ExitCode(IntEnum):
+    """The documented exit status of every command."""
+
+    OK = 0  # every member passes (or the command did what was asked)
+    MEMBERS = 1  # some member fails or has an error; or review --status: something left to check
+    UNUSABLE = 2  # the job itself is unusable (no schedule, bad project.toml) or the command cannot act
+    INTERRUPTED = 130  # Ctrl-C; files already written are complete
+
 
 class TimbersheetsError(Exception):
-    """Base of every error the program raises on purpose."""
+    """Base of every error the program raises on purpose. The CLI exits with `exit_code`."""
+
+    exit_code = ExitCode.UNUSABLE
+
+
+class UsageError(TimbersheetsError):
+    """A command was given something it cannot act on (an unknown mark, a missing option)."""
+
+    def __init__(self, problem: str) -> None:
+        super().__init__(problem)
+        self.problem = problem
+
+    def __str__(self) -> str:
+        return self.problem
 
 
 class JobError(TimbersheetsError):

@@ -14,8 +14,10 @@ from .calc import calc
 from .data import DataSet, Datum
 
 LOAD_TYPES = ("D", "L", "S", "W", "E")
-EFFECTS = ("P", "M", "V", "w")
-EFFECT_UNITS = {"P": "N", "M": "N*mm", "V": "N", "w": "N/mm"}
+EFFECTS = ("P", "M", "V", "w")  # the schedule's columns P_*, M_*, V_*, w_*
+#: ... and F, the total load on a beam model (point, partial and carried loads included)
+ALL_EFFECTS = (*EFFECTS, "F")
+EFFECT_UNITS = {"P": "N", "M": "N*mm", "V": "N", "w": "N/mm", "F": "N"}
 #: Duration class of each load type (CSA O86 5.3.2; Table 5.1 examples).
 DURATION_CLASS = {"D": "long", "L": "standard", "S": "standard", "W": "short", "E": "short"}
 STANDARD_TERM = ("L", "S")
@@ -79,16 +81,19 @@ class Effects:
     """Specified (unfactored) effects by effect and load type, in compute units."""
 
     values: dict[str, dict[str, float]]
+    #: a beam model whose spans or overhangs a load can lift: the 0.9D alternatives apply
+    reversible: bool = False
 
     def get(self, effect: str, load: str) -> float:
         return self.values.get(effect, {}).get(load, 0.0)
 
     def present(self) -> list[str]:
-        return [e for e in EFFECTS if any(self.get(e, t) for t in LOAD_TYPES)]
+        return [e for e in ALL_EFFECTS if any(self.get(e, t) for t in LOAD_TYPES)]
 
     def dead_resists(self) -> bool:
         """Some other load acts against the dead load (NBC 4.1.3.2.(5): use 0.9D)."""
-        return any(self.get(e, "D") * self.get(e, t) < 0 for e in EFFECTS for t in LOAD_TYPES[1:])
+        return self.reversible or any(self.get(e, "D") * self.get(e, t) < 0 for e in ALL_EFFECTS
+                                      for t in LOAD_TYPES[1:])
 
 
 #: The symbols of :func:`kd_permanent`, in words for the sheet. O86 writes P_L and P_S; the schedule's
@@ -184,13 +189,14 @@ def storage_companions(comb: Combination) -> Combination:
 
 def _senses(comb: Combination, effects: Effects, both_senses: bool) -> list[Combination]:
     """The combination as the schedule gives it, and reversed when it carries wind or earthquake."""
-    carries = any(comb.factors[t] and effects.get(e, t) for t in REVERSIBLE for e in EFFECTS)
+    carries = any(comb.factors[t] and effects.get(e, t) for t in REVERSIBLE for e in ALL_EFFECTS)
     return [comb, comb.reversed()] if both_senses and carries else [comb]
 
 
 def _opposes_dead(comb: Combination, effects: Effects) -> bool:
     """Some load of this combination (in its sense) acts against the dead load (NBC 4.1.3.2.(5))."""
-    return any(effects.get(e, "D") * comb.factors[t] * effects.get(e, t) < 0 for e in EFFECTS for t in LOAD_TYPES[1:])
+    return any(effects.get(e, "D") * comb.factors[t] * effects.get(e, t) < 0 for e in ALL_EFFECTS
+               for t in LOAD_TYPES[1:])
 
 
 def apply_combinations(effects: Effects, data: DataSet, used: list[Datum],
@@ -215,15 +221,15 @@ def apply_combinations(effects: Effects, data: DataSet, used: list[Datum],
     table = [storage_companions(c) for c in combinations(data)] if storage else combinations(data)
     senses = [c for comb in table for c in _senses(comb, effects, both_senses)]
     for comb in senses:
-        if comb.principal != "D" and not any(effects.get(e, comb.principal) for e in EFFECTS):
+        if comb.principal != "D" and not any(effects.get(e, comb.principal) for e in ALL_EFFECTS):
             continue
         if comb.reduced_dead and not (resists or least_tension or _opposes_dead(comb, effects)):
             continue
-        factored = {e: sum(comb.factors[t] * effects.get(e, t) for t in LOAD_TYPES) for e in EFFECTS}
+        factored = {e: sum(comb.factors[t] * effects.get(e, t) for t in LOAD_TYPES) for e in ALL_EFFECTS}
         if all(abs(v) < 1e-9 for v in factored.values()):
             continue
         kd, basis, values, effect = load_duration(comb, effects, data, used, override, storage)
-        key = tuple(round(factored[e], 6) for e in EFFECTS) + (round(kd, 6),)
+        key = tuple(round(factored[e], 6) for e in ALL_EFFECTS) + (round(kd, 6),)
         if key in seen:
             continue
         seen.add(key)

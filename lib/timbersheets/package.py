@@ -20,19 +20,17 @@ from pathlib import Path
 from typing import Any
 
 from . import __version__
+from .constants import CAUTION, SHORT_CAUTION
 from .data import DataSet
 from .pipeline import XELATEX, ConversionError, templates_dir
 from .project import Project
-from .review import titleblock_text
+from .review import count_text, standing, titleblock_text
 from .revisions import MemberChange
-from .sheets import CAUTION
 from .symbols import ACTION_WORDS
 from .tex import escape
 
 VERDICT = {"pass": "passes", "fail": "does not pass", "error": "not designed"}
 VERDICT_TEX = {"pass": "PASSES", "fail": r"\textbf{DOES NOT PASS}", "error": r"\textbf{NOT DESIGNED}"}
-SHORT_CAUTION = ("Review and seal by a licensed professional engineer required; the codes adopted by the "
-                 "authority having jurisdiction govern.")
 
 
 def _environment():
@@ -112,18 +110,19 @@ def plural(n: int, one: str, many: str) -> str:
     return f"{n} {one if n == 1 else many}"
 
 
-def cover_lines(project: Project, counts: dict[str, int], checked: int, unchecked: int) -> dict[str, str]:
-    """The cover's and index's sentences about the members, in plain grammar (escaped)."""
+def cover_lines(project: Project, counts: dict[str, int], review_counts: str) -> dict[str, str]:
+    """The cover's and index's sentences about the members, in plain grammar (escaped).
+
+    `review_counts` is review.count_text: the one count of verdicts, also used by review --status.
+    """
     total = counts["total"]
     checker = project.fields["checker"] or "not named"
     members = (f"{plural(total, 'member', 'members')}: {counts['pass']} {'passes' if counts['pass'] == 1 else 'pass'}, "
                f"{counts['fail']} {'does' if counts['fail'] == 1 else 'do'} not pass, {counts['error']} not designed")
     return {
-        "checker": escape(f"{checker} ({checked} of {plural(total, 'member', 'members')} checked)"),
+        "checker": escape(f"{checker} ({review_counts})"),
         "members": escape(members),
-        "unchecked": escape(f"{unchecked} of {plural(total, 'member', 'members')} "
-                            f"{'is' if unchecked == 1 else 'are'} not checked, or changed since "
-                            f"{'its' if unchecked == 1 else 'their'} check."),
+        "unchecked": escape(f"Review: {review_counts}."),
     }
 
 
@@ -151,14 +150,15 @@ def package_tex(project: Project, doc: dict[str, Any], data: DataSet, outdir: Pa
     counts = {"total": len(members), "pass": 0, "fail": 0, "error": 0}
     for m in members:
         counts[m["status"]] += 1
-    checked = sum(1 for m in members if (m.get("review") or {}).get("status") == "checked")
-    unchecked = len(members) - checked
+    states = [m.get("review") or {"status": "not-checked"} for m in members]
+    review_counts = count_text(states)
+    all_ok = all(standing(s) == "ok" for s in states)
     context: dict[str, Any] = {
         "project": {k: escape(v) for k, v in project.fields.items()},
         "codes": {k: escape(v) for k, v in project.codes.items()},
         "counts": counts, "members": rows, "notes": notes,
         "unverified": len({w for m in members for w in m["data_warnings"]}),
-        "unchecked": unchecked, "lines": cover_lines(project, counts, checked, unchecked),
+        "unchecked": not all_ok, "lines": cover_lines(project, counts, review_counts),
         "previous": escape(doc.get("previous_revision") or ""), "changes": change_rows(changes),
         "chart": chart, "caution": escape(SHORT_CAUTION), "caution_long": escape(CAUTION),
         "tool_version": f"timbersheets {__version__}", "data_hash": data.hash.split(":")[1][:12],

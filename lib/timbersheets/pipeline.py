@@ -18,7 +18,9 @@ from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
+from .constants import SHORT_CAUTION
 from .errors import ParameterError, TimbersheetsError
+from .tex import escape
 
 XELATEX = ["xelatex", "-interaction=nonstopmode", "-halt-on-error", "-no-shell-escape"]
 
@@ -201,7 +203,7 @@ def to_latex(notebook: Path, titleblock: dict[str, str]) -> tuple[str, dict[str,
     from nbconvert import LatexExporter
 
     nb = nbformat.read(str(notebook), as_version=4)
-    nb.metadata.setdefault("timbersheets", {})["titleblock"] = titleblock
+    nb.metadata.setdefault("timbersheets", {})["titleblock"] = {"caution": escape(SHORT_CAUTION), **titleblock}
     exporter = LatexExporter(template_name="sheet", extra_template_basedirs=[str(templates_dir() / "latex")])
     body, resources = exporter.from_notebook_node(nb)
     return body, dict(resources.get("outputs", {}))
@@ -235,15 +237,13 @@ def notebook_to_pdf(notebook: Path, pdf: Path, titleblock: dict[str, str], mark:
 
 
 def to_html(notebook: Path, html: Path, titleblock: dict[str, str]) -> None:
-    """An HTML sheet (no TeX needed): the same outputs, inputs hidden."""
+    """The HTML sheet (no TeX needed): the PDF sheet's content and title block, self-contained."""
     import nbformat
-    from nbconvert import HTMLExporter
+
+    from .htmlsheet import sheet_html
 
     nb = nbformat.read(str(notebook), as_version=4)
-    nb.metadata.setdefault("timbersheets", {})["titleblock"] = titleblock
-    exporter = HTMLExporter(exclude_input=True, exclude_input_prompt=True, exclude_output_prompt=True)
-    body, _ = exporter.from_notebook_node(nb)
     html.parent.mkdir(parents=True, exist_ok=True)
     staged = html.with_name(f".{html.name}.part")
-    staged.write_text(body, encoding="utf-8")
+    staged.write_text(sheet_html(nb, titleblock), encoding="utf-8")
     os.replace(staged, html)

@@ -10,6 +10,9 @@ from .errors import JobError
 
 PROJECT_FIELDS = ("title", "number", "client", "location", "engineer", "designer", "checker", "revision", "date")
 SUPPORTED_CODES = {"nbc": ("2020",), "o86": ("2019",)}
+#: Where a job's outputs go (runner.job_dir), as the README and `run --help` say it.
+OUTPUT_RULE = ("outputs/<job>/ beside the calcsheets/ folder that holds the job; for a job folder anywhere "
+               "else, its own outputs/ subfolder")
 REVISION_CHARS = set("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789.-_")
 
 
@@ -111,6 +114,8 @@ o86 = "2019"
 '''
 
 SCHEDULE_TEMPLATE = (
-    "mark,type,material,species,grade,size,service,length,Ke,P_D,P_L,P_S,P_W,note\n"
-    "C-1,compression,sawn,S-P-F,No.1/No.2,140x140,dry,3.0,1.0,20,15,,,example post: replace with your members\n"
+    "mark,type,material,species,grade,size,service,length,Ke,Lx,Ly,Lu,restraint,bearing,P_D,P_L,P_S,w_D,w_L,w_S,note\n"
+    "C-1,compression,sawn,S-P-F,No.1,140x140,dry,3.0,1.0,3.0,3.0,,,,20,15,,,,,example post: replace with your members\n"
+    "B-1,bending,sawn,S-P-F,No.1/No.2,38x235,dry,3.6,,,,0,,89,,,,0.24,0.76,,"
+    "example floor joist at 400 mm centres (0.6 kPa dead and 1.9 kPa live); Lu = 0: top edge held by the nailed subfloor\n"
 )

@@ -14,7 +14,9 @@ from typing import Any
 from . import __version__
 from .calc import round_sig
 from .checks import CheckResult
+from .constants import UNIT_TEXT
 from .design import MemberDesign
+from .errors import TimbersheetsError
 from .fileio import write_csv, write_json
 
 
@@ -32,7 +34,7 @@ def _num(value: float, unit: str) -> float:
 
 
 def check_json(c: CheckResult) -> dict[str, Any]:
-    unit = {"kN*m": "kN·m"}.get(c.unit, c.unit)
+    unit = UNIT_TEXT.get(c.unit, c.unit)
     return {
         "check": c.check,
         "combination": c.combination,
@@ -43,7 +45,22 @@ def check_json(c: CheckResult) -> dict[str, Any]:
         "utilization": round_utilization(c.utilization),
         "clause": c.clause,
         "factors": {k: round_sig(v, "", 4) for k, v in c.factors.items()},
+        **({"where": c.where} if c.where else {}),
     }
+
+
+def reactions_json(d: MemberDesign) -> dict[str, dict[str, float]] | None:
+    """Specified reactions per support (R1, R2, … from the left) by load type, kN; None without a design."""
+    from .beamdesign import reactions_by_type
+    from .loadpath import source_reactions
+
+    if d.errors or d.member is None or d.context is None:
+        return None
+    try:
+        reactions = source_reactions(d, reactions_by_type)
+    except TimbersheetsError:
+        return None
+    return {f"R{j}": {t: round_sig(v / 1000, "kN", 4) for t, v in by_type.items()} for j, by_type in reactions.items()}
 
 
 def member_json(d: MemberDesign, extra: dict[str, Any] | None = None) -> dict[str, Any]:
@@ -67,6 +84,8 @@ def member_json(d: MemberDesign, extra: dict[str, Any] | None = None) -> dict[st
         "review": {"status": "not-checked"},
         "errors": d.errors,
         "inputs": d.member.params() if d.member else None,
+        "reactions": reactions_json(d),
+        "carried": d.member.params()["carried"] if d.member else [],
     }
     if d.sizing is not None:
         doc["sizing"] = d.sizing.to_json()

@@ -84,5 +84,52 @@ def titleblock_text(state: dict[str, str]) -> str:
     return who + (" (revise)" if state.get("verdict") == "revise" else "")
 
 
+def refuse_unexplained_ok(verdict: str, comment: str, statuses: dict[str, str]) -> None:
+    """An "ok" on a member that fails or has an error needs a comment saying why.
+
+    `statuses` maps each mark to be recorded to its status in the run (pass,
+    fail, error). Raises JobError naming the marks.
+    """
+    if verdict != "ok" or comment.strip():
+        return
+    bad = [f"{mark} ({state})" for mark, state in statuses.items() if state != "pass"]
+    if bad:
+        raise JobError(f"review --verdict ok {', '.join(bad)}", "an ok on a member that does not pass needs a reason",
+                       "Give --comment explaining why it is acceptable, or record --verdict revise")
+
+
+STANDINGS = ("ok", "revise", "stale", "not-checked")
+STANDING_WORDS = {"ok": "checked ok", "revise": "to revise", "stale": "changed since check",
+                  "not-checked": "not checked"}
+
+
+def standing(state: dict[str, str]) -> str:
+    """Where a member's check stands: ok, revise, stale or not-checked (one rule for every count)."""
+    if state["status"] == "checked":
+        return "revise" if state.get("verdict") == "revise" else "ok"
+    return state["status"]
+
+
+def count_text(states: list[dict[str, str]]) -> str:
+    """"3 of 5 members checked ok, 1 to revise, 1 not checked", as the cover, index and review --status say it."""
+    counts = {k: 0 for k in STANDINGS}
+    for state in states:
+        counts[standing(state)] += 1
+    noun = "member" if len(states) == 1 else "members"
+    parts = [f"{counts['ok']} of {len(states)} {noun} checked ok"]
+    parts += [f"{counts[k]} {STANDING_WORDS[k]}" for k in STANDINGS[1:] if counts[k]]
+    return ", ".join(parts)
+
+
+def comment_text(state: dict[str, str]) -> str:
+    """The checker's comment as the sheet and review --status show it ("" when there is none)."""
+    if not state.get("comment"):
+        return ""
+    head = f"{state['by']}, {state['date']}, {state['verdict']}"
+    if state["status"] == "stale":
+        head += " (on inputs changed since)"
+    return f"{head}: {state['comment']}"
+
+
 def today() -> str:
     return dt.date.today().isoformat()

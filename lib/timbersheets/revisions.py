@@ -13,6 +13,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+from .constants import UNIT_TEXT
 from .errors import JobError
 
 DIFF_HEADER = ["mark", "what", "item", "old", "new"]
@@ -40,11 +41,35 @@ def previous_revision(jobdir: Path, current: str) -> str | None:
 
 def show_input(value: Any) -> str:
     if isinstance(value, dict) and "value" in value:
-        unit = {"kN*m": "kN·m"}.get(value["unit"], value["unit"])
+        unit = UNIT_TEXT.get(value["unit"], value["unit"])
         return f"{value['value']:g} {unit}".strip()
     if value is None:
         return "(blank)"
     return str(value)
+
+
+def carried_text(carried: list[dict] | None) -> str:
+    """Carried reactions in a line: ``RB-1.R2 @ 3.6 m: D 4.2, S 9.1 kN``."""
+    if not carried:
+        return "(none)"
+    parts = []
+    for c in carried:
+        at = f" @ {c['at']:g} m" if c.get("at") is not None else ""
+        loads = ", ".join(f"{t} {v:g}" for t, v in c["loads"].items() if v)
+        parts.append(f"{c['from']}.R{c['reaction']}{at}: {loads or '0'} kN")
+    return "; ".join(parts)
+
+
+def changed_sources(old: list[dict], new: list[dict]) -> list[str]:
+    """Marks whose carried reactions differ between two inputs."""
+    def by_source(items):
+        out: dict[str, list] = {}
+        for c in items:
+            out.setdefault(c["from"], []).append(c)
+        return out
+
+    a, b = by_source(old), by_source(new)
+    return sorted(m for m in set(a) | set(b) if a.get(m) != b.get(m))
 
 
 @dataclass
@@ -54,6 +79,7 @@ class MemberChange:
     inputs: list[tuple[str, str, str]] = field(default_factory=list)  # (column, old, new)
     results: list[tuple[str, str, str]] = field(default_factory=list)
     verdict_flip: tuple[str, str] | None = None
+    because: list[str] = field(default_factory=list)  # members whose reactions this member carries and that changed
 
 
 def _result_items(m: dict[str, Any]) -> dict[str, str]:
@@ -79,7 +105,10 @@ def diff(old: dict[str, Any], new: dict[str, Any]) -> list[MemberChange]:
         for key in ni:
             if key in ("row", "given", "mark"):
                 continue
-            if oi.get(key) != ni.get(key):
+            if key == "carried" and oi.get(key) != ni.get(key):
+                change.because = changed_sources(oi.get(key) or [], ni.get(key) or [])
+                change.inputs.append((key, carried_text(oi.get(key)), carried_text(ni.get(key))))
+            elif oi.get(key) != ni.get(key):
                 change.inputs.append((key, show_input(oi.get(key)), show_input(ni.get(key))))
         ro, rn = _result_items(o), _result_items(m)
         change.results = [(k, ro[k], rn[k]) for k in rn if ro[k] != rn[k]]
@@ -97,6 +126,7 @@ def diff_rows(changes: list[MemberChange]) -> list[list[str]]:
         if c.kind != "changed":
             rows.append([c.mark, c.kind, "", "", ""])
             continue
+        rows += [[c.mark, "because", "carried", "", f"{source} changed"] for source in c.because]
         rows += [[c.mark, "input", k, a, b] for k, a, b in c.inputs]
         rows += [[c.mark, "result", k, a, b] for k, a, b in c.results]
         if c.verdict_flip:
@@ -112,7 +142,7 @@ def format_diff(changes: list[MemberChange], r1: str, r2: str) -> str:
         if c.kind != "changed":
             lines.append(f"  {c.mark}: {c.kind}")
             continue
-        lines.append(f"  {c.mark}:")
+        lines.append(f"  {c.mark}: changed because {', '.join(c.because)} changed" if c.because else f"  {c.mark}:")
         lines += [f"      input  {k}: {a} -> {b}" for k, a, b in c.inputs]
         lines += [f"      result {k}: {a} -> {b}" for k, a, b in c.results]
         if c.verdict_flip:

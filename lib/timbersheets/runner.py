@@ -12,26 +12,29 @@ import multiprocessing
 import os
 import shutil
 import time
+import traceback
 from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from . import __version__
+from .constants import SHORT_CAUTION
 from .data import DataSet
-from .design import MemberDesign, design_all, member_types
+from .design import MemberDesign, design_all
+from .errors import ExitCode, JobError
+from .membertypes import member_types
 from .fileio import write_atomic
+from .keep import Carried, carry_package, carry_sheets, package_key, write_package_key
 from .pipeline import templates_dir
-from .progress import Progress
 from .project import Project, load_project
 from .fileio import write_csv
 from .results import member_json, results_doc, write_results
-from .review import latest, read_reviews, status, titleblock_text
+from .review import comment_text, latest, read_reviews, status, titleblock_text
 from .revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
 from .schedule import load_schedule
 from .sheetjobs import SheetOutcome, SheetTask, from_cache, run_sheet
 from .tex import escape
 
-EXIT_PASS, EXIT_MEMBERS, EXIT_JOB = 0, 1, 2
 
 
 @dataclass
@@ -55,11 +58,12 @@ class RunReport:
     log: list[str] = field(default_factory=list)
     package: Path | None = None
     package_error: str | None = None
+    carried: Carried = field(default_factory=Carried)
 
     @property
     def exit_code(self) -> int:
         ok = all(d.status == "pass" for d in self.designs) and not self.package_error
-        return EXIT_PASS if ok else EXIT_MEMBERS
+        return ExitCode.OK if ok else ExitCode.MEMBERS
 
     def counts(self) -> dict[str, int]:
         out = {"pass": 0, "fail": 0, "error": 0}
@@ -76,16 +80,18 @@ class RunReport:
         return [m for m, s in self.sheets.items() if s.converted]
 
 
-def default_outputs(folder: Path) -> Path:
-    """``outputs/`` beside ``calcsheets/`` for a job kept there, else ./outputs."""
-    folder = folder.resolve()
-    if folder.parent.name == "calcsheets":
-        return folder.parent.parent / "outputs"
-    return Path.cwd() / "outputs"
-
-
 def job_dir(project: Project, out: Path | None) -> Path:
-    return out if out is not None else default_outputs(project.folder) / project.name
+    """The folder holding a job's rev-<R>/ folders: `out`, else project.OUTPUT_RULE.
+
+    The rule depends only on where the job folder is, never on where the command
+    is run from, so run, diff and review always agree.
+    """
+    if out is not None:
+        return out
+    folder = project.folder.resolve()
+    if folder.parent.name == "calcsheets":
+        return folder.parent.parent / "outputs" / folder.name
+    return folder / "outputs"
 
 
 def revision_dir(project: Project, out: Path | None) -> Path:
@@ -93,7 +99,7 @@ def revision_dir(project: Project, out: Path | None) -> Path:
 
 
 def titleblock(project: Project, design: MemberDesign, data: DataSet, checked: str = "not checked",
-               changed_since: str | None = None) -> dict[str, str]:
+               changed_since: str | None = None, review_comment: str = "") -> dict[str, str]:
     """Title block fields for one sheet, escaped for LaTeX."""
     f = project.fields
     m = design.member
@@ -104,11 +110,11 @@ def titleblock(project: Project, design: MemberDesign, data: DataSet, checked: s
         "mark": design.mark, "description": short, "date": f["date"],
         "revision": f["revision"] + (f", changed since {changed_since}" if changed_since else ""),
         "designed": f["designer"], "checked": checked, "engineer": f["engineer"],
+        "review_comment": review_comment,
         "tool_version": f"timbersheets {__version__}",
         "inputs_hash": (m.inputs_hash.split(":")[1][:12] if m else ""),
         "data_hash": data.hash.split(":")[1][:12],
-        "caution": "Review and seal by a licensed professional engineer required; the codes adopted by the "
-                   "authority having jurisdiction govern.",
+        "caution": SHORT_CAUTION,
     }
     return {k: escape(v) for k, v in raw.items()}
 
@@ -126,8 +132,8 @@ def sheet_tasks(project: Project, designs: list[MemberDesign], data: DataSet, ou
                   "materials": str(project.materials) if project.materials else ""}
         sheet = outdir / "sheets" / f"{d.mark}.{opts.fmt}" if opts.sheets else None
         info = (extra or {}).get(d.mark, {})
-        block = titleblock(project, d, data, titleblock_text(info.get("review", {"status": "not-checked"})),
-                           info.get("changed_since"))
+        review = info.get("review", {"status": "not-checked"})
+        block = titleblock(project, d, data, titleblock_text(review), info.get("changed_since"), comment_text(review))
         tasks.append(SheetTask(d.mark, template, params, block, data.hash, cache,
                                outdir / "notebooks" / f"{d.mark}.ipynb", sheet, opts.fmt, opts.force,
                                project.folder.resolve()))
@@ -136,14 +142,17 @@ def sheet_tasks(project: Project, designs: list[MemberDesign], data: DataSet, ou
 
 def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool) -> dict[str, SheetOutcome]:
     """Execute and convert every task, `jobs` at a time; a failure stays with its member."""
+    from tqdm import tqdm
+
     jobs = max(1, jobs or os.cpu_count() or 1)
-    bar = Progress(len(tasks), "sheets") if progress else None
+    # disable=None: a bar only on a terminal, as with the other command-line tools
+    bar = tqdm(total=len(tasks), desc="sheets", unit="sheet", disable=None if progress else True, leave=False)
     outcomes: dict[str, SheetOutcome] = {}
 
     def done(task: SheetTask, outcome: SheetOutcome) -> None:
         outcomes[task.mark] = outcome
-        if bar:
-            bar.step(task.mark)
+        bar.set_postfix_str(task.mark, refresh=False)
+        bar.update()
 
     pending = []
     for task in tasks:  # unchanged members come straight from the cache, without a worker
@@ -163,8 +172,7 @@ def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool) -> dict
             futures = {pool.submit(_safe_run, t): t for t in tasks}
             for future, task in futures.items():
                 done(task, future.result())
-    if bar:
-        bar.close()
+    bar.close()
     return outcomes
 
 
@@ -172,7 +180,7 @@ def _safe_run(task: SheetTask) -> SheetOutcome:
     try:
         return run_sheet(task)
     except Exception as exc:  # a worker failure belongs to its member, not the run  # noqa: BLE001
-        return SheetOutcome(task.mark, error=f"{type(exc).__name__}: {exc}")
+        return SheetOutcome(task.mark, error=f"{type(exc).__name__}: {exc}", trace=traceback.format_exc())
 
 
 def cross_check(design: MemberDesign, outcome: SheetOutcome) -> None:
@@ -204,16 +212,22 @@ def member_extras(project: Project, designs: list[MemberDesign], previous: dict 
 
 
 def stage_dir(project: Project, opts: RunOptions) -> tuple[Path, Path]:
-    """A staging folder beside the revision folder; with --only it starts as a copy of it."""
+    """An empty staging folder beside the revision folder (what stays of the old one: keep.py)."""
     final = revision_dir(project, opts.out)
     final.parent.mkdir(parents=True, exist_ok=True)
     stage = final.parent / f".{final.name}.staging-{os.getpid()}"
     shutil.rmtree(stage, ignore_errors=True)
-    if opts.only and final.exists():
-        shutil.copytree(final, stage)
-    else:
-        stage.mkdir()
+    stage.mkdir()
     return stage, final
+
+
+def check_only(project: Project, entries: list, only: list[str] | None) -> None:
+    """Refuse an --only mark the schedule does not have (a typo would otherwise run nothing, silently)."""
+    known = {e.mark for e in entries}
+    unknown = [m for m in only or () if m not in known]
+    if unknown:
+        raise JobError(f"--only {','.join(only)}", f"no member {', '.join(unknown)} in {project.schedule_path}",
+                       f"Marks in the schedule: {', '.join(sorted(known)) or 'none'}")
 
 
 def swap_into_place(stage: Path, final: Path) -> None:
@@ -244,6 +258,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     started = time.monotonic()
     project = load_project(folder)
     schedule = load_schedule(project.schedule_path)
+    check_only(project, schedule.entries, opts.only)
     data = DataSet(project.materials)
     designs = design_all(schedule.entries, data)
     jobdir = job_dir(project, opts.out)
@@ -255,8 +270,8 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     try:
         warnings = project.warnings + schedule.warnings
         report = RunReport(project, final, designs, warnings)
-        chosen = designs if not opts.only else [d for d in designs if d.mark in set(opts.only)]
-        tasks = sheet_tasks(project, chosen, data, stage, opts, extra)
+        every = sheet_tasks(project, designs, data, stage, opts, extra)
+        tasks = every if not opts.only else [t for t in every if t.mark in set(opts.only)]
         if tasks and opts.sheets:
             mark = time.monotonic()
             report.sheets = run_sheets(tasks, opts.jobs, opts.progress)
@@ -269,11 +284,18 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         doc["run_at"] = dt.datetime.now().isoformat(timespec="seconds")
         doc["previous_revision"] = prev_label
         changes = diff(previous, doc) if previous else []
+        carried = Carried()
+        carry_sheets(every, final, stage, carried)
+        key = package_key(doc, every)
         write_csv(stage / "diff.csv", DIFF_HEADER, diff_rows(changes))
         from .charts import write_chart
 
         write_chart(stage / "summary.png", doc["members"],
                     f"{project.fields['title']} rev {project.revision}: governing utilization", jobdir / ".cache")
+        if opts.sheets and opts.fmt == "html":
+            from .htmlindex import index_html
+
+            write_atomic(stage / "index.html", index_html(project, doc, stage))
         if opts.sheets and opts.fmt == "pdf":
             from .package import build_package
             from .pipeline import ConversionError
@@ -283,10 +305,16 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                 report.package = final / "package.pdf"
                 build_package(project, doc, data, stage, changes, hint=final,
                               pages={m: o.pages for m, o in report.sheets.items() if o.pages})
+                write_package_key(stage, key)
                 phases["package"] = time.monotonic() - mark
             except ConversionError as exc:
                 report.package, report.package_error = None, str(exc)
                 report.log.append(f"package.pdf was not written: {exc}")
+        else:
+            carry_package(key, final, stage, carried)
+            report.package = final / "package.pdf" if (stage / "package.pdf").exists() else None
+        report.carried = carried
+        doc["carried_over"] = carried.to_json()
         write_results(stage, doc)
         snapshot_inputs(project, stage)
         counts = report.counts()
@@ -295,9 +323,13 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                              f"{len(report.executed)} executed, {len(report.converted)} converted "
                              f"({time.monotonic() - started:.1f} s: "
                              + ", ".join(f"{k} {v:.1f} s" for k, v in phases.items()) + ")")
+        report.log += carried.log_lines()
         report.log += warnings
         for d in designs:
             report.log += [f"{d.mark}: {e}" for e in d.errors]
+        report.log += [f"{d.mark}: traceback of the internal error\n{d.trace.rstrip()}" for d in designs if d.trace]
+        report.log += [f"{o.mark}: traceback of the sheet failure\n{o.trace.rstrip()}"
+                       for o in report.sheets.values() if o.trace]
         write_atomic(stage / "run.log", "\n".join(report.log) + "\n")
         swap_into_place(stage, final)
     finally:

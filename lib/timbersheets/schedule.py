@@ -18,22 +18,21 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+from . import beamloads
 from .errors import JobError, ParameterError, ScheduleError
 from .loads import KD_OVERRIDE_RANGE
 from .materials import (GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, parse_support,
                         sawn_table_grade)
+from .membertypes import member_type, member_types
 from .sections import Section, parse_size, sawn_category
-from .units import UnitParseError, convert, parse_quantity
+from .units import UnitParseError, convert, example, parse_quantity
 
 LOAD_TYPES = ("D", "L", "S", "W", "E")
-MEMBER_TYPES = ("tension", "compression", "bending", "beam-column", "tension-bending")
-#: Types that bend: their compression edge can buckle sideways, so the row must say how it is held (Lu).
-BENDING_TYPES = ("bending", "beam-column", "tension-bending")
 MARK = re.compile(r"^[A-Za-z0-9._-]+$")
 LOAD_NAMES = {"D": "dead", "L": "live", "S": "snow (with rain)", "W": "wind", "E": "earthquake"}
 LOAD_MEANING = {
     "P": "axial force (positive = the member's own sense: tension for tension members, compression otherwise)",
-    "w": "uniform line load on the simple span `length`",
+    "w": "uniform line load over the whole member",
     "M": "strong-axis moment, where a frame model gives it",
     "V": "shear, where a frame model gives it",
 }
@@ -49,7 +48,7 @@ class Column:
     """
 
     name: str
-    kind: str  # text | choice | quantity | number | count | size
+    kind: str  # text | choice | quantity | number | count | size | spans | points | parts | carries
     unit: str = ""  # unit a bare number is in (quantity)
     compute: str = ""  # unit the library works in (quantity)
     default: Any = None
@@ -65,7 +64,7 @@ def _columns() -> tuple[Column, ...]:
     cols = [
         Column("mark", "text", required=True,
                meaning="member mark, unique in the job"),
-        Column("type", "choice", required=True, choices=MEMBER_TYPES,
+        Column("type", "choice", required=True,  # choices: the member type registry
                meaning="member type: what it carries and which checks it runs (beam-column = bending + axial compression)"),
         Column("material", "choice", required=True, choices=("sawn", "glulam"),
                meaning="sawn lumber or timber, or glulam"),
@@ -83,8 +82,9 @@ def _columns() -> tuple[Column, ...]:
                meaning="treatment factor"),
         Column("K_H", "number", default=1.0, minimum=0, strict=True,
                meaning="system factor (load sharing), sawn lumber only"),
-        Column("length", "quantity", "m", "mm", required=True, minimum=0, strict=True,
-               meaning="member length (the span of a beam)"),
+        Column("length", "quantity", "m", "mm", minimum=0, strict=True,
+               meaning="member length (the span of a beam; with spans, the total, overhangs included)",
+               blank="required, except on a beam that gives spans"),
         Column("Ke", "number", default=1.0, minimum=0, strict=True,
                meaning="effective length factor, both axes"),
         Column("Lx", "quantity", "m", "mm", minimum=0,
@@ -119,6 +119,28 @@ def _columns() -> tuple[Column, ...]:
         cols += [Column(f"{prefix}_{t}", "quantity", unit, compute, default=0.0,
                         meaning=f"specified {LOAD_MEANING[prefix]} from {LOAD_NAMES[t]} load") for t in LOAD_TYPES]
     cols += [
+        Column("spans", "spans",
+               meaning="beam spans between support centres, separated by '+' (continuous over interior supports)",
+               blank="one span, the length"),
+        Column("overhang_left", "quantity", "m", "mm", default=0.0, minimum=0,
+               meaning="overhang beyond the left end support"),
+        Column("overhang_right", "quantity", "m", "mm", default=0.0, minimum=0,
+               meaning="overhang beyond the right end support"),
+        Column("trib", "quantity", "m", "mm", minimum=0, strict=True,
+               meaning="tributary width of the area loads q_*: w = q × trib", blank="none (q_* refused)"),
+    ]
+    cols += [Column(f"q_{t}", "quantity", "kPa", "MPa", default=0.0,
+                    meaning=f"specified area load from {LOAD_NAMES[t]} load, times trib") for t in LOAD_TYPES]
+    cols += [Column(f"point_{t}", "points", default=(),
+                    meaning=f"{LOAD_NAMES[t]} point loads value@position; … (kN at m from the left end)", blank="none")
+             for t in LOAD_TYPES]
+    cols += [Column(f"part_{t}", "parts", default=(),
+                    meaning=f"{LOAD_NAMES[t]} partial uniform loads value@from-to; … (kN/m over m)", blank="none")
+             for t in LOAD_TYPES]
+    cols += [Column("carries", "carries", default=(),
+                    meaning="reactions this member supports: MARK.Rn@position on a beam, MARK.Rn on a column; "
+                    "MARK alone = its largest reaction", blank="none")]
+    cols += [
         Column("defl_L", "number", default=360.0, minimum=0, strict=True,
                meaning="live-load deflection limit as a span divisor (360 = L/360)"),
         Column("defl_total", "number", default=240.0, minimum=0, strict=True,
@@ -148,6 +170,20 @@ def _columns() -> tuple[Column, ...]:
 
 COLUMNS = {c.name: c for c in _columns()}
 REQUIRED = tuple(c.name for c in COLUMNS.values() if c.required)
+#: Loads and geometry only a bending member analysed as a beam takes.
+BEAM_ONLY = ("spans", "overhang_left", "overhang_right", "trib", *(f"{p}_{t}" for p in ("q", "point", "part")
+                                                                   for t in LOAD_TYPES))
+#: Set by the load path (reactions of the members this one carries), not by the schedule.
+DERIVED = ("carried",)
+
+
+_PARAMS = {
+    "spans": (lambda v: None if v is None else [round(x / 1000, 9) for x in v],
+              lambda raw: None if raw is None else tuple(float(x) * 1000 for x in raw)),
+    "points": (beamloads.points_params, beamloads.points_from_params),
+    "parts": (beamloads.parts_params, beamloads.parts_from_params),
+    "carries": (beamloads.carries_params, beamloads.carries_from_params),
+}
 
 
 @dataclass
@@ -180,14 +216,19 @@ class Member:
         """
         out: dict[str, Any] = {"mark": self.mark, "row": self.row}
         for name, value in self.values.items():
+            if name in DERIVED:
+                continue
             col = COLUMNS[name]
             if col.kind == "quantity" and value is not None:
                 out[name] = {"value": round(convert(value, col.compute, col.unit), 9), "unit": col.unit}
             elif col.kind == "size":
                 out[name] = value if value == "auto" else f"{value[0]:g}x{value[1]:g}"
+            elif col.kind in _PARAMS:
+                out[name] = _PARAMS[col.kind][0](value)
             else:
                 out[name] = value
         out["given"] = sorted(self.given)
+        out["carried"] = [c.params() for c in self.values.get("carried", ())]
         return out
 
     @classmethod
@@ -197,7 +238,7 @@ class Member:
         Refuses unknown or missing keys: papermill itself only warns about them,
         and a typo in a load name would otherwise silently use a default.
         """
-        expected = set(COLUMNS) | {"row", "given"}
+        expected = set(COLUMNS) | {"row", "given", *DERIVED}
         unknown, missing = set(params) - expected, expected - set(params)
         if unknown or missing:
             raise ParameterError(sorted(unknown), sorted(missing))
@@ -210,8 +251,13 @@ class Member:
                 values[name] = convert(float(raw["value"]), raw["unit"], col.compute)
             elif col.kind == "size":
                 values[name] = raw if raw == "auto" else parse_size(raw)
+            elif col.kind in _PARAMS:
+                values[name] = _PARAMS[col.kind][1](raw)
             else:
                 values[name] = raw
+        from .loadpath import CarriedLoad
+
+        values["carried"] = tuple(CarriedLoad.from_params(c) for c in params["carried"])
         return cls(params["mark"], int(params["row"]), values, frozenset(params.get("given", ())))
 
     @property
@@ -362,18 +408,25 @@ def _validate_row(file: str, row: int, cells: dict[str, str]) -> tuple[list[Sche
     return errors, values, given
 
 
+def choices(col: Column) -> tuple[str, ...]:
+    """The allowed values of a choice column; `type` takes them from the member type registry."""
+    return tuple(member_types()) if col.name == "type" else col.choices
+
+
 def _allowed(col: Column) -> str:
     if col.name == "mark":
         return "letters, digits, '-', '_' and '.'"
     if col.kind == "choice":
-        return ", ".join(col.choices)
+        return ", ".join(choices(col))
     if col.kind == "size":
         return "b x d in mm, e.g. 38x235 or 130x228"
     if col.kind == "count":
         return "a whole number of at least 1"
+    if col.kind in beamloads.ALLOWED:
+        return beamloads.ALLOWED[col.kind]
     if col.kind == "quantity":
         bound = "greater than 0" if col.strict else "0 or more" if col.minimum is not None else "any sign"
-        return f"a number in {col.unit} ({bound}), or with its own unit, e.g. '12 ft'"
+        return f"a number in {col.unit} ({bound}), or with its own unit, e.g. {example(col.unit)}"
     if col.kind == "number":
         bound = "greater than 0" if col.strict else "0 or more"
         return f"a plain number ({bound})"
@@ -386,7 +439,7 @@ def _read_cell(col: Column, text: str) -> Any:
             raise ValueError("has characters a mark may not have")
         return text
     if col.kind == "choice":
-        folded = {c.casefold(): c for c in col.choices}
+        folded = {c.casefold(): c for c in choices(col)}
         if text.casefold() not in folded:
             raise ValueError("is not one of the allowed values")
         return folded[text.casefold()]
@@ -397,6 +450,8 @@ def _read_cell(col: Column, text: str) -> Any:
             return parse_size(text)
         except ValueError:
             raise ValueError("is not a size") from None
+    if col.kind in beamloads.READERS:
+        return beamloads.READERS[col.kind](text)
     if col.kind == "count":
         if not re.fullmatch(r"\d+", text) or int(text) < 1:
             raise ValueError("is not a whole number of at least 1")
@@ -471,15 +526,16 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> li
         errs.append(ScheduleError(file, row, "net_area", f"{v['net_area']:g}",
                                   "leaves less than 75 % of the gross area; O86 does not allow designing on it",
                                   "a ratio from 0.75 to 1.0; reduce the holes or notches"))
-    errs += _lateral_support_checks(file, row, v, given)
-    errs += _bearing_checks(file, row, v, data)
+    beam_errors = beamloads.row_errors(file, row, v, given)
+    if beam_errors or v["length"] is None:
+        return errs + beam_errors
     for name in ("Lx", "Ly", "Lu", "Lu_bottom"):
         if v[name] is not None and v[name] > v["length"] * (1 + 1e-9) and name in given:
             errs.append(ScheduleError(file, row, name, f"{v[name] / 1000:g} m", f"is longer than the member (length {v['length'] / 1000:g} m)",
                                       f"at most the length, {v['length'] / 1000:g} m"))
-    for name in ("Lx", "Ly"):
-        if v[name] is None:
-            v[name] = v["length"]
+    errs += _type_rules(file, row, v, given)
+    errs += _lateral_support_checks(file, row, v, given)
+    errs += _bearing_checks(file, row, v, data)
     low, high = KD_OVERRIDE_RANGE
     if v["K_D"] is not None and not low <= v["K_D"] <= high:
         errs.append(ScheduleError(file, row, "K_D", f"{v['K_D']:g}", "is outside the load-duration factors of "
@@ -496,7 +552,7 @@ def _bearing_checks(file: str, row: int, v: dict[str, Any], data) -> list[Schedu
     errs = []
     if v["bears_on"]:
         allowed = "sawn <species> <grade>, glulam <species> <grade>, steel or concrete, e.g. 'sawn S-P-F No.1'"
-        if v["type"] not in ("compression", "beam-column"):
+        if member_type(v["type"]).axial != "compression":
             return [ScheduleError(file, row, "bears_on", v["bears_on"], "applies to columns and posts (compression, "
                                   "beam-column)", "blank for this type; give bearing for a beam's supports")]
         try:
@@ -514,7 +570,7 @@ def _bearing_checks(file: str, row: int, v: dict[str, Any], data) -> list[Schedu
         else:
             v["bears_on"] = support
     if v["bearing_width"] is not None:
-        if v["type"] != "bending" or v["bearing"] is None:
+        if member_type(v["type"]).routine != "bending" or v["bearing"] is None:
             errs.append(ScheduleError(file, row, "bearing_width", f"{v['bearing_width']:g} mm", "applies to a "
                                       "beam's bearings and needs their length in 'bearing'",
                                       "blank, or give bearing (the length) on a bending member"))
@@ -527,14 +583,8 @@ def _bearing_checks(file: str, row: int, v: dict[str, Any], data) -> list[Schedu
 
 def _lateral_support_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> list[ScheduleError]:
     """Lu and restraint must make one statement about how each edge is held (O86 6.5.4.2, 7.5.6.4)."""
-    if v["type"] not in BENDING_TYPES:
-        return []
-    if "Lu" not in given:
-        return [ScheduleError(file, row, "Lu", "", "is blank, but a member that bends must say how its compression "
-                              "edge is held (lateral support is never assumed)",
-                              "0 when decking, sheathing or joists fixed to it hold the compression edge "
-                              "continuously; else the distance between lateral supports in m (the length when "
-                              "nothing braces it)")]
+    if not member_type(v["type"]).bends or v["Lu"] is None:
+        return []  # a blank Lu on a type that requires it is reported by _type_rules
     errs = []
     restraint, lu, lu_bottom = v["restraint"], v["Lu"], v["Lu_bottom"]
     if restraint == "both-edges" and (lu > 0 or (lu_bottom or 0) > 0):
@@ -554,6 +604,31 @@ def _lateral_support_checks(file: str, row: int, v: dict[str, Any], given: set[s
                                   f"{'it is held continuously' if lu == 0 else 'nothing braces it between the supports'}",
                                   "with purlins, Lu = the purlin spacing (more than 0, less than the length)"))
     return errs
+#: Why a column a type requires matters, and what to write in it.
+REQUIRED_WHY = {"Lu": " to say how its compression edge is held (lateral support is never assumed)"}
+REQUIRED_HINT = {"Lu": "0 when decking, sheathing or joists fixed to it hold the compression edge continuously; "
+                       "else the distance between lateral supports in m (the length when nothing braces it)"}
+
+
+def _type_rules(file: str, row: int, v: dict[str, Any], given: set[str]) -> list[ScheduleError]:
+    """The member type's own rules: columns it requires or refuses, and what its blank lengths mean."""
+    kind = member_type(v["type"])
+    errs = [ScheduleError(file, row, name, "", f"is blank, but a {kind.name} member needs it"
+                          f"{REQUIRED_WHY.get(name, '')}", REQUIRED_HINT.get(name, _allowed(COLUMNS[name])))
+            for name in kind.requires if name not in given]
+    errs += [ScheduleError(file, row, name, _shown(COLUMNS[name], v[name]), f"does not apply to a {kind.name} member",
+                           "leave it blank") for name in kind.refuses if name in given]
+    for name, blank in kind.blank.items():
+        if name not in given:
+            v[name] = v["length"] if blank == "length" else float(blank)
+    return errs
+
+
+def _shown(col: Column, value: Any) -> str:
+    """A value as the row gave it, in the column's entry unit."""
+    if col.kind == "quantity" and value is not None:
+        return f"{convert(value, col.compute, col.unit):g} {col.unit}"
+    return str(value)
 
 
 def _size_checks(file: str, row: int, v: dict[str, Any], data) -> list[ScheduleError]:

@@ -17,9 +17,9 @@ from functools import cached_property
 from pathlib import Path
 from typing import Any
 
+from .constants import RESULT_MIME
 from .pipeline import ConversionError, execute, file_hash, library_fingerprint, notebook_to_pdf, to_html
 
-RESULT_MIME = "application/vnd.timbersheets.result+json"
 
 
 @dataclass
@@ -56,6 +56,7 @@ class SheetOutcome:
     error: str | None = None  # notebook error (the notebook is kept, error marked)
     pages: int = 0  # pages of the PDF sheet (0: not known)
     record: dict[str, Any] | None = field(default=None, repr=False)
+    trace: str = field(default="", repr=False)  # traceback of an unexpected failure, for run.log
 
 
 def copy_atomic(src: Path, dst: Path) -> None:

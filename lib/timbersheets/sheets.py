@@ -15,19 +15,18 @@ from typing import Any
 
 from .calc import format_number, format_value, unit_latex, unit_text
 from .checks import CheckResult
+from .constants import CAUTION, RESULT_MIME
 from .data import DataSet
-from .design import MemberDesign, design_member
+from .design import MemberDesign, design_member, effects_of
 from .loads import EFFECT_UNITS, EFFECTS, KD_SYMBOLS, LOAD_TYPES, kd_permanent
+from .membertypes import MemberType, member_type
 from .schedule import Member
 from .symbols import ACTION_WORDS, meaning, symbol_latex, symbol_unit
 from .tex import Cell, Table, escape, md_escape
 from .units import to_display
 
-CAUTION = ("This calculation must be reviewed and sealed by a licensed professional engineer before it is "
-           "used. The codes and editions adopted by the authority having jurisdiction govern.")
 LOAD_NAMES = {"D": "Dead", "L": "Live (use and occupancy)", "S": "Snow (with rain)", "W": "Wind", "E": "Earthquake"}
-EFFECT_NAMES = {"P": "P", "w": "w", "M": "M", "V": "V"}
-RESULT_MIME = "application/vnd.timbersheets.result+json"
+EFFECT_NAMES = {"P": "P", "w": "w", "M": "M", "V": "V", "F": "F"}
 
 
 @dataclass
@@ -91,6 +90,10 @@ class Sheet:
         assert self.design.member is not None
         return self.design.member
 
+    @property
+    def kind(self) -> MemberType:
+        return member_type(self.m.type)
+
     # 1 -------------------------------------------------------------------------
     def member_section(self) -> Block:
         m, d = self.m, self.design
@@ -106,14 +109,13 @@ class Sheet:
             ["Service condition", Cell(f"{m.service}; $K_T = {format_number(m.K_T)}$, $K_H = {format_number(m.K_H)}$ "
                                        "from the schedule", f"{m.service}; K_T = {m.K_T:g}, K_H = {m.K_H:g}")],
         ]
-        if m.type in ("bending", "beam-column", "tension-bending") and section is not None:
+        if self.kind.shows("span") and section is not None:
             from .beamsheet import member_rows
 
             rows += member_rows(m, section)
-        if m.type in ("tension", "compression") and section is not None:
-            rows += self._axial_rows(m, section)
-        elif m.type != "bending" and section is not None:
-            rows += self._axial_rows(m, section)[:1]  # the span rows above already give the net area
+        if section is not None:
+            length, net_area = self._axial_rows(m, section)
+            rows += [row for name, row in (("length", length), ("net-area", net_area)) if self.kind.shows(name)]
         if m.note:
             rows.append(["Note", m.note])
         rows.append(["Schedule", f"row {m.row}"])
@@ -171,8 +173,7 @@ class Sheet:
     # 2 -------------------------------------------------------------------------
     def present_effects(self) -> list[str]:
         ctx = self.design.context
-        m = ctx.member if ctx else self.m  # with the own weight the tool adds
-        return [e for e in EFFECTS if any(m.values[f"{e}_{t}"] for t in LOAD_TYPES)]
+        return effects_of(ctx.member if ctx else self.m).present()  # with the own weight the tool adds
 
     def loads_section(self) -> Block:
         m = self.m
@@ -182,15 +183,15 @@ class Sheet:
         rows = []
         from .loads import DURATION_CLASS
 
+        specified = effects_of(m)
         for t in LOAD_TYPES:
-            if not any(m.values[f"{e}_{t}"] for e in effects):
-                continue
-            rows.append([LOAD_NAMES[t], Cell.math(t), *[q(m.values[f"{e}_{t}"], EFFECT_UNITS[e]) for e in effects],
-                         DURATION_CLASS[t] + " term"])
+            if any(specified.get(e, t) for e in effects):
+                rows.append([LOAD_NAMES[t], Cell.math(t), *[q(specified.get(e, t), EFFECT_UNITS[e]) for e in effects],
+                             DURATION_CLASS[t] + " term"])
             if t == "D":
                 rows += self.own_weight_rows(effects)
         sense = ("Line loads act downward on the span, negative values upward (uplift); moments and shears are "
-                 "the frame model's, by load type." if m.type == "bending" else
+                 "the frame model's, by load type." if self.kind.axial is None else
                  "Positive axial force acts in the member's own sense (tension for a tension member, compression "
                  "otherwise).")
         weight = self.design.context.own_weight if self.design.context else None
@@ -199,8 +200,10 @@ class Sheet:
                "The schedule's dead load includes the member's own weight (self_weight = no); the tool adds none.")
         intro = para("Specified loads from the schedule, including importance factors, by load type (NBC "
                      f"{escape(self.codes.get('nbc', '2020'))} Part 4). {escape(own)} {sense}")
+        from .modelsheet import loads_block
+
         out = heading("Specified loads") + intro + table(Table(header, rows, "ll" + "r" * len(effects) + "l", units))
-        return out + self.own_weight_block(weight)
+        return out + self.own_weight_block(weight) + loads_block(m)
 
     def own_weight_rows(self, effects: list[str]) -> list[list[object]]:
         weight = self.design.context.own_weight if self.design.context else None
@@ -217,7 +220,7 @@ class Sheet:
         d = weight.density
         where = ("a uniform line load on the span" if weight.effect == "w" else
                  "axial load at the base: the whole weight, on the safe side of the weight above the critical section")
-        out = para(f"Own weight, as {escape(where)}; density $\rho$ of {escape(self.m.material)} "
+        out = para(f"Own weight, as {escape(where)}; density $\\rho$ of {escape(self.m.material)} "
                    f"{escape(self.m.species)} in {escape(self.m.service)} service from densities.csv "
                    f"({escape(d.table or 'table number not recorded')}; {escape(d.source)}; {escape(d.status)}); "
                    "$g$ = 9.81 N/kg:")
@@ -230,14 +233,15 @@ class Sheet:
     def combinations_section(self) -> Block:
         d = self.design
         effects = self.present_effects()
-        header = ["No.", "Combination", *[Cell.math(f"{EFFECT_NAMES[e]}_f") for e in effects], Cell.math("K_D"),
+        header = ["NBC case", "Combination", *[Cell.math(f"{EFFECT_NAMES[e]}_f") for e in effects], Cell.math("K_D"),
                   Cell("Basis of $K_D$", "Basis of K_D")]
         units = ["", "", *[unit_text_of(e) for e in effects], "", ""]
         rows = []
-        for i, case in enumerate(d.cases, 1):
-            rows.append([str(i), case.label, *[q(case.factored[e], EFFECT_UNITS[e]) for e in effects],
+        for case in d.cases:
+            rows.append([case.combination.id, case.label, *[q(case.factored[e], EFFECT_UNITS[e]) for e in effects],
                          Cell(f"${format_number(case.K_D)}$", format_number(case.K_D)), basis_cell(case.basis)])
         intro = para(f"ULS load combinations of NBC {escape(self.codes.get('nbc', '2020'))} Table 4.1.3.2.-A, "
+                     "numbered as its cases, "
                      "each principal load with and without its companion loads; 0.9D only where a load acts "
                      "against the dead load; combinations that repeat another are left out. "
                      "$K_D$ by the duration class of the principal load (CSA O86:19 5.3.2, Table 5.1), one value "
@@ -270,7 +274,7 @@ class Sheet:
                             f"so (CSA O86:19 5.3.2.3, on ${case.kd_effect}$; {words}; O86's own letters for "
                             "these are those of the schedule's live and snow load columns, hence new names):")
                 out += math_block(latex)
-        if self.m.type == "bending":
+        if self.kind.shows("forces"):
             from .beamsheet import forces_block
 
             out += forces_block(d)
@@ -280,13 +284,13 @@ class Sheet:
         """Bending members: the shear and moment diagram of the governing combination (else nothing)."""
         from .beamsheet import diagram
 
-        return diagram(self.design) if self.m.type == "bending" else []
+        return diagram(self.design) if self.kind.shows("diagram") else []
 
     def serviceability_section(self) -> Block:
         """Bending members: the SLS combinations used for deflection, with their sources."""
         from .beamsheet import serviceability_block
 
-        return serviceability_block(self.design, self.data) if self.m.type == "bending" else Block("", "")
+        return serviceability_block(self.design, self.data) if self.kind.shows("serviceability") else Block("", "")
 
     # 4 -------------------------------------------------------------------------
     def factors_section(self) -> Block:
@@ -303,7 +307,7 @@ class Sheet:
             rows.append([Cell.math(symbol_latex(datum.symbol)), Cell(f"${value}$", value),
                          meaning(datum.symbol) or datum.label, f"{datum.table}", datum.status_text])
         m = self.m
-        given = (("K_H", m.K_H), ("K_T", m.K_T)) + ((("K_e", m.Ke),) if m.type != "bending" else ())
+        given = (("K_H", m.K_H), ("K_T", m.K_T)) + ((("K_e", m.Ke),) if self.kind.shows("length") else ())
         for name, value in given:
             rows.append([Cell.math(symbol_latex(name)), Cell(f"${format_number(value)}$", format_number(value)),
                          meaning(name), "schedule", "as given"])
@@ -335,7 +339,8 @@ class Sheet:
             branch = (("Negative moment (bottom edge in compression)" if result.demand < 0 else
                        "Positive moment (top edge in compression)") + ", shown in full for the combination that "
                       "governs it" if len(shown) > 1 else "Shown in full for the governing combination")
-            out += para(f"{branch} {escape(result.combination)} ({kd}); every combination is listed after.")
+            at = f" at {escape(result.where)}" if result.where else ""
+            out += para(f"{branch} {escape(result.combination)}{at} ({kd}); every combination is listed after.")
             for step in result.steps:
                 if step.caption:
                     out += para(f"\\emph{{{caption_latex(step.caption)}}}", f"*{md_escape(step.caption)}*")
@@ -349,6 +354,12 @@ class Sheet:
         units = ["", "", unit_text(unit), unit_text(unit), ""]
         rows = [[c.combination, kd_cell(c), num(c.demand, unit), num(c.resistance, unit), util_cell(c.utilization)]
                 for c in all_cases]
+        if any(c.where for c in all_cases):  # a beam model: one row per place and combination
+            header.insert(1, "Where")
+            units.insert(1, "")
+            for row, c in zip(rows, all_cases):
+                row.insert(1, escape(c.where))
+            return out + table(Table(header, rows, "lXrrrr", units))
         return out + table(Table(header, rows, "lrrrr", units))
 
     @staticmethod
@@ -392,10 +403,13 @@ class Sheet:
         listing = ""
         md = ""
         if warnings:
-            items = "".join(f"\\item {escape(w)}\n" for w in warnings)
+            from .cautions import unverified_items
+
+            entries = unverified_items(self.design.data_used)
+            items = "".join(f"\\item {latex}\n" for latex, _ in entries)
             listing = ("\\par\\smallskip Data values used here that are not yet verified against the standard:\n"
                        f"\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n")
-            md = "\n\nUnverified data values used:\n" + "".join(f"- {md_escape(w)}\n" for w in warnings)
+            md = "\n\nUnverified data values used:\n" + "".join(f"- {text}\n" for _, text in entries)
         codes = (f" Designed to CSA O86:{escape(self.codes.get('o86', '2019'))[-2:]} with loads combined per "
                  f"NBC {escape(self.codes.get('nbc', '2020'))} Part 4.")
         clauses = (" Clause numbers follow the O86-14 numbering, believed unchanged in O86:19 (memory, unverified).")

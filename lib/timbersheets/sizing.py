@@ -15,6 +15,7 @@ from dataclasses import dataclass, field
 from .data import DataSet
 from .errors import DesignError, TimbersheetsError
 from .materials import sawn_table_grade
+from .membertypes import member_type
 from .schedule import Member
 from .sections import Section, sawn_category
 
@@ -66,6 +67,7 @@ def catalogue(member: Member, data: DataSet) -> list[Section]:
     """Standard sections allowed for `member`, lightest first."""
     width, max_depth = member.values.get("width"), member.values.get("max_depth")
     fixed_plies = member.plies if "plies" in member.given else None
+    kind = member_type(member.type)
     sections: list[Section] = []
     if member.material == "glulam":
         lam, min_depth = data.lamination
@@ -82,7 +84,7 @@ def catalogue(member: Member, data: DataSet) -> list[Section]:
                 section = Section(float(b), float(d), n)
                 if sawn_table_grade(member.grade, sawn_category(section)) is None:
                     continue
-                if member.type != "tension" and n > 1 and member.type != "bending":
+                if n > 1 and not kind.plies:
                     continue  # built-up columns are not designed by this version
                 sections.append(section)
     if width:

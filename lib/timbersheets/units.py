@@ -47,7 +47,35 @@ DISPLAY_UNITS = {
     "kg/mm**3": "kg/m**3",
 }
 
-_NUMBER_WITH_UNIT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
+_NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
+_NUMBER_WITH_UNIT = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
+_FEET = r"(?:'|′|ft|feet|foot)"
+_INCHES = r"(?:\"|″|''|in|inch|inches)"
+#: 12'-6", 12' 6", 12 ft 6 in: feet and inches of one length.
+_FEET_INCHES = re.compile(rf"^\s*({_NUMBER})\s*{_FEET}\s*-?\s*(\d+\.?\d*|\.\d+)\s*{_INCHES}\s*$")
+#: A unit is names joined by *, /, ·, - (kN-m) or a space, each with an optional whole power 1 to 4.
+_UNIT_FACTOR = re.compile(r"([A-Za-zµ]+)(?:(?:\*\*|\^)([1-4])|([²³]))?")
+_UNIT_JOIN = re.compile(r"\s*((?<!\*)\*(?!\*)|/|·|-)\s*|\s+")
+
+#: Trade spellings pint does not know, or reads as something else (lb is a mass to pint).
+_ALIASES = {
+    "'": "ft", "′": "ft", '"': "in", "″": "in", "''": "in",
+    "kNm": "kN*m", "kN.m": "kN*m",
+    "kip-ft": "kip*ft", "ft-kip": "kip*ft", "kip-in": "kip*in", "in-kip": "kip*in",
+    "lb-ft": "lbf*ft", "ft-lb": "lbf*ft", "lb-in": "lbf*in", "in-lb": "lbf*in",
+    "lb": "lbf", "lbs": "lbf", "kips": "kip",
+    "plf": "lbf/ft", "klf": "kip/ft", "psf": "lbf/ft**2", "ksf": "kip/ft**2",
+}
+
+#: By a unit of each dimension: the dimension's name, and what to write in such a column (the error hint).
+_DIMENSIONS = {
+    "m": ("length", "3.6 m, 12 ft or 12'-6\""),
+    "kN": ("force", "12 kN or 2.7 kip"),
+    "kN/m": ("line load (force per length)", "4.5 kN/m or 300 plf"),
+    "kN*m": ("moment", "25 kN*m or 18 kip-ft"),
+    "kPa": ("pressure (force per area)", "2.4 kPa or 50 psf"),
+}
+_SMALL_LENGTH_EXAMPLE = "89 mm or 3.5 in"
 
 
 class UnitParseError(ValueError):
@@ -61,44 +89,83 @@ def unit(text: str) -> pint.Unit:
     return ureg.Unit(text) if text else ureg.dimensionless
 
 
+def example(default_unit: str) -> str:
+    """How a value of a column whose bare numbers are in `default_unit` may be written."""
+    if default_unit == "mm":
+        return _SMALL_LENGTH_EXAMPLE
+    return _dimension(default_unit)[1]
+
+
 def parse_quantity(text: str, default_unit: str) -> float:
-    """Read a schedule cell such as ``"3.6 m"``, ``"12 ft"`` or ``"4.5"``.
+    """Read a schedule cell such as ``"3.6 m"``, ``"12 ft"``, ``12'-6"`` or ``"4.5"``.
 
     A bare number takes `default_unit`. The value is returned as a float in
     `default_unit`. Raises UnitParseError for non-numbers, NaN or infinite
-    values, unknown units and units of the wrong dimension.
+    values, unknown units and units of the wrong dimension; the message gives
+    an example in the column's own unit.
     """
-    match = _NUMBER_WITH_UNIT.match(text)
-    if not match:
-        raise UnitParseError("is not a number")
-    number = float(match.group(1))
+    compound = _FEET_INCHES.match(text)
+    if compound:
+        feet, inches = float(compound.group(1)), float(compound.group(2))
+        if inches >= 12:
+            raise UnitParseError("has 12 inches or more after the feet; write the feet and inches, e.g. 13'-0\"")
+        number, given, unit_text = feet + math.copysign(inches / 12, feet), unit("ft"), "ft"
+    else:
+        match = _NUMBER_WITH_UNIT.match(text)
+        if not match:
+            raise UnitParseError("is not a number")
+        number, unit_text = float(match.group(1)), match.group(2)
+        if not unit_text:
+            given = None
+        else:
+            given = _read_unit(unit_text, default_unit)
     if not math.isfinite(number):
         raise UnitParseError("is not a finite number")
-    unit_text = match.group(2)
-    if not unit_text:
+    if given is None:
         return number
-    try:
-        given = unit(unit_text.replace("·", "*"))
-    except (pint.errors.UndefinedUnitError, pint.errors.DefinitionSyntaxError, AttributeError, TypeError, ValueError):
-        raise UnitParseError(f"has an unknown unit '{unit_text}'") from None
     target = unit(default_unit)
     if given.dimensionality != target.dimensionality:
         raise UnitParseError(
-            f"has unit '{unit_text}', which is not a {_dimension_words(target)} "
-            f"(expected e.g. {default_unit or 'a plain number'})"
+            f"has unit '{unit_text}', which is not a {_dimension(default_unit)[0]}; write e.g. {example(default_unit)}"
         )
     return float(registry().Quantity(number, given).to(target).magnitude)
 
 
-def _dimension_words(u: pint.Unit) -> str:
-    names = {
-        "[length]": "length",
-        "[length] * [mass] / [time] ** 2": "force",
-        "[mass] / [time] ** 2": "line load (force per length)",
-        "[length] ** 2 * [mass] / [time] ** 2": "moment",
-        "dimensionless": "plain number",
-    }
-    return names.get(str(u.dimensionality), str(u.dimensionality))
+def _read_unit(text: str, default_unit: str) -> pint.Unit:
+    """A unit from names joined by *, /, ·, - or a space, each with a power 1 to 4.
+
+    pint's own expression reader would also take numbers, brackets and powers
+    (``kN/0``, ``m**0``, ``ft)``) and fail in its own words; a cell needs none of them.
+    """
+    unknown = UnitParseError(f"has an unknown unit '{text}'; write e.g. {example(default_unit)}")
+    text = _ALIASES.get(text, text)
+    parts = _UNIT_JOIN.split(text)
+    result = registry().dimensionless
+    for position, part in enumerate(parts):
+        if position % 2:
+            continue
+        factor = _UNIT_FACTOR.fullmatch(part)
+        if not factor:
+            raise unknown
+        name, power, superscript = factor.groups()
+        name = _ALIASES.get(name, name)
+        try:
+            named = registry().Unit(name)
+        except Exception:  # pint raises several kinds for a name it does not know
+            raise unknown from None
+        power_value = int(power) if power else {"²": 2, "³": 3}.get(superscript, 1)
+        divide = position > 0 and parts[position - 1] == "/"
+        result = result / named**power_value if divide else result * named**power_value
+    return result
+
+
+def _dimension(default_unit: str) -> tuple[str, str]:
+    """The dimension's name and an example, for a column whose bare numbers are in `default_unit`."""
+    dimensionality = unit(default_unit).dimensionality
+    for name, described in _DIMENSIONS.items():
+        if unit(name).dimensionality == dimensionality:
+            return described
+    return (f"quantity in {default_unit}", f"a number in {default_unit}") if default_unit else ("plain number", "4.5")
 
 
 @lru_cache(maxsize=256)

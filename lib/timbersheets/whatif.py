@@ -1,4 +1,9 @@
-"""What-if: scale load types and report what would change, writing nothing."""
+"""What-if: scale load types and report what would change, writing nothing.
+
+A what-if asks what heavier (or lighter) loads do to the members as they are:
+a member with ``size = auto`` keeps the section sized for the scheduled loads,
+unless `resize` asks for a new search under the scaled loads.
+"""
 
 from __future__ import annotations
 
@@ -17,6 +22,11 @@ class WhatIf:
     mark: str
     before: MemberDesign
     after: MemberDesign
+    auto: bool = False  # size = auto in the schedule
+
+    @property
+    def resized(self) -> bool:
+        return self.auto and self.before.size != self.after.size
 
     @property
     def flipped(self) -> bool:
@@ -51,11 +61,29 @@ def scaled(member: Member, scales: dict[str, float]) -> Member:
     return Member(member.mark, member.row, values, member.given, list(member.warnings))
 
 
-def what_if(folder: Path, scales: dict[str, float]) -> list[WhatIf]:
-    """Every member designed as scheduled and with its loads scaled."""
+def as_sized(member: Member, design: MemberDesign) -> Member:
+    """An auto member fixed at the section its design has (the one a run with the scheduled loads gives)."""
+    if member.size != "auto" or design.context is None:
+        return member
+    section = design.context.section
+    values = {**member.values, "size": (section.ply_b, section.d), "plies": section.plies}
+    return Member(member.mark, member.row, values, member.given, list(member.warnings))
+
+
+def what_if(folder: Path, scales: dict[str, float], resize: bool = False) -> list[WhatIf]:
+    """Every member designed as scheduled and with its loads scaled.
+
+    Auto members keep the sections of the scheduled loads; with `resize` they are sized again.
+    """
     project = load_project(folder)
     schedule = load_schedule(project.schedule_path)
     data = DataSet(project.materials)
     before = design_all(schedule.entries, data)
-    after = design_all([scaled(e, scales) if isinstance(e, Member) else e for e in schedule.entries], data)
-    return [WhatIf(b.mark, b, a) for b, a in zip(before, after)]
+    after_entries = []
+    for entry, design in zip(schedule.entries, before):
+        if isinstance(entry, Member):
+            entry = scaled(entry if resize else as_sized(entry, design), scales)
+        after_entries.append(entry)
+    after = design_all(after_entries, data)
+    return [WhatIf(b.mark, b, a, isinstance(e, Member) and e.size == "auto")
+            for e, b, a in zip(schedule.entries, before, after)]

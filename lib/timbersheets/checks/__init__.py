@@ -48,6 +48,7 @@ class CheckResult:
     resistance_symbol: str = ""
     leave_out: tuple[str, ...] = ()  # names not reported as factors (e.g. the resistance itself)
     with_kd: bool = True  # K_D is a factor of strength checks, not of deflections
+    where: str = ""  # place and load arrangement, for members analysed as beam models
 
     @cached_property
     def factors(self) -> dict[str, float]:

@@ -58,7 +58,8 @@ def check_bearing(m, forces, line_loads: bool):
         return None
     if forces.R_f <= 0:
         return None
-    if not line_loads:
+    model = getattr(forces, "where", "")
+    if not line_loads and not model:
         note = ("bearing not checked: with moments and shears from a frame model the support reactions are not "
                 "known (at an interior support the reaction is the sum of the shears on both sides)")
         if note not in m.notes:
@@ -82,8 +83,14 @@ def check_bearing(m, forces, line_loads: bool):
         values = sawn_bearing(K_Zcp=k_zcp, **common)
         calc_, clause = sawn_bearing, SAWN_CLAUSE
         words += f"; K_Zcp = {format_number(k_zcp)} for width/depth b/d = {ratio:.2f}"
-    steps = [Step(udl_reaction, udl_reaction(w_f=forces.w_f, L=m.length), "Factored reaction at each support"),
-             Step(calc_, values, words)]
+    if model:
+        words = (f"Factored reaction Q_f = {forces.R_f / 1000:.1f} kN at {model} (beam model, section 3); "
+                 "K_B = 1.0 at every support: it applies only to bearings at least 75 mm from the member's end, "
+                 f"and 1.0 is on the safe side at interior supports{words.partition('from the end')[2]}")
+        steps = [Step(calc_, values, words)]
+    else:
+        steps = [Step(udl_reaction, udl_reaction(w_f=forces.w_f, L=m.length), "Factored reaction at each support"),
+                 Step(calc_, values, words)]
     return result("bearing", case, forces.R_f, values["Q_r"], "N", clause, tuple(steps), "Q_f", "Q_r")
 
 

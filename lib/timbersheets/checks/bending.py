@@ -173,11 +173,19 @@ def bottom_edge_words(member) -> str:
     return f"held at intervals of Lu_bottom = {member.Lu_bottom / 1000:g} m"
 
 
-def lateral_stability(m, F_b: float, negative: bool, line_loads: bool) -> tuple[float, list[Step], str]:
-    """K_L under one combination, its steps, and the words that explain it."""
+def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
+                      segment: float | None = None) -> tuple[float, list[Step], str]:
+    """K_L under one combination, its steps, and the words that explain it.
+
+    `segment` (mm): the unsupported length of the compression edge a beam model gives for this moment.
+    """
     s, member = m.section, m.member
-    L_u = unsupported_length(member, negative)
-    edge = f"Negative moment: the bottom edge is in compression; {bottom_edge_words(member)}. " if negative else ""
+    L_u = segment if segment is not None else unsupported_length(member, negative)
+    bottom = bottom_edge_words(member)
+    if negative and segment is not None and member.Lu_bottom is None and member.restraint != "both-edges":
+        bottom = (f"Lu_bottom is not given, so it is taken as laterally unsupported between the supports, "
+                  f"L_u = {L_u / 1000:g} m")
+    edge = f"Negative moment: the bottom edge is in compression; {bottom}. " if negative else ""
     ratio = s.d / s.b
     if m.glulam and L_u == 0:
         return 1.0, [], f"{edge}Lateral stability: compression edge held continuously (L_u = 0), so K_L = 1.0."
@@ -240,7 +248,7 @@ def check_bending(m, forces, line_loads: bool):
         f_b = m.f["f_b"]
     strength = bending_strength(f_b=f_b, K_D=case.K_D, K_H=m.K_H, K_Sb=m.K_S["K_Sb"], K_T=m.K_T)
     F_b = strength["F_b"]
-    K_L, lateral_steps, words = lateral_stability(m, F_b, negative, line_loads)
+    K_L, lateral_steps, words = lateral_stability(m, F_b, negative, line_loads, getattr(forces, "L_u", None))
     steps: list[Step] = []
     if "moment" in forces.steps:
         steps.append(Step(*forces.steps["moment"], "Factored moment at midspan"))

@@ -64,6 +64,8 @@ def check_shear(m, forces, line_loads: bool):
     common = dict(f_v=m.f["f_v"], K_D=case.K_D, K_H=m.K_H, K_Sv=m.K_S["K_Sv"], K_T=m.K_T, phi=m.phi["shear"],
                   A_n=m.A_n)
     given = "" if line_loads else "Shear V_f from the frame model, used as given (no reduction at d). "
+    if getattr(forces, "where", ""):
+        given = (f"Largest factored shear at or beyond d from the supports, from the beam model ({forces.where}). ")
     if not m.glulam:
         _, kzv = sawn_size_factors(m)
         values = sawn_shear(K_Zv=kzv.value, **common)

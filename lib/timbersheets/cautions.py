@@ -1,0 +1,91 @@
+"""The sheet's list of unverified data values, in typeset symbols and plain words.
+
+results.json keeps each value's data label (``K_St sawn small wet service``);
+a sheet says the same thing as a checker reads it: the symbol set as maths, what
+it stands for, the case it applies to, and the table it should be checked
+against. Load combinations are named as the sheet's combination table numbers
+them (the NBC case labels, 1, 2a, 2b …).
+"""
+
+from __future__ import annotations
+
+import re
+
+from .data import Datum
+from .symbols import ACTION_WORDS, meaning, symbol_latex
+from .tex import escape, md_escape
+
+#: Data-file names that appear in labels, in words.
+PLAIN = {
+    "K_X_straight": "straight members",
+    "shear_method_a_volume_max": "",  # the symbol Z_max says it
+    "C_V_simple_span_udl": "simple span under uniform load",
+    "simple-udl": "simple span under uniform load",
+}
+_IDENT = re.compile(r"[A-Za-z][A-Za-z0-9]*(?:_[A-Za-z0-9]+)+")
+
+
+def _qualifier(label: str, symbol: str) -> str:
+    """The label without its symbol, data names turned into words."""
+    words = [PLAIN.get(w, w) for w in label.split(" ") if w != symbol]
+    return re.sub(r"^limit, ", "", " ".join(w for w in words if w)).strip()
+
+
+def _text(qualifier: str) -> tuple[str, str]:
+    """LaTeX and Markdown of a qualifier; a symbol in it (K_Zb) set as maths, other names in words."""
+    latex, md, pos = [], [], 0
+    for match in _IDENT.finditer(qualifier):
+        name = match.group(0)
+        head = name.split("_")[0]
+        typeset = meaning(name) or (head[:1].isupper() or head in ("f", "phi")) and len(head) <= 2
+        latex.append(escape(qualifier[pos:match.start()]))
+        md.append(md_escape(qualifier[pos:match.start()]))
+        if typeset:
+            latex.append(f"${symbol_latex(name)}$")
+            md.append(f"${symbol_latex(name)}$")
+        else:
+            latex.append(escape(name.replace("_", " ")))
+            md.append(md_escape(name.replace("_", " ")))
+        pos = match.end()
+    return "".join(latex) + escape(qualifier[pos:]), "".join(md) + md_escape(qualifier[pos:])
+
+
+def _source(d: Datum) -> tuple[str, str]:
+    return (f"{escape(d.table)}; data file \\texttt{{{escape(d.file)}}}",
+            f"{md_escape(d.table)}; data file `{d.file}`")
+
+
+def unverified_items(used: list[Datum]) -> list[tuple[str, str]]:
+    """(LaTeX, Markdown) per unverified value used; the load combinations together on one line."""
+    items: dict[str, tuple[str, str]] = {}
+    combos: dict[str, Datum] = {}
+    for d in used:
+        if d.verified or d.warning in items:
+            continue
+        if d.label.startswith("NBC combination "):
+            combos.setdefault(d.label.split(" ", 2)[2], d)
+            continue
+        src_latex, src_md = _source(d)
+        if d.label.startswith("SLS combination "):
+            check, load = d.label.split(" ")[2:4]
+            words = f"Serviceability load factor on {load} for {ACTION_WORDS.get(check, check).lower()}"
+            items[d.warning] = (f"{escape(words)} ({src_latex}): memory, unverified",
+                                f"{md_escape(words)} ({src_md}): memory, unverified")
+            continue
+        symbol = d.symbol or d.label.split(" ")[0]
+        sym = f"${symbol_latex(symbol)}$"
+        what = meaning(symbol)
+        q_latex, q_md = _text(_qualifier(d.label, symbol))
+        if q_latex.startswith("="):  # E05 = 0.87 E of …: the rule itself, after the symbol again
+            q_latex, q_md = f"{sym} {q_latex}", f"{sym} {q_md}"
+        head_latex = sym + (f", {escape(what)}" if what else "") + (f": {q_latex}" if q_latex else "")
+        head_md = sym + (f", {md_escape(what)}" if what else "") + (f": {q_md}" if q_md else "")
+        items[d.warning] = (f"{head_latex} ({src_latex}): memory, unverified",
+                            f"{head_md} ({src_md}): memory, unverified")
+    if combos:
+        first = next(iter(combos.values()))
+        src_latex, src_md = _source(first)
+        words = f"Load factors of combinations {', '.join(combos)} (numbered as in the load combinations table)"
+        items["combinations"] = (f"{escape(words)} ({src_latex}): memory, unverified",
+                                 f"{md_escape(words)} ({src_md}): memory, unverified")
+    return list(items.values())

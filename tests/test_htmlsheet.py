@@ -1,0 +1,103 @@
+"""HTML sheets: the PDF sheet's content, title block and rounding, readable offline."""
+
+from __future__ import annotations
+
+import html as htmllib
+import re
+import shutil
+import subprocess
+
+import nbformat
+import pytest
+
+from conftest import DEMO, write_job
+from timbersheets.data import DataSet
+from timbersheets.design import design_member
+from timbersheets.htmlsheet import Converter, sheet_html
+from timbersheets.project import load_project
+from timbersheets.runner import RunOptions, run_job, titleblock
+from timbersheets.schedule import load_schedule
+from timbersheets.sheets import Sheet
+
+SECTIONS = ("member_section", "sizing_section", "loads_section", "combinations_section", "factors_section",
+            "checks_section", "summary_section", "cautions")
+
+
+def visible_text(page: str) -> str:
+    """What a reader sees: tags dropped (MathML numbers and symbols kept), entities decoded."""
+    page = re.sub(r"<style>.*?</style>", " ", page, flags=re.S)
+    return htmllib.unescape(re.sub(r"<[^>]+>", " ", page))
+
+
+def offline(page: str) -> list[str]:
+    """Everything in a page that a browser would fetch from the network."""
+    return (re.findall(r"<script\b[^>]*>", page) + re.findall(r"<link\b[^>]*>", page)
+            + re.findall(r"""(?:src|href)\s*=\s*["']?(?:https?:)?//[^"'\s>]*""", page)
+            + re.findall(r"@import|url\(\s*['\"]?(?:https?:)?//", page))
+
+
+def demo_notebook(mark: str):
+    """The notebook a run writes, built in-process from the same sheet functions (no papermill)."""
+    member = {m.mark: m for m in load_schedule(DEMO / "schedule.csv").members}[mark]
+    data = DataSet()
+    design = design_member(member, data)
+    sheet = Sheet(design, data, {"nbc": "2020", "o86": "2019"})
+    nb = nbformat.v4.new_notebook()
+    for name in SECTIONS:
+        block = getattr(sheet, name)()
+        nb.cells.append(nbformat.v4.new_code_cell(outputs=[nbformat.v4.new_output(
+            "display_data", data={"text/latex": block.latex, "text/markdown": block.markdown})]))
+    return nb, titleblock(load_project(DEMO), design, data)
+
+
+def test_html_sheet_has_the_title_block_sections_and_verdict():
+    page = sheet_html(*demo_notebook("C-1"))
+    seen = visible_text(page)
+    for label in ("Project", "Member", "Revision", "Designed by", "Checked by", "Engineer of record", "Seal"):
+        assert f">{label}<" in page, label
+    assert "Kestrel Cove Community Boathouse" in seen and "C-1" in seen and "not checked" in seen
+    headings = re.findall(r'<h2><span class="num">(\d+)</span> ([^<]+)</h2>', page)
+    assert [h[1] for h in headings] == ["Member", "Specified loads", "Load combinations",
+                                       "Material and modification factors", "Checks", "Summary"]
+    assert [h[0] for h in headings] == ["1", "2", "3", "4", "5", "6"]
+    assert 'class="verdict"' in page and "PASSES" in seen
+    assert 'class="caution"' in page and "licensed professional engineer" in seen
+    assert page.count("<math") > 20 and page.count("<table") >= 5
+
+
+def test_html_sheet_is_offline_and_free_of_raw_markup():
+    page = sheet_html(*demo_notebook("J-1"))
+    assert offline(page) == []
+    prose = visible_text(re.sub(r"<math.*?</math>", " ", page, flags=re.S))
+    assert "$" not in prose  # no raw maths such as $w$
+    assert not re.search(r"\\[A-Za-z]+", prose), re.search(r".{30}\\[A-Za-z]+.{30}", prose)
+    assert not re.search(r"\b[KfEPVM]_[A-Za-z]", prose)  # K_T, f_b … are typeset, not raw
+    assert "result record for" not in prose and "calc-sheet template" not in prose
+
+
+def test_table_cells_and_escapes_survive():
+    conv = Converter()
+    out = conv.blocks("\\begin{tabular}{lr}\\toprule\nA \\& B & $x_1$ \\\\\n\\midrule\n100\\% & 5 \\\\\n"
+                      "\\bottomrule\n\\end{tabular}\n")
+    assert "<th>A &amp; B</th>" in out and "<td>100%</td>" in out and '<td class="r">5</td>' in out
+
+
+@pytest.mark.pipeline
+@pytest.mark.skipif(shutil.which("pdftotext") is None, reason="needs poppler")
+def test_html_sheet_holds_the_pdf_sheets_numbers(tmp_path):
+    job = tmp_path / "kestrel-cove-boathouse"
+    shutil.copytree(DEMO, job)
+    marks = ["C-1", "J-1"]
+    pdf = run_job(job, RunOptions(out=tmp_path / "pdf", only=marks, progress=False, jobs=1))
+    web = run_job(job, RunOptions(out=tmp_path / "html", only=marks, fmt="html", progress=False, jobs=1))
+    index = (web.outdir / "index.html").read_text()
+    assert offline(index) == [] and 'href="sheets/C-1.html"' in index
+    for mark in marks:
+        text = subprocess.run(["pdftotext", str(pdf.outdir / "sheets" / f"{mark}.pdf"), "-"], capture_output=True,
+                              text=True, check=True).stdout
+        page = (web.outdir / "sheets" / f"{mark}.html").read_text()
+        assert offline(page) == []
+        numbers = set(re.findall(r"\d+\.\d+", text))  # every rounded value of the calculation
+        missing = numbers - set(re.findall(r"\d+\.\d+", visible_text(page)))
+        assert not missing, (mark, sorted(missing))
+        assert len(numbers) > 40

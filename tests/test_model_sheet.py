@@ -1,0 +1,43 @@
+"""The sheet of a beam analysed as a model names the package and version, lists every load with its source,
+the specified reactions, the governing extremes with place and arrangement, and draws the model."""
+
+from __future__ import annotations
+
+from importlib.metadata import version
+
+from conftest import write_schedule
+from timbersheets.design import design_all
+from timbersheets.schedule import load_schedule
+from timbersheets.sheets import Sheet
+
+ROWS = [
+    {"mark": "RB-1", "type": "bending", "material": "glulam", "species": "D.Fir-L", "grade": "24f-E",
+     "size": "130x304", "length": "6.0", "Lu": "0", "bearing": "140", "w_D": "1.2", "w_S": "3.0"},
+    {"mark": "J-1", "type": "bending", "material": "sawn", "species": "S-P-F", "grade": "No.1/No.2",
+     "size": "38x235", "spans": "3.6+3.6", "Lu": "0", "bearing": "89", "q_D": "0.5", "q_L": "1.9", "trib": "0.4",
+     "restraint": "both-edges", "carries": "RB-1.R1@3.6"},
+]
+
+
+def sheet_for(tmp_path, data, mark):
+    schedule = load_schedule(write_schedule(tmp_path, ROWS))
+    design = next(d for d in design_all(schedule.entries, data) if d.mark == mark)
+    return Sheet(design, data, {"nbc": "2020", "o86": "2019"})
+
+
+def test_model_sheet_shows_the_model_and_its_sources(tmp_path, data):
+    sheet = sheet_for(tmp_path, data, "J-1")
+    member = sheet.member_section().latex
+    assert "spans 3.6 + 3.6 m" in member and "R2 at 3.60 m" in member
+    loads = sheet.loads_section().latex
+    # hand calculation: w = q × trib = 1.9 kPa × 0.4 m = 0.76 kN/m
+    assert "1.9 kPa × 0.4 m = 0.76 kN/m" in loads
+    # RB-1.R1 = wL/2: D 1.2 × 3 = 3.6 kN, S 3.0 × 3 = 9.0 kN, landing at 3.6 m (the interior support)
+    assert "RB-1.R1: reaction of RB-1, support 1" in loads and "9.0" in loads and "3.60" in loads
+    forces = sheet.combinations_section().latex
+    assert f"PyCBA {version('pycba')}" in forces
+    assert "L on span 1" in forces and "largest positive moment" in forces and "support 2" in forces
+    caption, image = sheet.diagram()
+    assert image.data[:4] == b"\x89PNG" and "governing bending combination" in caption.latex
+    checks = sheet.checks_section().latex
+    assert "Where" in checks and "span 2" in checks

@@ -1,0 +1,54 @@
+"""Plumbing done once: one copy of the cautions, exit codes carried by the errors, tracebacks kept."""
+
+import ast
+from pathlib import Path
+
+from conftest import member_row, write_job
+from timbersheets import design
+from timbersheets.cli import main
+from timbersheets.constants import CAUTION, SHORT_CAUTION
+from timbersheets.errors import DataError, ExitCode, JobError, ScheduleError, UsageError
+from timbersheets.runner import RunOptions, run_job
+
+REPO = Path(__file__).resolve().parent.parent
+
+
+def test_the_caution_is_written_once():
+    # the words of the caution appear in constants.py and nowhere else the program reads
+    places = [p for p in [*(REPO / "lib").rglob("*.py"), *(REPO / "templates").rglob("*.j2")]
+              if "licensed professional engineer" in p.read_text(encoding="utf-8")]
+    assert [p.name for p in places] == ["constants.py"]
+    assert "licensed professional engineer" in CAUTION and "authority having jurisdiction" in SHORT_CAUTION
+
+
+def test_the_cli_returns_no_literal_exit_status():
+    tree = ast.parse((REPO / "lib" / "timbersheets" / "cli.py").read_text(encoding="utf-8"))
+    literal = [node.lineno for node in ast.walk(tree) if isinstance(node, ast.Return)
+               and isinstance(node.value, ast.Constant) and isinstance(node.value.value, int)]
+    assert literal == []
+
+
+def test_errors_carry_their_exit_code():
+    # the documented contract: 2 = the job itself is unusable, or the command cannot act
+    for error in (JobError("p", "x"), ScheduleError("f", 2, "c", "v", "x"), DataError("f", "x"), UsageError("x")):
+        assert error.exit_code == ExitCode.UNUSABLE == 2
+
+
+def test_a_usage_error_exits_2_with_its_message(tmp_path, capsys):
+    job = write_job(tmp_path / "job", [member_row("OK-1")])
+    assert main(["new", str(job)]) == 2
+    assert "already holds a job; nothing was changed" in capsys.readouterr().err
+
+
+def test_an_internal_error_leaves_its_traceback_in_run_log(tmp_path, monkeypatch):
+    def defective(ctx, cases, kind):
+        return [1 / 0]  # a deliberate defect in a design routine
+
+    monkeypatch.setitem(design.ROUTINES, "axial", defective)
+    job = write_job(tmp_path / "job", [member_row("OK-1")])
+    report = run_job(job, RunOptions(out=tmp_path / "out", sheets=False, progress=False))
+    assert report.designs[0].status == "error"
+    assert "ZeroDivisionError" in report.designs[0].errors[0]
+    log = (report.outdir / "run.log").read_text(encoding="utf-8")
+    assert "OK-1: traceback of the internal error" in log
+    assert "Traceback (most recent call last)" in log and "in defective" in log

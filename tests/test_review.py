@@ -1,0 +1,79 @@
+"""The checker's verdicts: an "ok" must mean the member passes (or say why), and the
+cover, the index and `review --status` count verdicts by one rule."""
+
+from __future__ import annotations
+
+import json
+import subprocess
+
+import pytest
+
+from conftest import member_row, write_job
+from timbersheets.cli import main
+from timbersheets.data import DataSet
+from timbersheets.package import package_tex
+from timbersheets.project import load_project
+from timbersheets.review import count_text
+from timbersheets.runner import RunOptions, run_job
+
+# P_D = 500 kN on a 38x140 S-P-F stud fails by far (its resistance is a few kN): common practice.
+ROWS = [member_row("OK-1"), member_row("OK-2"), member_row("BIG", P_D="500"), member_row("BAD", grade="No.7")]
+
+
+@pytest.fixture
+def job(tmp_path):
+    folder = write_job(tmp_path / "job", ROWS)
+    run_job(folder, RunOptions(out=tmp_path / "out", sheets=False, progress=False))
+    return folder, tmp_path / "out"
+
+
+def review(job, *args):
+    folder, out = job
+    return main(["review", str(folder), "--out", str(out), *args])
+
+
+def test_ok_on_a_failing_or_errored_member_needs_a_comment(job, capsys):
+    for mark in ("BIG", "BAD"):
+        assert review(job, "--mark", mark, "--by", "RD", "--verdict", "ok") == 2
+        assert mark in capsys.readouterr().err
+    assert not (job[0] / "review.csv").exists()  # nothing was recorded
+    assert review(job, "--all", "--by", "RD", "--verdict", "ok") == 2  # --all includes them
+    assert review(job, "--mark", "BIG", "--by", "RD", "--verdict", "revise") == 0
+    assert review(job, "--mark", "BAD", "--by", "RD", "--verdict", "ok",
+                  "--comment", "row replaced by BAD-2 in rev B; not built") == 0
+    assert review(job, "--mark", "OK-1", "--by", "RD", "--verdict", "ok") == 0
+
+
+def test_revise_counts_the_same_on_cover_index_and_status(job, capsys):
+    folder, out = job
+    assert review(job, "--mark", "OK-1", "--by", "RD", "--verdict", "ok") == 0
+    assert review(job, "--mark", "OK-2", "--by", "RD", "--verdict", "revise", "--comment", "use 38x184") == 0
+    run_job(folder, RunOptions(out=out, sheets=False, progress=False))  # the verdicts into results.json
+    doc = json.loads((out / "rev-A" / "results.json").read_text())
+    expected = "1 of 4 members checked ok, 1 to revise, 2 not checked"
+    assert count_text([m["review"] for m in doc["members"]]) == expected
+
+    capsys.readouterr()
+    assert review(job, "--status") == 1
+    printed = capsys.readouterr().out
+    assert f"rev A: {expected}" in printed
+    assert "OK-2" in printed and "revise" in printed and "use 38x184" in printed  # the comment is shown
+    assert "OK-1 " not in printed  # checked ok: nothing left to do
+
+    tex, _ = package_tex(load_project(folder), doc, DataSet(), out / "rev-A", [], "")
+    cover, index = tex.split("Index of members", 1)
+    assert expected in cover and expected in index
+
+
+@pytest.mark.pipeline
+def test_the_checkers_comment_is_on_the_sheet(tmp_path):
+    folder, out = write_job(tmp_path / "job", [member_row("C-1")]), tmp_path / "out"
+    run_job(folder, RunOptions(out=out, jobs=1, progress=False))
+    assert main(["review", str(folder), "--out", str(out), "--mark", "C-1", "--by", "RD", "--verdict", "revise",
+                 "--comment", "Confirm the post base detail"]) == 0
+    again = run_job(folder, RunOptions(out=out, jobs=1, progress=False))
+    assert again.executed == []  # a review retypesets; nothing is re-executed
+    sheet = subprocess.run(["pdftotext", str(out / "rev-A" / "sheets" / "C-1.pdf"), "-"], capture_output=True,
+                           text=True, check=True).stdout
+    assert "Checker’s comment" in sheet  # TeX sets ' as a typographic apostrophe
+    assert "RD, 20" in sheet and "revise: Confirm the post base detail" in sheet
