@@ -26,8 +26,8 @@ from .calc import calc
 from .errors import DesignError
 from .loads import LOAD_TYPES
 
-#: Deflection under specified loads (CSA O86:19 5.4.2; memory, unverified clause number).
-SLS_CLAUSE = "O86:19 5.4.2"
+#: Deflection under specified loads (CSA O86-14 5.4.2; memory, unverified clause number).
+SLS_CLAUSE = "O86-14 5.4.2"
 MODEL_CLAUSE = "beam model (PyCBA)"
 
 

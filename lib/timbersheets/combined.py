@@ -63,7 +63,7 @@ def design_combined(ctx, cases: list[LoadCase], kind) -> list[CheckResult]:
     sense = kind.axial
     if ctx.section.plies > 1 and not kind.plies:
         raise DesignError(ctx.mark, "built-up (multi-ply) beam-columns need the rules for built-up columns, which "
-                          "this version does not implement", "O86:19 6.5.6.4", "Design it as a solid section")
+                          "this version does not implement", "O86-14 6.5.6.4", "Design it as a solid section")
     refuse_reversal(ctx, cases, sense)
     mode = loading_mode(ctx.member)
     line = mode == "line"

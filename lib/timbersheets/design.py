@@ -161,7 +161,7 @@ def _axial(ctx: Context, cases: list[LoadCase], kind: MemberType) -> list[CheckR
     check = check_tension if kind.axial == "tension" else check_compression
     if ctx.section.plies > 1 and not kind.plies:
         raise DesignError(ctx.mark, "built-up (multi-ply) columns need the rules for nailed or bolted "
-                          "built-up columns, which this version does not implement", "O86:19 6.5.6.4",
+                          "built-up columns, which this version does not implement", "O86-14 6.5.6.4",
                           "Design it as a solid section or by hand")
     if kind.axial == "tension":
         cases = tension_only(ctx, cases)

@@ -104,7 +104,7 @@ KD_SYMBOLS = {"X_lt": "the specified long-term (dead-load) part of the effect",
 KD_OVERRIDE_RANGE = (0.65, 1.15)
 
 
-@calc(units={"X_lt": "N", "X_st": "N", "K_D": ""}, clause="O86:19 5.3.2.3")
+@calc(units={"X_lt": "N", "X_st": "N", "K_D": ""}, clause="O86-14 5.3.2.3")
 def kd_permanent(X_lt, X_st):
     K_D = max(1.0 - 0.50 * log10(X_lt / X_st), 0.65)
     return locals()
@@ -128,7 +128,7 @@ class LoadCase:
 
 def load_duration(comb: Combination, effects: Effects, data: DataSet, used: list[Datum],
                   override: float | None, storage: bool = False) -> tuple[float, str, dict[str, float], str]:
-    """K_D for one combination (CSA O86:19 5.3.2, Table 5.1), one value for every resistance of it.
+    """K_D for one combination (CSA O86-14 5.3.2, Table 5.1), one value for every resistance of it.
 
     The class of the principal load sets K_D: long term (dead only) 0.65,
     standard term (L or S principal) 1.0, short term (W or E principal) 1.15.

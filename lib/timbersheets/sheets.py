@@ -244,7 +244,7 @@ class Sheet:
                      "numbered as its cases, "
                      "each principal load with and without its companion loads; 0.9D only where a load acts "
                      "against the dead load; combinations that repeat another are left out. "
-                     "$K_D$ by the duration class of the principal load (CSA O86:19 5.3.2, Table 5.1), one value "
+                     "$K_D$ by the duration class of the principal load (CSA O86-14 5.3.2, Table 5.1), one value "
                      "for every resistance of the combination. In a live- or snow-principal combination, each "
                      "effect that carries live or snow load is tested by 5.3.2.3 and the lowest value is used; an "
                      "effect from dead load alone is checked long-term in the dead-only combination (1.4D with "
@@ -271,7 +271,7 @@ class Sheet:
                 latex = kd_permanent.latex(case.kd_values, units={"X_lt": unit, "X_st": unit})
                 words = "; ".join(f"${symbol_latex(k)}$ is {v}" for k, v in KD_SYMBOLS.items())
                 out += para(f"For {escape(case.label)} the long-term (dead) part exceeds the standard-term part, "
-                            f"so (CSA O86:19 5.3.2.3, on ${case.kd_effect}$; {words}; O86's own letters for "
+                            f"so (CSA O86-14 5.3.2.3, on ${case.kd_effect}$; {words}; O86's own letters for "
                             "these are those of the schedule's live and snow load columns, hence new names):")
                 out += math_block(latex)
         if self.kind.shows("forces"):
@@ -412,11 +412,21 @@ class Sheet:
             md = "\n\nUnverified data values used:\n" + "".join(f"- {text}\n" for _, text in entries)
         codes = (f" Designed to CSA O86:{escape(self.codes.get('o86', '2019'))[-2:]} with loads combined per "
                  f"NBC {escape(self.codes.get('nbc', '2020'))} Part 4.")
-        clauses = (" Clause numbers follow the O86-14 numbering, believed unchanged in O86:19 (memory, unverified).")
+        clauses = (" The methods, clause numbers and tables used here follow CSA O86-14 (each data value names "
+                   "its edition); where O86:19 is known to have revised one of them, it is listed below.")
         notes = ""
+        from .edition import revision_notes
+
+        revised = revision_notes(self.design)
+        if revised:
+            items = "".join(f"\\item {caption_latex(r)}\n" for r in revised)
+            notes += ("\\par\\smallskip Earlier (O86-14) forms used where O86:19 revised the clause; verify them:\n"
+                      f"\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n")
+            md += "\n\nEarlier (O86-14) forms used where O86:19 revised the clause:\n" + "".join(
+                f"- {md_escape(r)}\n" for r in revised)
         if self.design.warnings:
             items = "".join(f"\\item {escape(w)}\n" for w in self.design.warnings)
-            notes = f"\\par\\smallskip Notes on this member:\n\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n"
+            notes += f"\\par\\smallskip Notes on this member:\n\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n"
             md += "\n\nNotes:\n" + "".join(f"- {md_escape(w)}\n" for w in self.design.warnings)
         return Block(f"\\begin{{cautionbox}}\n{escape(CAUTION)}{codes}{escape(clauses)}\n{notes}{listing}"
                      "\\end{cautionbox}\n", f"**Caution.** {md_escape(CAUTION)}{md}\n")

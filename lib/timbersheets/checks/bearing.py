@@ -1,5 +1,5 @@
 """Bearing: compression perpendicular to grain at the supports
-(CSA O86:19 6.5.7 sawn, 7.5.9 glulam).
+(CSA O86-14 6.5.7 sawn, 7.5.9 glulam).
 
 Sawn:   Q_r = φ F_cp A_b K_B K_Zcp,  F_cp = f_cp (K_D K_Scp K_T)   [form: S1]
 Glulam: Q_r = φ F_cp A_b K_B
@@ -18,8 +18,8 @@ from ..analysis import SPAN_CLAUSE
 from ..calc import calc, format_number
 from . import Step, result
 
-SAWN_CLAUSE = "O86:19 6.5.7"
-GLULAM_CLAUSE = "O86:19 7.5.9"
+SAWN_CLAUSE = "O86-14 6.5.7"
+GLULAM_CLAUSE = "O86-14 7.5.9"
 END_BEARING_K_B = 1.0  # K_B does not apply at the end of a member (bearing < 75 mm from the end)
 
 _UNITS = {"f_cp": "MPa", "K_D": "", "K_Scp": "", "K_T": "", "F_cp": "MPa", "phi": "", "b": "mm", "l_b": "mm",

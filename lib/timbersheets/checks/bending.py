@@ -1,4 +1,4 @@
-"""Bending moment resistance with lateral stability (CSA O86:19 6.5.4 sawn, 7.5.6 glulam).
+"""Bending moment resistance with lateral stability (CSA O86-14 6.5.4 sawn, 7.5.6 glulam).
 
 Sawn:   M_r = φ F_b S K_Zb K_L,  F_b = f_b (K_D K_H K_Sb K_T).
 Glulam: M_r = the lesser of φ F_b S K_X K_Zbg and φ F_b S K_X K_L, with
@@ -32,9 +32,9 @@ from ..data import Datum
 from ..errors import DataError, DesignError
 from . import Step, result
 
-SAWN_CLAUSE = "O86:19 6.5.4"
-GLULAM_CLAUSE = "O86:19 7.5.6"
-STABILITY_CLAUSE = {"sawn": "O86:19 6.5.4.2", "glulam": "O86:19 7.5.6.4"}
+SAWN_CLAUSE = "O86-14 6.5.4"
+GLULAM_CLAUSE = "O86-14 7.5.6"
+STABILITY_CLAUSE = {"sawn": "O86-14 6.5.4.2", "glulam": "O86-14 7.5.6.4"}
 CB_MAX = 50.0
 CB_STOCKY = 10.0  # C_B at or below which K_L = 1.0 (O86 6.5.4.2.4)
 
@@ -46,7 +46,7 @@ def bending_strength(f_b, K_D, K_H, K_Sb, K_T):
 
 
 @calc(units={"K_Le": "", "L_u": "mm", "d": "mm", "b": "mm", "E_05": "MPa", "K_SE": "", "K_T": "", "F_b": "MPa",
-             "L_e": "mm", "C_B": "", "C_K": ""}, clause="O86:19 6.5.4.2")
+             "L_e": "mm", "C_B": "", "C_K": ""}, clause="O86-14 6.5.4.2")
 def lateral_slenderness(K_Le, L_u, d, b, E_05, K_SE, K_T, F_b):
     L_e = K_Le * L_u
     C_B = sqrt(L_e * d / b**2)
@@ -54,13 +54,13 @@ def lateral_slenderness(K_Le, L_u, d, b, E_05, K_SE, K_T, F_b):
     return locals()
 
 
-@calc(units={"C_B": "", "C_K": "", "K_L": ""}, clause="O86:19 6.5.4.2")
+@calc(units={"C_B": "", "C_K": "", "K_L": ""}, clause="O86-14 6.5.4.2")
 def lateral_intermediate(C_B, C_K):
     K_L = 1 - 1 / 3 * (C_B / C_K) ** 4
     return locals()
 
 
-@calc(units={"C_B": "", "E_05": "MPa", "K_SE": "", "K_T": "", "F_b": "MPa", "K_L": ""}, clause="O86:19 6.5.4.2")
+@calc(units={"C_B": "", "E_05": "MPa", "K_SE": "", "K_T": "", "F_b": "MPa", "K_L": ""}, clause="O86-14 6.5.4.2")
 def lateral_slender(C_B, E_05, K_SE, K_T, F_b):
     K_L = 0.65 * E_05 * K_SE * K_T / (C_B**2 * F_b)
     return locals()
@@ -113,7 +113,7 @@ def sawn_size_factors(m) -> tuple[Datum, Datum]:
     except DataError:
         raise DesignError(m.mark, f"the bending and shear size factors K_Zb, K_Zv for {s.ply_b:g} mm thick "
                           "pieces are not in the data tables (only dimension lumber 38-102 mm thick is)",
-                          "O86:19 6.4.5", "Design this timber by hand, or add a verified size-factor table") from None
+                          "O86-14 6.4.5", "Design this timber by hand, or add a verified size-factor table") from None
     kzv = replace(kzb, symbol="K_Zv", label=kzb.label.replace("K_Zb", "K_Zv (as K_Zb)", 1))
     m.used += [kzb, kzv]
     return kzb, kzv
