@@ -82,8 +82,9 @@ def test_firm_file_wins(tmp_path):
     from timbersheets.data import DataSet
 
     firm = tmp_path / "firm.csv"
-    firm.write_text("material,species,grade,category,property,value,unit,edition,table,source,status\n"
-                    "sawn,S-P-F,No.1/No.2,dimension,f_c,11.0,MPa,O86:19,6.5,firm licensed copy,verified\n",
+    firm.write_text("material,species,grade,category,property,value,unit,edition,table,source,status,verified_by,"
+                    "verified_on\n"
+                    "sawn,S-P-F,No.1/No.2,dimension,f_c,11.0,MPa,O86:19,6.5,firm licensed copy,verified,RD,2026-11-30\n",
                     encoding="utf-8")
     ds = DataSet(firm)
     datum = ds.sawn_strength("S-P-F", "No.1/No.2", "dimension", "f_c")

@@ -102,6 +102,23 @@ def _parser() -> argparse.ArgumentParser:
                                          "values, from the column table in the code.",
                              epilog="Exit status: 0.")
     columns.add_argument("--markdown", action="store_true", help="print it as the Markdown table of docs/columns.md")
+
+    data = sub.add_parser("data", help="list the data values a job uses, for checking against the standard",
+                          description="List every tabled value (specified strengths, modification and resistance "
+                                      "factors, load combination rows) the job's members use, grouped by table, with "
+                                      "its source, status and the members that use it. A firm checks them once, in "
+                                      "the file --firm-file writes, and names it in project.toml ([data] materials).",
+                          epilog=EPILOG)
+    data.add_argument("dir", type=Path, nargs="?", help="the job folder (not needed with --all or --compare)")
+    data.add_argument("--all", action="store_true", help="list every value of the built-in tables instead")
+    data.add_argument("--csv", action="store_true", help="write the list as CSV to standard output")
+    data.add_argument("--sheet", action="store_true",
+                      help="typeset the list as a verification sheet (PDF) with columns for the checker")
+    data.add_argument("--firm-file", type=Path, metavar="FILE",
+                      help="write a firm data file holding the values the job uses, status to-verify")
+    data.add_argument("--compare", type=Path, metavar="FILE",
+                      help="list where a firm data file differs from the built-in data")
+    data.add_argument("--out", type=Path, help="with --sheet: the folder for the PDF (default outputs/<job>/)")
     return p
 
 
@@ -135,6 +152,8 @@ def cmd_run(args: argparse.Namespace) -> int:
     report = run_job(args.dir, opts)
     for line in report.schedule_warnings:
         print(f"warning: {line}", file=sys.stderr)
+    for line in report.data_errors:
+        print(f"error: {line}", file=sys.stderr)
     for d in report.designs:
         util = f"{round_utilization(d.governing.utilization):6.3f}" if d.governing and not d.errors else "     -"
         gov = f"{d.governing.check} under {d.governing.combination}" if d.governing and not d.errors else ""
@@ -195,8 +214,8 @@ def cmd_size(args: argparse.Namespace) -> int:
     from .sizing import size
 
     project = load_project(args.dir)
-    schedule = load_schedule(project.schedule_path)
     data = DataSet(project.materials)
+    schedule = load_schedule(project.schedule_path, data)
     members = {m.mark: m for m in schedule.members}
     marks = args.mark or [m.mark for m in schedule.members if m.size == "auto"]
     unknown = [m for m in marks if m not in members]
@@ -271,7 +290,9 @@ def cmd_review(args: argparse.Namespace) -> int:
     unknown = [m for m in marks if m not in members]
     if unknown:
         raise UsageError(f"not in rev {project.revision}: {', '.join(unknown)}")
-    current = {m.mark: m.inputs_hash for m in load_schedule(project.schedule_path).members}
+    from .data import DataSet
+
+    current = {m.mark: m.inputs_hash for m in load_schedule(project.schedule_path, DataSet(project.materials)).members}
     stale = [m for m in marks if current.get(m) != members[m].get("inputs_hash")]
     if stale:
         raise UsageError(f"the schedule changed after the last run for {', '.join(stale)}; "
@@ -285,6 +306,49 @@ def cmd_review(args: argparse.Namespace) -> int:
     return ExitCode.OK
 
 
+def cmd_data(args: argparse.Namespace) -> int:
+    from .data import DataSet
+    from .datacheck import all_items, compare, csv_text, format_list, job_designs, used_items, write_firm_file
+
+    if args.compare:
+        lines, _ = compare(args.compare)
+        print("\n".join(lines))
+        return ExitCode.MEMBERS if any(line.startswith("  error:") for line in lines) else ExitCode.OK
+    if args.all:
+        data, items, title, project = DataSet(), all_items(DataSet()), "built-in data", None
+    elif args.dir is None:
+        raise UsageError("data needs a job folder DIR (or --all, or --compare FILE)")
+    else:
+        from .project import load_project
+
+        project = load_project(args.dir)
+        data, designs = job_designs(project)
+        items = used_items(data, designs)
+        title = f"{project.name} rev {project.revision}: data values used by {len(designs)} members"
+        if data.firm:
+            for e in data.firm.errors:
+                print(f"error: {e}", file=sys.stderr)
+    if args.csv:
+        sys.stdout.write(csv_text(items))
+    elif not (args.firm_file or args.sheet):
+        print(format_list(items, title))
+    if args.firm_file:
+        count = write_firm_file(args.firm_file, items)
+        print(f"wrote {count} values to {args.firm_file}, each with status to-verify")
+        print("next: check each value against your licensed copy of the standard; correct it where the standard "
+              "differs; set status verified with verified_by, verified_on and edition; then name the file in "
+              "project.toml: [data] materials = \"...\"")
+    if args.sheet:
+        if project is None:
+            raise UsageError("--sheet needs a job folder DIR")
+        from .datasheet import write_sheet
+        from .runner import job_dir
+
+        pdf = write_sheet(project, data, items, job_dir(project, args.out))
+        print(f"written: {pdf}")
+    return ExitCode.MEMBERS if data.firm and data.firm.errors else ExitCode.OK
+
+
 def cmd_columns(args: argparse.Namespace) -> int:
     from .columnref import markdown, text
 
@@ -293,7 +357,7 @@ def cmd_columns(args: argparse.Namespace) -> int:
 
 
 COMMANDS = {"new": cmd_new, "run": cmd_run, "size": cmd_size, "diff": cmd_diff, "review": cmd_review,
-            "columns": cmd_columns}
+            "columns": cmd_columns, "data": cmd_data}
 
 
 def main(argv: list[str] | None = None) -> int:

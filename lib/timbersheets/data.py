@@ -1,10 +1,11 @@
 """Data tables with provenance: strengths, factors, combinations, sizes.
 
-Each value is a :class:`Datum` that knows the file and table it came from and
-whether it has been verified against the standard. A firm may point a job at its
-own verified strengths file (``[data] materials`` in project.toml); its rows win
-over the built-in ones. Every value a member uses is recorded, so the sheet and
-results.json can list the unverified ones.
+Each value is a :class:`Datum` that knows the file, table and row it came from
+and whether it has been verified against the standard. A firm may point a job at
+its own data file (``[data] materials`` in project.toml, read by
+:mod:`timbersheets.firmdata`); its values win over the built-in ones, in any
+table. Every value a member uses is recorded, so the sheet and results.json can
+list the unverified ones.
 """
 
 from __future__ import annotations
@@ -12,7 +13,7 @@ from __future__ import annotations
 import csv
 import hashlib
 from collections.abc import Iterator, Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import cached_property
 from importlib import resources
 from pathlib import Path
@@ -20,6 +21,8 @@ from pathlib import Path
 from .errors import DataError
 
 UNVERIFIED = "memory-unverified"
+#: Statuses that count as checked: read in a published source, or verified by the firm.
+VERIFIED_STATUSES = ("sourced", "verified")
 
 BUILTIN_FILES = (
     "sawn_strengths.csv",
@@ -44,6 +47,43 @@ BUILTIN_FILES = (
 
 
 @dataclass(frozen=True)
+class TableSpec:
+    """How the rows of one built-in table are keyed, and which columns hold values."""
+
+    keys: tuple[str, ...]
+    values: tuple[str, ...]
+    unit: str = "-"  # unit of the values, unless the row has a `unit` column
+    firm_may_add: bool = False  # a firm file may add rows (new species and grades)
+
+
+#: Every built-in table a firm file may correct, with the columns that identify a row.
+TABLES = {
+    "sawn_strengths.csv": TableSpec(("species", "grade", "category", "property"), ("value",), "MPa", True),
+    "glulam_strengths.csv": TableSpec(("species", "grade", "property"), ("value",), "MPa", True),
+    "glulam_factors.csv": TableSpec(("name",), ("value",)),
+    "service_factors.csv": TableSpec(("material", "category", "property", "service"), ("value",)),
+    "size_factors_sawn.csv": TableSpec(("factor", "thickness_min", "thickness_max", "larger_dim_max"), ("value",)),
+    "bearing_factors.csv": TableSpec(("bearing_length",), ("value",)),
+    "bearing_size_factors.csv": TableSpec(("width_over_depth",), ("value",)),
+    "resistance_factors.csv": TableSpec(("action",), ("phi",)),
+    "duration_factors.csv": TableSpec(("class",), ("K_D",)),
+    "nbc2020_uls_combinations.csv": TableSpec(("id",), ("D", "L", "S", "W", "E")),
+    "sls_combinations.csv": TableSpec(("check", "load"), ("factor",)),
+    "lateral_restraint_sawn.csv": TableSpec(("restraint",), ("d_over_b_max",)),
+    "bending_effective_length.csv": TableSpec(("case",), ("factor",)),
+    "system_factors.csv": TableSpec(("case", "applies_to"), ("value",)),
+}
+
+
+def key_text(table: str, row: Mapping[str, str]) -> str:
+    """The row's key as a firm file writes it: ``species=S-P-F; grade=No.1/No.2; …``."""
+    spec = TABLES.get(table)
+    if spec is None:
+        return ""
+    return "; ".join(f"{k}={row.get(k, '').strip()}" for k in spec.keys)
+
+
+@dataclass(frozen=True)
 class Datum:
     """One data value and where it came from."""
 
@@ -54,18 +94,55 @@ class Datum:
     status: str
     file: str
     symbol: str = ""  # the O86 symbol the value stands for (f_t, K_Sc, phi …)
+    data: str = ""  # the built-in table the value belongs to (sawn_strengths.csv …)
+    key: str = ""  # the row's key in that table (see key_text)
+    column: str = "value"
+    unit: str = "-"
+    edition: str = ""
+    firm: str = ""  # the firm file that supplied the value, if one did
+    builtin: float | None = None  # the built-in value, when the firm's value differs from it
+    verified_by: str = ""
+    verified_on: str = ""
+    parts: tuple["Datum", ...] = ()  # the tabled values a derived value is computed from
 
     @property
     def verified(self) -> bool:
-        return self.status != UNVERIFIED
+        return self.status in VERIFIED_STATUSES
 
     @property
     def warning(self) -> str:
+        if self.firm:
+            return f"{self.label}: {self.status} in firm file {self.firm} ({self.table})"
         return f"{self.label}: memory, unverified ({self.table}; {self.file})"
 
     @property
     def status_text(self) -> str:
+        if self.firm and self.verified:
+            return f"verified by {self.verified_by} {self.verified_on}".strip()
         return "unverified" if not self.verified else self.status
+
+    @property
+    def correction(self) -> str:
+        """A note when the firm's value differs from the built-in one, else ''."""
+        if self.builtin is None:
+            return ""
+        return (f"{self.label} = {self.value:g} from firm file {self.firm} differs from the built-in "
+                f"value {self.builtin:g}")
+
+    def record(self) -> dict[str, object]:
+        """The value and its provenance, for results.json."""
+        out: dict[str, object] = {"item": self.label, "symbol": self.symbol, "value": self.value, "unit": self.unit,
+                                  "table": self.table, "source": self.source, "status": self.status,
+                                  "file": self.file}
+        if self.firm:
+            out.update(verified_by=self.verified_by, verified_on=self.verified_on)
+        if self.builtin is not None:
+            out["builtin_value"] = self.builtin
+        return out
+
+    def tabled(self) -> tuple["Datum", ...]:
+        """The tabled values behind this one (itself, or the parts of a derived value)."""
+        return tuple(p for part in self.parts for p in part.tabled()) if self.parts else (self,)
 
 
 class Recorded(Mapping[str, float]):
@@ -93,7 +170,10 @@ class Recorded(Mapping[str, float]):
 
 def combined_status(*datums: Datum) -> str:
     """A derived value is only as verified as the least verified of its inputs."""
-    return UNVERIFIED if any(not d.verified for d in datums) else "sourced"
+    for d in datums:
+        if not d.verified:
+            return d.status
+    return "verified" if any(d.status == "verified" for d in datums) else "sourced"
 
 
 @dataclass(frozen=True)
@@ -114,6 +194,12 @@ def _read(path: Path, name: str) -> DataFile:
     return DataFile(name, path, hashlib.sha256(raw).hexdigest(), rows)
 
 
+def builtin_files() -> dict[str, DataFile]:
+    """Every built-in data file, by name."""
+    base = resources.files("timbersheets") / "data"
+    return {name: _read(Path(str(base / name)), name) for name in BUILTIN_FILES}
+
+
 def _table(row: dict[str, str]) -> str:
     """'O86-14 Table 6.3.1A' or 'O86-14 Cl. 5.1.4': where in the standard a row comes from."""
     edition = row.get("edition", "").strip()
@@ -131,11 +217,11 @@ class DataSet:
     """All data tables of one run: built-in files plus an optional firm file."""
 
     def __init__(self, materials: Path | None = None) -> None:
-        base = resources.files("timbersheets") / "data"
-        self.files: dict[str, DataFile] = {}
-        for name in BUILTIN_FILES:
-            self.files[name] = _read(Path(str(base / name)), name)
-        self.firm: DataFile | None = _read(materials, materials.name) if materials else None
+        from .firmdata import merge, read_firm
+
+        self.builtin = builtin_files()
+        self.firm = read_firm(materials, self.builtin) if materials else None
+        self.files: dict[str, DataFile] = merge(self.builtin, self.firm) if self.firm else dict(self.builtin)
 
     # -- provenance -----------------------------------------------------------
     @cached_property
@@ -148,21 +234,53 @@ class DataSet:
             digest.update(f"firm:{self.firm.sha256}\n".encode())
         return "sha256:" + digest.hexdigest()
 
-    def manifest(self) -> list[dict[str, str]]:
+    def manifest(self) -> list[dict[str, object]]:
         """Which data files were used, with their hashes (for results.json)."""
-        items = [{"file": f"timbersheets/data/{f.name}", "sha256": f.sha256} for f in self.files.values()]
+        items: list[dict[str, object]] = [{"file": f"timbersheets/data/{f.name}", "sha256": f.sha256}
+                                          for f in self.builtin.values()]
         if self.firm:
-            items.append({"file": str(self.firm.path), "sha256": self.firm.sha256, "role": "firm materials (wins)"})
+            items.append(self.firm.summary())
         return items
 
     def _datum(self, file: DataFile, row: dict[str, str], label: str, column: str = "value",
                symbol: str = "") -> Datum:
+        from .firmdata import provenance
+
         try:
             value = float(row[column])
         except (KeyError, ValueError):
             raise DataError(file.name, f"{label}: '{row.get(column)}' is not a number") from None
-        return Datum(value, label, _table(row), row.get("source", "").strip(), row.get("status", "").strip(),
-                     file.name, symbol or label.split(" ")[0])
+        spec = TABLES.get(file.name)
+        unit = row.get("unit", "").strip() or (spec.unit if spec else "-")
+        base = Datum(value, label, _table(row), row.get("source", "").strip(), row.get("status", "").strip(),
+                     file.name, symbol or label.split(" ")[0], file.name, key_text(file.name, row), column, unit,
+                     row.get("edition", "").strip())
+        return provenance(base, row, spec)
+
+    def value_datums(self, datum: Datum) -> list[Datum]:
+        """The values a checker ticks for `datum`: itself, the parts of a derived value, or
+        each load factor of a combination row."""
+        out = []
+        for d in datum.tabled():
+            spec = TABLES.get(d.data)
+            if spec is None or d.column in spec.values:
+                out.append(d)
+                continue
+            file = self.files[d.data]
+            row = next(r for r in file.rows if key_text(d.data, r) == d.key)
+            out += [self._datum(file, row, f"{d.label}, factor on {c}", c, c) for c in spec.values]
+        return out
+
+    def all_datums(self) -> list[Datum]:
+        """Every value of every table a firm file can supply, in file order."""
+        out = []
+        for name, spec in TABLES.items():
+            file = self.files[name]
+            for row in file.rows:
+                label = " ".join(row.get(k, "").strip() for k in spec.keys)
+                out += [self._datum(file, row, f"{label} {c}" if len(spec.values) > 1 else label, c, c)
+                        for c in spec.values]
+        return out
 
     def _find(self, file_name: str, label: str, column: str = "value", **key: str) -> Datum:
         memo = self.__dict__.setdefault("_memo", {})
@@ -172,15 +290,10 @@ class DataSet:
         return memo[token]
 
     def _search(self, file_name: str, label: str, column: str = "value", **key: str) -> Datum:
-        candidates = []
-        if self.firm and file_name in ("sawn_strengths.csv", "glulam_strengths.csv"):
-            material = "sawn" if file_name.startswith("sawn") else "glulam"
-            candidates.append((self.firm, {**key, "material": material}))
-        candidates.append((self.files[file_name], key))
-        for file, wanted in candidates:
-            for row in file.rows:
-                if all(row.get(k, "").strip() == v for k, v in wanted.items() if k in row or k != "material"):
-                    return self._datum(file, row, label, column)
+        file = self.files[file_name]
+        for row in file.rows:
+            if all(row.get(k, "").strip() == v for k, v in key.items()):
+                return self._datum(file, row, label, column)
         raise DataError(file_name, f"no value for {label}")
 
     # -- strengths ------------------------------------------------------------
@@ -196,13 +309,20 @@ class DataSet:
         return self._find("glulam_factors.csv", f"glulam {name}", name=name)
 
     def glulam_grades(self) -> dict[str, set[str]]:
+        """Glulam stress grades by species: the built-in ones and any a firm file adds."""
         out: dict[str, set[str]] = {}
         for row in self.files["glulam_strengths.csv"].rows:
             out.setdefault(row["species"], set()).add(row["grade"])
-        for row in self.firm.rows if self.firm else ():
-            if row.get("material") == "glulam":
-                out.setdefault(row["species"], set()).add(row["grade"])
         return out
+
+    def species(self, material: str) -> set[str]:
+        """Species with specified strengths for `material` (sawn or glulam), firm ones included."""
+        return {row["species"] for row in self.files[f"{material}_strengths.csv"].rows}
+
+    @cached_property
+    def firm_sawn_grades(self) -> frozenset[tuple[str, str]]:
+        """(grade, category) pairs a firm file adds to the sawn strengths."""
+        return frozenset((r["grade"], r["category"]) for r in self.files["sawn_strengths.csv"].rows if r.get("_added"))
 
     # -- factors --------------------------------------------------------------
     def service_factor(self, material: str, category: str, prop: str, service: str) -> Datum:
@@ -287,7 +407,7 @@ class DataSet:
                 value = max(pieces) if len(pieces) > 1 else width
                 return Datum(value, f"b_lam widest board of {width:g} mm glulam (lamstock {row['lamstock']})",
                              row.get("edition", ""), row.get("source", "").strip(), row.get("status", "").strip(),
-                             file.name, "b_lam")
+                             file.name, "b_lam", file.name, f"width={row['width']}", "lamstock", "mm")
         raise DataError(file.name, f"no standard glulam width {width:g} mm")
 
     # -- combinations and sizes ----------------------------------------------
@@ -311,19 +431,20 @@ class DataSet:
     # -- recording -------------------------------------------------------------
     @staticmethod
     def warnings_for(used: list[Datum]) -> list[str]:
-        """One line per unverified value used; the load combinations together on one line."""
+        """One line per unverified value used; the load combinations together on one line
+        (one line per provenance, when a firm file supplies some of them)."""
         seen: dict[str, None] = {}
-        combos: dict[str, Datum] = {}
-        for d in used:
+        combos: dict[tuple[str, str, str, str], dict[str, Datum]] = {}
+        for d in (t for u in used for t in u.tabled()):  # a derived value: the tabled values behind it
             if d.verified:
                 continue
             if d.label.startswith("NBC combination "):
-                combos.setdefault(d.label.split(" ", 2)[2], d)
+                combos.setdefault((d.firm, d.status, d.table, d.file), {}).setdefault(d.label.split(" ", 2)[2], d)
             else:
                 seen[d.warning] = None
-        if combos:
-            first = next(iter(combos.values()))
-            seen[f"NBC combinations {', '.join(combos)}: memory, unverified ({first.table}; {first.file})"] = None
+        for group in combos.values():
+            first = next(iter(group.values()))
+            seen[replace(first, label=f"NBC combinations {', '.join(group)}").warning] = None
         return list(seen)
 
 

@@ -257,6 +257,22 @@ class MemberDesign:
         return DataSet.warnings_for(self.data_used)
 
     @property
+    def data_values(self) -> list[Datum]:
+        """Every tabled value the member used, once: the parts of derived values, each combination factor."""
+        if self.context is None or self.context.data is None:
+            return []
+        seen: dict[tuple[str, str, str], Datum] = {}
+        for used in self.data_used:
+            for d in self.context.data.value_datums(used):
+                seen.setdefault((d.data, d.key, d.column), d)
+        return list(seen.values())
+
+    @property
+    def data_corrections(self) -> list[str]:
+        """Notes for the values a firm file corrected (its value differs from the built-in one)."""
+        return list(dict.fromkeys(d.correction for d in self.data_values if d.correction))
+
+    @property
     def size(self) -> str:
         if self.context:
             return self.context.section.label

@@ -81,6 +81,10 @@ class ScheduleError(TimbersheetsError):
         return text
 
 
+class DataRowError(ScheduleError):
+    """One bad cell (or row) of a firm data file; `row` counts the header as row 1."""
+
+
 class DataError(TimbersheetsError):
     """A data file (strengths, factors, sizes) is missing, malformed or lacks a value."""
 

@@ -12,6 +12,7 @@ from math import log10
 
 from .calc import calc
 from .data import DataSet, Datum
+from .errors import DataError
 
 LOAD_TYPES = ("D", "L", "S", "W", "E")
 EFFECTS = ("P", "M", "V", "w")  # the schedule's columns P_*, M_*, V_*, w_*
@@ -34,8 +35,8 @@ class Combination:
     factors: dict[str, float]
     principal: str
     note: str
-    datum: Datum
-
+    datum: Datum | None
+    refused: DataError | None = None  # a firm file's bad row for this combination
     @property
     def label(self) -> str:
         """E.g. ``1.25D + 1.5S + 1.0L``: dead load, the principal load, then companions."""
@@ -71,8 +72,12 @@ def combinations(data: DataSet) -> list[Combination]:
     file = data.files["nbc2020_uls_combinations.csv"]
     for row in data.combination_rows:
         factors = {t: float(row[t] or 0) for t in LOAD_TYPES}
-        datum = data._datum(file, row, f"NBC combination {row['id']}", "case")
-        out.append(Combination(row["id"], int(row["case"]), factors, row["principal"], row.get("note", ""), datum))
+        try:
+            datum, refused = data._datum(file, row, f"NBC combination {row['id']}", "case"), None
+        except DataError as exc:  # raised only if a member needs this combination
+            datum, refused = None, exc
+        out.append(Combination(row["id"], int(row["case"]), factors, row["principal"], row.get("note", ""), datum,
+                               refused))
     return out
 
 
@@ -233,6 +238,8 @@ def apply_combinations(effects: Effects, data: DataSet, used: list[Datum],
         if key in seen:
             continue
         seen.add(key)
+        if comb.refused is not None:
+            raise comb.refused
         used.append(comb.datum)
         cases.append(LoadCase(comb, factored, kd, basis, values, effect))
     return cases

@@ -50,8 +50,14 @@ class Strengths:
         return f"{self.species} {self.grade} {names[self.category]}"
 
 
-def sawn_table_grade(grade: str, category: str) -> str | None:
-    """The tabled grade for a schedule grade, or None if the category has no such grade."""
+def sawn_table_grade(grade: str, category: str,
+                     firm_grades: frozenset[tuple[str, str]] = frozenset()) -> str | None:
+    """The tabled grade for a schedule grade, or None if the category has no such grade.
+
+    `firm_grades` holds the (grade, category) pairs a firm data file adds; such a
+    grade is its own tabled grade."""
+    if (grade, category) in firm_grades:
+        return grade
     if category == "dimension":
         return DIMENSION_GRADE_GROUP.get(grade)
     return grade if grade in TIMBER_GRADES else None
@@ -68,10 +74,10 @@ def strengths(data: DataSet, material: str, species: str, grade: str, section: S
         e = out.values["E"]
         out.values["E05"] = Datum(e05, f"E05 = {ratio.value:g} E of {species} {grade} glulam",
                                   f"{e.table}; {ratio.table}", f"{e.source}; {ratio.source}",
-                                  combined_status(e, ratio), ratio.file, "E05")
+                                  combined_status(e, ratio), ratio.file, "E05", unit="MPa", parts=(e, ratio))
         return out
     category = sawn_category(section)
-    table_grade = sawn_table_grade(grade, category)
+    table_grade = sawn_table_grade(grade, category, data.firm_sawn_grades)
     if table_grade is None:
         raise ValueError(f"grade {grade} is not tabled for {category}")
     out = Strengths(material, species, grade, table_grade, category)

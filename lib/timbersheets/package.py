@@ -158,6 +158,8 @@ def package_tex(project: Project, doc: dict[str, Any], data: DataSet, outdir: Pa
         "codes": {k: escape(v) for k, v in project.codes.items()},
         "counts": counts, "members": rows, "notes": notes,
         "unverified": len({w for m in members for w in m["data_warnings"]}),
+        "firm": escape(data.firm.description) if data.firm else "",
+        "corrections": len({c for m in members for c in m.get("data_corrections", [])}),
         "unchecked": not all_ok, "lines": cover_lines(project, counts, review_counts),
         "previous": escape(doc.get("previous_revision") or ""), "changes": change_rows(changes),
         "chart": chart, "caution": escape(SHORT_CAUTION), "caution_long": escape(CAUTION),

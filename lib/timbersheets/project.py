@@ -110,7 +110,7 @@ nbc = "2020"
 o86 = "2019"
 
 # [data]
-# materials = "verified-strengths.csv"   # a firm's own verified strengths; wins over the built-in table
+# materials = "firm-data.csv"   # the firm's data file (timbersheets data DIR --firm-file); wins over the built-in tables
 '''
 
 SCHEDULE_TEMPLATE = (

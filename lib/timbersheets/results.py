@@ -79,6 +79,8 @@ def member_json(d: MemberDesign, extra: dict[str, Any] | None = None) -> dict[st
                       if gov and not d.errors else None),
         "checks": [check_json(c) for c in d.checks] if not d.errors else [],
         "data_warnings": d.data_warnings,
+        "data_corrections": d.data_corrections,
+        "data": [v.record() for v in d.data_values],
         "warnings": d.warnings,
         "changed_since": None,
         "review": {"status": "not-checked"},

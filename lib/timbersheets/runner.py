@@ -59,10 +59,11 @@ class RunReport:
     package: Path | None = None
     package_error: str | None = None
     carried: Carried = field(default_factory=Carried)
+    data_errors: list[str] = field(default_factory=list)  # bad rows of the firm data file
 
     @property
     def exit_code(self) -> int:
-        ok = all(d.status == "pass" for d in self.designs) and not self.package_error
+        ok = all(d.status == "pass" for d in self.designs) and not self.package_error and not self.data_errors
         return ExitCode.OK if ok else ExitCode.MEMBERS
 
     def counts(self) -> dict[str, int]:
@@ -257,9 +258,9 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     opts = opts or RunOptions(**kw)
     started = time.monotonic()
     project = load_project(folder)
-    schedule = load_schedule(project.schedule_path)
-    check_only(project, schedule.entries, opts.only)
     data = DataSet(project.materials)
+    schedule = load_schedule(project.schedule_path, data)
+    check_only(project, schedule.entries, opts.only)
     designs = design_all(schedule.entries, data)
     jobdir = job_dir(project, opts.out)
     prev_label = previous_revision(jobdir, project.revision)
@@ -269,7 +270,8 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     stage, final = stage_dir(project, opts)
     try:
         warnings = project.warnings + schedule.warnings
-        report = RunReport(project, final, designs, warnings)
+        report = RunReport(project, final, designs, warnings,
+                           data_errors=[str(e) for e in data.firm.errors] if data.firm else [])
         every = sheet_tasks(project, designs, data, stage, opts, extra)
         tasks = every if not opts.only else [t for t in every if t.mark in set(opts.only)]
         if tasks and opts.sheets:
@@ -324,7 +326,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                              f"({time.monotonic() - started:.1f} s: "
                              + ", ".join(f"{k} {v:.1f} s" for k, v in phases.items()) + ")")
         report.log += carried.log_lines()
-        report.log += warnings
+        report.log += warnings + report.data_errors
         for d in designs:
             report.log += [f"{d.mark}: {e}" for e in d.errors]
         report.log += [f"{d.mark}: traceback of the internal error\n{d.trace.rstrip()}" for d in designs if d.trace]

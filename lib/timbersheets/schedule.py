@@ -348,8 +348,14 @@ def _read_xlsx(path: Path) -> tuple[list[str], list[tuple[int, dict[str, str]]],
 
 
 # --------------------------------------------------------------------------- validating
-def load_schedule(path: Path) -> Schedule:
-    """Read and validate every row of the schedule at `path`."""
+def load_schedule(path: Path, data=None) -> Schedule:
+    """Read and validate every row of the schedule at `path`.
+
+    `data` is the job's DataSet (the built-in data unless given): species and
+    grades a firm data file adds are valid."""
+    from .data import default_data
+
+    data = data or default_data()
     header, rows, notes = read_rows(path)
     name = path.name
     warnings = list(notes)
@@ -367,7 +373,7 @@ def load_schedule(path: Path) -> Schedule:
     first_row: dict[str, int] = {}
     for number, cells in rows:
         mark = cells.get("mark", "")
-        errors, values, given = _validate_row(name, number, cells)
+        errors, values, given = _validate_row(name, number, cells, data)
         if mark and MARK.match(mark):
             if mark in first_row:
                 errors.insert(0, ScheduleError(name, number, "mark", mark,
@@ -384,7 +390,7 @@ def load_schedule(path: Path) -> Schedule:
     return Schedule(path, members, rejected, warnings)
 
 
-def _validate_row(file: str, row: int, cells: dict[str, str]) -> tuple[list[ScheduleError], dict[str, Any], set[str]]:
+def _validate_row(file: str, row: int, cells: dict[str, str], data) -> tuple[list[ScheduleError], dict[str, Any], set[str]]:
     errors: list[ScheduleError] = []
     values: dict[str, Any] = {}
     given: set[str] = set()
@@ -404,7 +410,7 @@ def _validate_row(file: str, row: int, cells: dict[str, str]) -> tuple[list[Sche
         except ValueError as exc:
             errors.append(ScheduleError(file, row, name, text, str(exc), _allowed(col)))
     if not errors:
-        errors += _cross_checks(file, row, values, given)
+        errors += _cross_checks(file, row, values, given, data)
     return errors, values, given
 
 
@@ -482,11 +488,11 @@ def _check_bound(col: Column, value: float) -> None:
         raise ValueError("must not be negative" if col.minimum == 0 else f"must be at least {col.minimum:g}")
 
 
-def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> list[ScheduleError]:
+def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str], data) -> list[ScheduleError]:
     """Rules that involve more than one cell: species/grade/size against the material."""
     errs: list[ScheduleError] = []
     material = v["material"]
-    table = GLULAM_SPECIES if material == "glulam" else SAWN_SPECIES
+    table = {**(GLULAM_SPECIES if material == "glulam" else SAWN_SPECIES), **{s: s for s in data.species(material)}}
     species = canonical(v["species"], table)
     if species is None:
         names = sorted(set(table.values()))
@@ -495,9 +501,6 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> li
                                   f"{', '.join(names)} (or {', '.join(shorts)})"))
     else:
         v["species"] = species
-    from .data import default_data
-
-    data = default_data()
     if material == "glulam":
         grades = sorted(data.glulam_grades().get(species or "", ()))
         grade = canonical_grade(v["grade"], tuple(grades))
@@ -512,9 +515,10 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> li
         if v["plies"] != 1:
             errs.append(ScheduleError(file, row, "plies", str(v["plies"]), "applies to built-up sawn members only", "1 for glulam"))
     else:
-        grade = canonical_grade(v["grade"], SAWN_GRADES)
+        grades = SAWN_GRADES + tuple(sorted({g for g, _ in data.firm_sawn_grades} - set(SAWN_GRADES)))
+        grade = canonical_grade(v["grade"], grades)
         if grade is None:
-            errs.append(ScheduleError(file, row, "grade", v["grade"], "is not a sawn lumber grade", ", ".join(SAWN_GRADES)))
+            errs.append(ScheduleError(file, row, "grade", v["grade"], "is not a sawn lumber grade", ", ".join(grades)))
         else:
             v["grade"] = grade
     if v["size"] != "auto":
@@ -653,7 +657,7 @@ def _size_checks(file: str, row: int, v: dict[str, Any], data) -> list[ScheduleE
                               f"timbers {'/'.join(f'{t:g}' for t in timbers)} mm")]
     section = Section(b, d, v["plies"])
     category = sawn_category(section)
-    if sawn_table_grade(v["grade"], category) is None:
+    if sawn_table_grade(v["grade"], category, data.firm_sawn_grades) is None:
         return [ScheduleError(file, row, "grade", v["grade"], f"is not a grade of {category.replace('-', ' and ')} sizes",
                               "SS, No.1, No.2 for timbers; SS, No.1, No.2, No.1/No.2, No.3, Stud for dimension lumber")]
     return []

@@ -304,8 +304,10 @@ class Sheet:
             seen.add(datum.symbol)
             unit = "MPa" if datum.symbol.startswith(("f_", "E")) else symbol_unit(datum.symbol)
             value = format_number(datum.value, unit) + (f"\\ {unit_latex(unit)}" if unit else "")
+            where = f"{datum.table}; firm file {datum.firm}" if datum.firm else datum.table
+            status = datum.status_text + (f"; firm value, built-in {datum.builtin:g}" if datum.builtin is not None else "")
             rows.append([Cell.math(symbol_latex(datum.symbol)), Cell(f"${value}$", value),
-                         meaning(datum.symbol) or datum.label, f"{datum.table}", datum.status_text])
+                         meaning(datum.symbol) or datum.label, where, status])
         m = self.m
         given = (("K_H", m.K_H), ("K_T", m.K_T)) + ((("K_e", m.Ke),) if self.kind.shows("length") else ())
         for name, value in given:
@@ -410,6 +412,8 @@ class Sheet:
             listing = ("\\par\\smallskip Data values used here that are not yet verified against the standard:\n"
                        f"\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n")
             md = "\n\nUnverified data values used:\n" + "".join(f"- {text}\n" for _, text in entries)
+        source, extra, extra_md = self._data_note()
+        listing, md = extra + listing, extra_md + md
         codes = (f" Designed to CSA O86:{escape(self.codes.get('o86', '2019'))[-2:]} with loads combined per "
                  f"NBC {escape(self.codes.get('nbc', '2020'))} Part 4.")
         clauses = (" The methods, clause numbers and tables used here follow CSA O86-14 (each data value names "
@@ -428,8 +432,26 @@ class Sheet:
             items = "".join(f"\\item {escape(w)}\n" for w in self.design.warnings)
             notes += f"\\par\\smallskip Notes on this member:\n\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n"
             md += "\n\nNotes:\n" + "".join(f"- {md_escape(w)}\n" for w in self.design.warnings)
-        return Block(f"\\begin{{cautionbox}}\n{escape(CAUTION)}{codes}{escape(clauses)}\n{notes}{listing}"
-                     "\\end{cautionbox}\n", f"**Caution.** {md_escape(CAUTION)}{md}\n")
+        return Block(f"\\begin{{cautionbox}}\n{escape(CAUTION)}{codes}{escape(clauses)}{escape(source)}\n{notes}"
+                     f"{listing}\\end{{cautionbox}}\n",
+                     f"**Caution.** {md_escape(CAUTION)}{md_escape(source)}{md}\n")
+
+    def _data_note(self) -> tuple[str, str, str]:
+        """Which data the sheet used (the firm file: name, hash, checkers) and the firm's corrections."""
+        firm, values = self.data.firm, self.design.data_values
+        supplied = sum(1 for v in values if v.firm)
+        source = (f" Data: the built-in tables and {firm.description}; it supplies {supplied} of the "
+                  f"{len(values)} values used here." if firm else " Data: the built-in tables; no firm data file.")
+        if not self.design.data_warnings:
+            source += " No data value used here is unverified."
+        corrections = self.design.data_corrections
+        if not corrections:
+            return source, "", ""
+        items = "".join(f"\\item {escape(c)}\n" for c in corrections)
+        latex = ("\\par\\smallskip Firm values that differ from the built-in data (the firm value is used):\n"
+                 f"\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n")
+        md = "\n\nFirm values that differ from the built-in data:\n" + "".join(f"- {md_escape(c)}\n" for c in corrections)
+        return source, latex, md
 
     def record(self) -> dict[str, Any]:
         """The member's results.json entry, as a display bundle the runner cross-checks."""

@@ -82,7 +82,7 @@ def catalogue(member: Member, data: DataSet) -> list[Section]:
                 plies = (fixed_plies,) if fixed_plies in plies else ()
             for n in plies:
                 section = Section(float(b), float(d), n)
-                if sawn_table_grade(member.grade, sawn_category(section)) is None:
+                if sawn_table_grade(member.grade, sawn_category(section), data.firm_sawn_grades) is None:
                     continue
                 if n > 1 and not kind.plies:
                     continue  # built-up columns are not designed by this version

@@ -76,8 +76,8 @@ def what_if(folder: Path, scales: dict[str, float], resize: bool = False) -> lis
     Auto members keep the sections of the scheduled loads; with `resize` they are sized again.
     """
     project = load_project(folder)
-    schedule = load_schedule(project.schedule_path)
     data = DataSet(project.materials)
+    schedule = load_schedule(project.schedule_path, data)
     before = design_all(schedule.entries, data)
     after_entries = []
     for entry, design in zip(schedule.entries, before):

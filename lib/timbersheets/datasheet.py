@@ -1,0 +1,78 @@
+"""The data verification sheet: the values a job uses, as a page a firm can tick and file.
+
+Typeset from ``templates/latex/data/verification.tex.j2`` (letter landscape,
+title block and cautions on every page), with empty columns for the checker's
+tick or corrected value, name, date and the edition checked against.
+"""
+
+from __future__ import annotations
+
+import subprocess
+import tempfile
+from pathlib import Path
+
+from . import __version__
+from .constants import CAUTION, SHORT_CAUTION
+from .data import DataSet
+from .datacheck import Item, counts, groups
+from .fileio import write_atomic
+from .pipeline import XELATEX, ConversionError, templates_dir
+from .project import Project
+from .tex import escape
+
+MEMBERS_SHOWN = 6
+
+
+def _environment():
+    import jinja2
+
+    return jinja2.Environment(
+        loader=jinja2.FileSystemLoader(str(templates_dir() / "latex" / "data")),
+        block_start_string="((*", block_end_string="*))", variable_start_string="((",
+        variable_end_string="))", comment_start_string="((=", comment_end_string="=))",
+        autoescape=False, undefined=jinja2.StrictUndefined, keep_trailing_newline=True)
+
+
+def _members(marks: list[str]) -> str:
+    if len(marks) <= MEMBERS_SHOWN:
+        return ", ".join(marks)
+    return f"{', '.join(marks[:MEMBERS_SHOWN])} and {len(marks) - MEMBERS_SHOWN} more"
+
+
+def _row(item: Item) -> dict[str, str]:
+    d, keys = item.datum, item.keys
+    what = (" ".join(keys[k] for k in ("species", "grade", "category") if keys.get(k)) + f", {item.what}"
+            if keys.get("species") else item.what)
+    status = d.status_text + (f"; built-in {d.builtin:g}" if d.builtin is not None else "")
+    return {"what": escape(what), "value": escape(f"{d.value:g}"), "unit": escape(d.unit), "status": escape(status),
+            "source": escape(d.source), "members": escape(_members(item.members))}
+
+
+def sheet_tex(project: Project, data: DataSet, items: list[Item]) -> str:
+    firm = data.firm
+    data_line = firm.description if firm else "built-in data tables; no firm data file"
+    context = {
+        "project": {k: escape(v) for k, v in project.fields.items()},
+        "description": escape(f"Data values used by the members of {project.name}, grouped by table"),
+        "data_line": escape(data_line), "counts": counts(items),
+        "groups": [{"title": escape(title), "rows": [_row(i) for i in members]} for title, members in groups(items)],
+        "caution": escape(SHORT_CAUTION), "caution_long": escape(CAUTION),
+        "tool_version": f"timbersheets {__version__}", "data_hash": data.hash.split(":")[1][:12],
+    }
+    return _environment().get_template("verification.tex.j2").render(**context)
+
+
+def write_sheet(project: Project, data: DataSet, items: list[Item], folder: Path) -> Path:
+    """Typeset the verification sheet into `folder` (written atomically); returns its path."""
+    target = folder / f"data-verification-rev-{project.revision}.pdf"
+    with tempfile.TemporaryDirectory(prefix="ts-data-") as tmp:
+        work = Path(tmp)
+        (work / "verification.tex").write_text(sheet_tex(project, data, items), encoding="utf-8")
+        for _ in range(2):  # the second pass knows the last page ("sheet n of N")
+            done = subprocess.run([*XELATEX, "verification.tex"], cwd=work, capture_output=True, text=True,
+                                  errors="replace")
+            if done.returncode != 0:
+                tail = "\n".join(ln for ln in done.stdout.splitlines() if ln.startswith("!"))[-1500:]
+                raise ConversionError("data verification sheet", "xelatex could not typeset it", tail)
+        write_atomic(target, (work / "verification.pdf").read_bytes())
+    return target
