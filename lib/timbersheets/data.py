@@ -72,6 +72,7 @@ TABLES = {
     "lateral_restraint_sawn.csv": TableSpec(("restraint",), ("d_over_b_max",)),
     "bending_effective_length.csv": TableSpec(("case",), ("factor",)),
     "system_factors.csv": TableSpec(("case", "applies_to"), ("value",)),
+    "densities.csv": TableSpec(("material", "species", "service"), ("density",)),
 }
 
 
