@@ -21,9 +21,9 @@ from typing import Any
 from . import beamloads
 from .errors import JobError, ParameterError, ScheduleError
 from .loads import KD_OVERRIDE_RANGE
-from .materials import (GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, parse_support,
-                        sawn_table_grade)
+from .materials import GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, sawn_table_grade
 from .membertypes import member_type, member_types
+from .rowrules import bearing_errors, lateral_support_errors
 from .sections import Section, parse_size, sawn_category
 from .units import UnitParseError, convert, example, parse_quantity
 
@@ -538,8 +538,8 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str], data)
             errs.append(ScheduleError(file, row, name, f"{v[name] / 1000:g} m", f"is longer than the member (length {v['length'] / 1000:g} m)",
                                       f"at most the length, {v['length'] / 1000:g} m"))
     errs += _type_rules(file, row, v, given)
-    errs += _lateral_support_checks(file, row, v, given)
-    errs += _bearing_checks(file, row, v, data)
+    errs += lateral_support_errors(file, row, v)
+    errs += bearing_errors(file, row, v, data)
     low, high = KD_OVERRIDE_RANGE
     if v["K_D"] is not None and not low <= v["K_D"] <= high:
         errs.append(ScheduleError(file, row, "K_D", f"{v['K_D']:g}", "is outside the load-duration factors of "
@@ -551,63 +551,6 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str], data)
     return errs
 
 
-def _bearing_checks(file: str, row: int, v: dict[str, Any], data) -> list[ScheduleError]:
-    """bears_on for columns and posts (named timber, steel or concrete); bearing_width for beams."""
-    errs = []
-    if v["bears_on"]:
-        allowed = "sawn <species> <grade>, glulam <species> <grade>, steel or concrete, e.g. 'sawn S-P-F No.1'"
-        if member_type(v["type"]).axial != "compression":
-            return [ScheduleError(file, row, "bears_on", v["bears_on"], "applies to columns and posts (compression, "
-                                  "beam-column)", "blank for this type; give bearing for a beam's supports")]
-        try:
-            support = parse_support(v["bears_on"])
-        except ValueError as exc:
-            return [ScheduleError(file, row, "bears_on", v["bears_on"], str(exc), allowed)]
-        if isinstance(support, tuple):
-            material, species, grade = support
-            grades = (SAWN_GRADES if material == "sawn" else tuple(sorted(data.glulam_grades().get(species, ()))))
-            found = canonical_grade(grade, grades)
-            if found is None:
-                return [ScheduleError(file, row, "bears_on", v["bears_on"], f"names a grade that is not a {material} "
-                                      f"grade of {species}", ", ".join(grades))]
-            v["bears_on"] = f"{material} {species} {found}"
-        else:
-            v["bears_on"] = support
-    if v["bearing_width"] is not None:
-        if member_type(v["type"]).routine != "bending" or v["bearing"] is None:
-            errs.append(ScheduleError(file, row, "bearing_width", f"{v['bearing_width']:g} mm", "applies to a "
-                                      "beam's bearings and needs their length in 'bearing'",
-                                      "blank, or give bearing (the length) on a bending member"))
-        elif v["size"] != "auto" and v["bearing_width"] > v["size"][0]:
-            errs.append(ScheduleError(file, row, "bearing_width", f"{v['bearing_width']:g} mm", f"is wider than the "
-                                      f"member ({v['size'][0]:g} mm); the bearing area cannot exceed it",
-                                      f"at most {v['size'][0]:g} mm, or blank for the member width"))
-    return errs
-
-
-def _lateral_support_checks(file: str, row: int, v: dict[str, Any], given: set[str]) -> list[ScheduleError]:
-    """Lu and restraint must make one statement about how each edge is held (O86 6.5.4.2, 7.5.6.4)."""
-    if not member_type(v["type"]).bends or v["Lu"] is None:
-        return []  # a blank Lu on a type that requires it is reported by _type_rules
-    errs = []
-    restraint, lu, lu_bottom = v["restraint"], v["Lu"], v["Lu_bottom"]
-    if restraint == "both-edges" and (lu > 0 or (lu_bottom or 0) > 0):
-        name = "Lu" if lu > 0 else "Lu_bottom"
-        errs.append(ScheduleError(file, row, name, f"{v[name] / 1000:g} m", "says an edge is unsupported over "
-                                  "that length, but restraint = both-edges says both edges are held in line",
-                                  "Lu = 0 and Lu_bottom = 0 (or blank) with both-edges; or another restraint"))
-    elif restraint == "both-edges":
-        v["Lu_bottom"] = 0.0  # the row states that the other edge is held too
-    elif restraint == "blocking" and lu > 0:
-        errs.append(ScheduleError(file, row, "restraint", restraint, f"describes decking on the compression edge "
-                                  f"plus bridging or blocking, but Lu = {lu / 1000:g} m says that edge is unsupported "
-                                  "over that length", "Lu = 0 with blocking; or purlins, or blank"))
-    elif restraint == "purlins" and not 0 < lu < v["length"]:
-        errs.append(ScheduleError(file, row, "restraint", restraint, f"describes the compression edge held at "
-                                  f"purlins or tie rods, but Lu = {lu / 1000:g} m says "
-                                  f"{'it is held continuously' if lu == 0 else 'nothing braces it between the supports'}",
-                                  "with purlins, Lu = the purlin spacing (more than 0, less than the length)"))
-    return errs
 #: Why a column a type requires matters, and what to write in it.
 REQUIRED_WHY = {"Lu": " to say how its compression edge is held (lateral support is never assumed)"}
 REQUIRED_HINT = {"Lu": "0 when decking, sheathing or joists fixed to it hold the compression edge continuously; "
