@@ -58,8 +58,10 @@ def write_job(folder: Path, rows: list[dict[str, str]], revision: str = "A", ext
     return folder
 
 
+# The hand calculations and published examples of the tests take the dead load as given (it includes the
+# member's own weight), so the base row says self_weight = no; the own-weight tests set it to yes.
 BASE = {"type": "compression", "material": "sawn", "species": "S-P-F", "grade": "No.1/No.2",
-        "size": "38x140", "length": "3.0", "Ly": "0", "P_D": "5"}
+        "size": "38x140", "length": "3.0", "Ly": "0", "P_D": "5", "self_weight": "no"}
 
 
 

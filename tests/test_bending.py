@@ -22,7 +22,7 @@ from timbersheets.schedule import load_schedule
 
 SETTINGS = settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
 
-BEAM = {"type": "bending", "Ly": "", "P_D": ""}  # clears the axial defaults of conftest.BASE
+BEAM = {"type": "bending", "Ly": "", "P_D": "", "Lu": "0"}  # clears the axial defaults of conftest.BASE; top edge held
 S1_ROW = dict(BEAM, species="S-P-F", grade="No.1/No.2", size="38x286", plies="4", length="2.718", w_D="4.5",
               w_L="12.5", K_H="1.1", bearing="102", defl_total="180")
 SP20 = dict(BEAM, material="glulam", species="Spruce-Pine", grade="20f-E", size="130x456", length="6.0",

@@ -16,7 +16,7 @@ from timbersheets.runner import RunOptions, run_job
 pytestmark = pytest.mark.pipeline
 
 ROW = {"mark": "RB-9", "type": "bending", "material": "glulam", "species": "Spruce-Pine", "grade": "20f-E",
-       "size": "130x456", "length": "6.0", "w_D": "3.0", "w_S": "7.0", "bearing": "100",
+       "size": "130x456", "length": "6.0", "Lu": "0", "w_D": "3.0", "w_S": "7.0", "bearing": "100",
        "note": "Test roof beam, braced by decking"}
 
 

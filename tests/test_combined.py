@@ -17,10 +17,10 @@ from timbersheets.checks.combined import beam_column, euler_load
 from timbersheets.design import design_member
 from timbersheets.membertypes import member_types
 from timbersheets.schedule import load_schedule
-from timbersheets.sizing import catalogue, size
+from timbersheets.sizing import catalogue
 
 STUD = dict(type="beam-column", material="sawn", species="S-P-F", grade="No.1/No.2", size="38x140", K_H="1.1",
-            length="3.0", Ly="0", P_D="2.2", P_L="1.8", P_S="3.9", w_W="0.47")
+            length="3.0", Ly="0", Lu="3.0", P_D="2.2", P_L="1.8", P_S="3.9", w_W="0.47")
 
 
 def check(d, name, combination):
@@ -61,7 +61,7 @@ def test_glulam_column_with_eccentric_load_hand_calculation(tmp_path, data):
     #   P_E = π²·(0.87·12 400)·(175·266³/12)/3600² = 2255 kN;  A_m = 1/(1 − 218/2255) = 1.107
     #   I = (218/824.4)² + (16.35/26.0)·1.107 = 0.0699 + 0.696 = 0.766
     d = design_row(tmp_path, data, type="beam-column", material="glulam", species="D.Fir-L", grade="16c-E",
-                   size="175x266", length="3.6", Ly="1.8", P_D="64", P_S="92", M_D="4.8", M_S="6.9")
+                   size="175x266", length="3.6", Ly="1.8", Lu="3.6", P_D="64", P_S="92", M_D="4.8", M_S="6.9")
     c = check(d, "interaction", "1.25D + 1.5S")
     assert c.factors["P_r"] == pytest.approx(824.4, rel=0.002)
     assert c.factors["M_r"] == pytest.approx(26.0, rel=0.002)
@@ -79,23 +79,27 @@ def test_axial_load_reaching_the_euler_load_is_a_clear_failure(tmp_path, data):
 
 def test_tension_with_bending_both_faces_hand_calculation(tmp_path, data):
     # Hand calculation. 130x190 D.Fir-L 18t-E glulam chord (notes §2.3, memory: f_tn 23.0, f_tg 17.9,
-    # f_b 24.6 MPa), dry, A_n = 0.9 A_g, L = 4.8 m, top edge braced. Under 1.25D + 1.5S the moment
-    # comes from dead load alone, so K_D = 0.65 (long term, O86 Table 5.1; the lowest K_D of the effects):
+    # f_b 24.6 MPa), dry, A_n = 0.9 A_g, L = 4.8 m, top edge braced. Under 1.25D + 1.5S the axial force
+    # carries snow with X_lt = 31 < X_st = 46, so K_D = 1.0 (O86 5.3.2.3 does not reduce it); the moment
+    # from dead load alone does not set K_D (one K_D per combination; it is checked at 0.65 under 1.4D):
     #   T_f = 1.25·31 + 1.5·46 = 107.75 kN;  M_f = 1.25·0.65·4.8²/8 = 2.34 kN·m
-    #   T_r = min(0.9·23.0·0.65·0.9·24 700, 0.9·17.9·0.65·24 700) = min(299.1, 258.6) = 258.6 kN
-    #   F_b = 24.6·0.65 = 15.99 MPa; S = 130·190²/6 = 782 167 mm³; K_Zbg = (130/130)^0.1 (610/190)^0.1
-    #   (9100/4800)^0.1 = 1.198 > K_L = 1.0 (L_u = 0), so M_r = 0.9·15.99·782 167·1.0 = 11.26 kN·m
-    #   tension face: I_t = 107.75/258.6 + 2.34/11.26 = 0.4167 + 0.2079 = 0.625
-    #   compression face: (M_f − T_f·190/6)/M_r = (2.34 − 3.41)/11.26 < 0 (no net compression)
+    #   T_r = min(0.9·23.0·1.0·0.9·24 700, 0.9·17.9·1.0·24 700) = min(460.2, 397.9) = 397.9 kN
+    #   F_b = 24.6·1.0 = 24.6 MPa; S = 130·190²/6 = 782 167 mm³; K_Zbg = (130/130)^0.1 (610/190)^0.1
+    #   (9100/4800)^0.1 = 1.198 > K_L = 1.0 (L_u = 0), so M_r = 0.9·24.6·782 167·1.0 = 17.32 kN·m
+    #   tension face: I_t = 107.75/397.9 + 2.34/17.32 = 0.2708 + 0.1351 = 0.406
+    #   compression face: (M_f − T_f·190/6)/M_r = (2.34 − 3.41)/17.32 < 0 (no net compression)
     d = design_row(tmp_path, data, type="tension-bending", material="glulam", species="D.Fir-L", grade="18t-E",
                    size="130x190", length="4.8", Lu="0", net_area="0.9", P_D="31", P_S="46", w_D="0.65")
     c = check(d, "interaction", "1.25D + 1.5S")
     bending = check(d, "bending", "1.25D + 1.5S")
-    assert c.K_D == pytest.approx(0.65)
-    assert c.factors["T_r"] == pytest.approx(258.6, rel=0.002)
+    assert c.K_D == pytest.approx(1.0) and bending.K_D == pytest.approx(1.0)
+    assert c.factors["T_r"] == pytest.approx(397.9, rel=0.002)
     assert c.factors["M_f"] == pytest.approx(2.34, abs=0.01)
-    assert bending.resistance == pytest.approx(11.26, rel=0.002)
-    assert c.factors["I_t"] == pytest.approx(0.625, abs=0.001)
+    assert bending.resistance == pytest.approx(17.32, rel=0.002)
+    assert c.factors["I_t"] == pytest.approx(0.406, abs=0.001)
+    # 1.4D: T_f = 43.4 kN, M_f = 1.4·0.65·4.8²/8 = 2.62 kN·m, all long-term: K_D = 0.65 on every resistance
+    dead = [x for x in d.checks if x.combination == "1.4D"]
+    assert dead and {x.K_D for x in dead} == {0.65}
     assert c.factors["I_cs"] < 0 and c.demand == pytest.approx(c.factors["I_t"])
 
 

@@ -18,7 +18,7 @@ import pytest
 from conftest import DEMO, member_row, write_job
 from timbersheets.cli import main
 from timbersheets.data import BUILTIN_FILES, TABLES, DataSet
-from timbersheets.datacheck import all_items, compare, firm_rows, job_designs, used_items, write_firm_file
+from timbersheets.datacheck import all_items, compare, firm_rows, job_designs, used_items
 from timbersheets.errors import JobError
 from timbersheets.firmdata import HEADER
 from timbersheets.project import load_project

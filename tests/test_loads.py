@@ -13,7 +13,7 @@ from timbersheets.loads import Effects, apply_combinations, combinations, kd_per
     (1.5, 0.912), (2.0, 0.849), (3.0, 0.761), (4.0, 0.699), (5.01, 0.650), (8.0, 0.650),
 ])
 def test_kd_permanent_formula(ratio, expected):
-    values = kd_permanent(P_L=ratio * 10_000.0, P_S=10_000.0)
+    values = kd_permanent(X_lt=ratio * 10_000.0, X_st=10_000.0)
     assert values["K_D"] == pytest.approx(expected, abs=0.0006)
 
 
@@ -51,7 +51,7 @@ def test_dead_dominant_reduces_kd(data):
 def test_wind_is_short_term_and_reduced_dead_only_when_it_resists(data):
     # O86:19 Table 5.1 (O86-14 Table 5.3.2.2): wind principal → short term, K_D = 1.15.
     # NBC Sentence 4.1.3.2.(5) (S9): 0.9D where the dead load resists.
-    same_sign = apply_combinations(effects(D=5, W=10), data, [])
+    same_sign = apply_combinations(effects(D=5, W=10), data, [], both_senses=False)
     assert all(not c.combination.reduced_dead for c in same_sign)
     wind = next(c for c in same_sign if c.label == "1.25D + 1.4W")
     assert wind.K_D == pytest.approx(1.15)
@@ -59,6 +59,18 @@ def test_wind_is_short_term_and_reduced_dead_only_when_it_resists(data):
     assert "0.9D + 1.4W" in [c.label for c in uplift]
     reduced = next(c for c in uplift if c.label == "0.9D + 1.4W")
     assert reduced.factored["P"] == pytest.approx(0.9 * 5000 - 1.4 * 10_000)
+
+
+def test_wind_and_earthquake_act_both_ways(data):
+    # Common practice (NBC 4.1.3.2: wind pressure and suction, earthquake in either direction): every
+    # combination with W or E is also applied reversed, with 0.9D where the reversed load opposes D.
+    cases = {c.label: c for c in apply_combinations(effects(D=5, W=10, E=4), data, [])}
+    assert cases["1.25D − 1.4W"].factored["P"] == pytest.approx(1.25 * 5000 - 1.4 * 10_000)
+    assert cases["0.9D − 1.4W"].factored["P"] == pytest.approx(0.9 * 5000 - 1.4 * 10_000)
+    assert cases["1.0D − 1.0E"].factored["P"] == pytest.approx(5000 - 4000)
+    assert cases["1.25D + 1.4W"].K_D == cases["1.25D − 1.4W"].K_D == pytest.approx(1.15)
+    one_way = [c.label for c in apply_combinations(effects(D=5, W=10, E=4), data, [], both_senses=False)]
+    assert not any("−" in label for label in one_way)
 
 
 def test_no_zero_or_duplicate_combinations(data):
@@ -70,5 +82,10 @@ def test_no_zero_or_duplicate_combinations(data):
 
 
 def test_kd_override(data):
+    # The override replaces the computed K_D, but never raises the long-term 0.65 of the dead-only
+    # combination (O86 Table 5.1: dead load is long-term whatever the schedule says).
     cases = apply_combinations(effects(D=5, L=8), data, [], override=0.8)
-    assert {c.K_D for c in cases} == {0.8}
+    assert {c.K_D for c in cases if c.combination.principal != "D"} == {0.8}
+    dead = next(c for c in cases if c.combination.principal == "D")
+    assert dead.K_D == 0.65 and "not applied" in dead.basis
+    assert all("override" in c.basis for c in cases if c.combination.principal != "D")

@@ -12,7 +12,8 @@ from timbersheets.sheets import Sheet
 
 ROWS = [
     {"mark": "RB-1", "type": "bending", "material": "glulam", "species": "D.Fir-L", "grade": "24f-E",
-     "size": "130x304", "length": "6.0", "Lu": "0", "bearing": "140", "w_D": "1.2", "w_S": "3.0"},
+     "size": "130x304", "length": "6.0", "Lu": "0", "bearing": "140", "w_D": "1.2", "w_S": "3.0",
+     "self_weight": "no"},  # the hand calculations below take the dead load as given
     {"mark": "J-1", "type": "bending", "material": "sawn", "species": "S-P-F", "grade": "No.1/No.2",
      "size": "38x235", "spans": "3.6+3.6", "Lu": "0", "bearing": "89", "q_D": "0.5", "q_L": "1.9", "trib": "0.4",
      "restraint": "both-edges", "carries": "RB-1.R1@3.6"},

@@ -34,7 +34,7 @@ CALCS = all_calcs()
 def latex_symbol(name: str) -> str:
     """handcalcs' rendering of a variable name: K_Zt → K_{Zt}, phi → \\phi, Delta → \\Delta."""
     head, _, tail = name.partition("_")
-    head = {"phi": r"\phi", "pi": r"\pi", "Delta": r"\Delta"}.get(head, head)
+    head = {"phi": r"\phi", "pi": r"\pi", "Delta": r"\Delta", "gamma": r"\gamma"}.get(head, head)
     return f"{head}_{{{tail}}}" if tail else head
 
 

@@ -8,7 +8,7 @@ from conftest import design_row
 from timbersheets.results import member_json
 
 PURLIN = dict(type="bending", material="sawn", species="S-P-F", grade="No.1/No.2", size="38x184", K_H="1.1",
-              length="3.2", w_D="0.46", w_S="1.16", Ly="", P_D="")
+              length="3.2", w_D="0.46", w_S="1.16", Ly="", P_D="", Lu="0")
 
 
 def bending(d, combination="1.25D + 1.5S"):
@@ -69,14 +69,8 @@ def test_no_bearing_check_from_frame_model_forces(tmp_path, data):
 
 
 def test_beam_column_braced_about_x_is_a_clear_error(tmp_path, data):
-    d = design_row(tmp_path, data, type="beam-column", size="89x89", Lx="0", Ly="", P_D="2", w_W="0.4")
+    d = design_row(tmp_path, data, type="beam-column", size="89x89", Lx="0", Ly="", Lu="3.0", P_D="2", w_W="0.4")
     assert d.status == "error" and "Lx = 0" in d.errors[0]
-
-
-def test_beam_column_compression_edge_is_unsupported_unless_stated(tmp_path, data):
-    d = design_row(tmp_path, data, type="beam-column", size="140x191", grade="No.2", length="3.0", Ly="",
-                   P_D="10", w_W="1.0")
-    assert d.member.Lu == pytest.approx(3000.0)
 
 
 def test_deflection_has_no_load_duration_factor(tmp_path, data):

@@ -28,8 +28,8 @@ from .loads import LOAD_TYPES, LoadCase
 from .membertypes import member_type
 
 SPAN_CLAUSE = "simply supported span, uniform load"
-#: Deflection under specified loads (CSA O86:19 5.4.2; memory, unverified clause number).
-SLS_CLAUSE = "O86:19 5.4.2"
+#: Deflection under specified loads (CSA O86-14 5.4.2; memory, unverified clause number).
+SLS_CLAUSE = "O86-14 5.4.2"
 
 
 @calc(units={"w_f": "N/mm", "L": "mm", "M_f": "N*mm"}, clause=SPAN_CLAUSE)

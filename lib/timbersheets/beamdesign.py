@@ -27,8 +27,8 @@ from .errors import DesignError
 from .loads import LOAD_TYPES
 from .membertypes import member_type
 
-#: Deflection under specified loads (CSA O86:19 5.4.2; memory, unverified clause number).
-SLS_CLAUSE = "O86:19 5.4.2"
+#: Deflection under specified loads (CSA O86-14 5.4.2; memory, unverified clause number).
+SLS_CLAUSE = "O86-14 5.4.2"
 MODEL_CLAUSE = "beam model (PyCBA)"
 
 

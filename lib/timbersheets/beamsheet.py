@@ -9,8 +9,10 @@ from __future__ import annotations
 
 from .analysis import loading_mode, member_forces, service_cases
 from .beamdesign import is_model, reactions_by_type
-from .calc import format_number, format_value
+from .calc import format_metres, format_number, format_value
+from .checks.bending import bottom_edge_words
 from .errors import TimbersheetsError
+from .ownweight import gives_line_loads
 from .membertypes import member_type
 from .sheets import Block, heading, para, q, table
 from .tex import Cell, Table, escape
@@ -36,15 +38,7 @@ def member_rows(m, section, checks: set[str] | None = None) -> list[list[object]
     else:
         span = Cell(f"$L = {format_value(m.length, 'mm')}$; line loads act across the member between its ends, "
                     "which are held in position", f"L = {m.length:g} mm")
-    if m.Lu == 0:
-        lateral = ("compression edge held continuously ($L_u = 0$), e.g. by decking or joists fixed to it",
-                   "compression edge held continuously (Lu = 0)")
-    else:
-        lateral = (f"compression edge laterally unsupported over $L_u = {format_value(m.Lu, 'mm')}$",
-                   f"compression edge unsupported over Lu = {m.Lu:g} mm")
-    ends = ("; ends held in position and against rotation at the bearings" if member_type(m.type).axial is None
-            else "; ends held in position")  # a beam's bearings restrain twist; a column's ends are only held
-    lateral_text = lateral[0] + ends
+    lateral = lateral_support_words(m)
     bearing = (Cell(f"$l_b = {format_value(m.bearing, 'mm')}$ at each end support",
                     f"l_b = {m.bearing:g} mm at each end support") if m.bearing is not None
                else "not given: no bearing check")
@@ -61,9 +55,7 @@ def member_rows(m, section, checks: set[str] | None = None) -> list[list[object]
         from .modelsheet import geometry_rows
 
         spans = geometry_rows(m)
-        if m.values.get("restraint") != "both-edges":
-            lateral_text += ("; under negative moment the bottom edge is taken as laterally unsupported between "
-                             "supports (over a support, the longer of the span or overhang beside it)")
+        lateral = lateral_support_words(m, model=True)
         bearing = (Cell(f"$l_b = {format_value(m.bearing, 'mm')}$ at every support", f"l_b = {m.bearing:g} mm")
                    if m.bearing is not None else bearing)
         loading = f"beam model analysed with {escape(library())}, live and snow patterned (section 3)"
@@ -72,7 +64,7 @@ def member_rows(m, section, checks: set[str] | None = None) -> list[list[object]
                       f"span/{m.defl_L:g} live, span/{m.defl_total:g} total; overhang tips 2 × overhang / n")
     return [
         *spans,
-        ["Lateral support", Cell(lateral_text, lateral[1])],
+        ["Lateral support", Cell(escape(lateral), lateral)],
         ["Bearing", bearing],
         ["Loading", loading],
         ["Deflection limits", limits],
@@ -90,6 +82,30 @@ def deflection_limits(m, checks: set[str] | None) -> Cell | str:
     if not limits:
         return "none checked: no SLS combination applies (they combine gravity line loads on the span only)"
     return Cell(", ".join(latex for latex, _ in limits), ", ".join(text for _, text in limits))
+
+
+def lateral_support_words(m, model: bool = False) -> str:
+    """One statement of how each edge is held, from Lu, Lu_bottom and restraint together (`model`: a beam
+    model, whose bottom edge without Lu_bottom is unsupported between supports)."""
+    restraint = m.restraint
+    # a beam's bearings restrain twist; a column's ends are only held in position
+    ends = ("ends held in position and against rotation at the bearings" if member_type(m.type).axial is None
+            else "ends held in position")
+    if restraint == "both-edges":
+        return f"both edges held in line (restraint = both-edges; Lu = Lu_bottom = 0); {ends}"
+    if m.Lu == 0:
+        top = "top (compression) edge held continuously (Lu = 0), e.g. by decking or joists fixed to it"
+        if restraint == "blocking":
+            top += ", with bridging or blocking at no more than 8d (restraint = blocking)"
+    elif restraint == "purlins":
+        top = f"top (compression) edge held at purlins or tie rods every Lu = {format_metres(m.Lu)} m (restraint = purlins)"
+    else:
+        top = f"top (compression) edge laterally unsupported over Lu = {format_metres(m.Lu)} m"
+    bottom = bottom_edge_words(m)
+    if model and m.Lu_bottom is None:
+        bottom = ("Lu_bottom is not given, so it is taken as laterally unsupported between supports (an overhang: "
+                  "its length)")
+    return f"{top}; bottom edge (in compression under negative moment): {bottom}; {ends}"
 
 
 def forces_block(design) -> Block:
@@ -131,16 +147,16 @@ def forces_block(design) -> Block:
 
 def serviceability_block(design, data) -> Block:
     """The SLS combinations used for deflection, with their sources."""
-    m = design.member
     out = heading("Serviceability combinations", 2)
     if design.errors or design.context is None:
         return Block("", "")
+    m = design.context.member  # with its own weight in the dead load
     if is_model(m):
         from .modelsheet import serviceability_block as model_serviceability
 
         return model_serviceability(design, data)
     mode = loading_mode(m)
-    cases = service_cases(m, data) if any(m.values[f"w_{t}"] for t in "DLSWE") else []
+    cases = service_cases(m, data) if gives_line_loads(m, design.context.own_weight) else []
     if not cases and mode == "forces":
         return out + para("Deflection is not checked: the row gives the moments and shears of a frame model, not "
                           "the loads that cause them. Check deflection in the frame model, or give the line loads "

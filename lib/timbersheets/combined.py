@@ -26,8 +26,25 @@ def refuse_reversal(ctx, cases: list[LoadCase], sense: str) -> None:
     worst = min(cases, key=lambda c: c.factored["P"], default=None)
     if worst is not None and worst.factored["P"] < -EPS:
         other = "compression" if sense == "tension" else "tension"
+        hint = (" (or give wind_sense = one-way if the wind or earthquake cannot act the other way)"
+                if worst.combination.reversed_loads else "")
         raise DesignError(ctx.mark, f"is in {other} ({-worst.factored['P'] / 1000:.1f} kN) under {worst.label}", "",
-                          f"A {sense} member must stay in {sense}; design the reversal as its own member")
+                          f"A {sense} member must stay in {sense}; design the reversal as its own member{hint}")
+
+
+def tension_only(ctx, cases: list[LoadCase]) -> list[LoadCase]:
+    """The cases that put a tension member in tension; a note on the sheet for those that reverse it.
+
+    A tension member is tension-only by definition (a brace whose compression diagonal is not relied on):
+    compression is not checked, and the sheet says under which combinations the axial force reverses."""
+    reversing = [c for c in cases if c.factored["P"] < -EPS]
+    if reversing:
+        worst = min(reversing, key=lambda c: c.factored["P"])
+        ctx.notes.append(f"tension-only: the axial force reverses to compression under {', '.join(c.label for c in reversing)} "
+                         f"(at most {-worst.factored['P'] / 1000:.1f} kN under {worst.label}); the member is "
+                         "tension-only, so compression is not checked: the bracing must carry the reversed load "
+                         "in its other diagonal")
+    return [c for c in cases if c.factored["P"] > EPS]
 
 
 def deflections(ctx) -> list[CheckResult]:
@@ -47,7 +64,7 @@ def design_combined(ctx, cases: list[LoadCase], kind) -> list[CheckResult]:
     sense = kind.axial
     if ctx.section.plies > 1 and not kind.plies:
         raise DesignError(ctx.mark, "built-up (multi-ply) beam-columns need the rules for built-up columns, which "
-                          "this version does not implement", "O86:19 6.5.6.4", "Design it as a solid section")
+                          "this version does not implement", "O86-14 6.5.6.4", "Design it as a solid section")
     refuse_reversal(ctx, cases, sense)
     mode = loading_mode(ctx.member)
     line = mode == "line"
@@ -75,6 +92,10 @@ def design_combined(ctx, cases: list[LoadCase], kind) -> list[CheckResult]:
             check = check_beam_column if sense == "compression" else check_tension_bending
             groups["interaction"].append(check(ctx, case, axial, axial_r, forces.M_f, moment_r))
     out = [c for name in (sense, "bending", "shear", "interaction") for c in groups[name]]
+    if sense == "compression":
+        from .design import support_bearings
+
+        out += support_bearings(ctx, cases)
     if not groups[sense] or not groups["bending"]:
         missing = "axial force (P_D … P_E)" if not groups[sense] else "bending (w_* or M_*)"
         raise DesignError(ctx.mark, f"carries no {missing} under any combination", "",

@@ -17,7 +17,8 @@ SHORT_CAUTION = ("Review and seal by a licensed professional engineer required; 
 RESULT_MIME = "application/vnd.timbersheets.result+json"
 
 #: How a display unit is written in plain text (results.json, Markdown, the terminal).
-UNIT_TEXT = {"kN*m": "kN·m", "mm**2": "mm²", "mm**3": "mm³", "mm**4": "mm⁴", "m**3": "m³"}
+UNIT_TEXT = {"kN*m": "kN·m", "mm**2": "mm²", "mm**3": "mm³", "mm**4": "mm⁴", "m**3": "m³", "kN/m**3": "kN/m³",
+             "kg/m**3": "kg/m³"}
 
 #: How a display unit is written in LaTeX math.
 UNIT_LATEX = {
@@ -31,6 +32,8 @@ UNIT_LATEX = {
     "mm**3": r"\mathrm{mm}^{3}",
     "mm**4": r"\mathrm{mm}^{4}",
     "m**3": r"\mathrm{m}^{3}",
+    "kN/m**3": r"\mathrm{kN/m}^{3}",
+    "kg/m**3": r"\mathrm{kg/m}^{3}",
     "N": r"\mathrm{N}",
     "N*mm": r"\mathrm{N{\cdot}mm}",
     "N/mm": r"\mathrm{N/mm}",

@@ -42,6 +42,7 @@ BUILTIN_FILES = (
     "bending_effective_length.csv",
     "bearing_size_factors.csv",
     "system_factors.csv",
+    "densities.csv",
 )
 
 
@@ -71,6 +72,7 @@ TABLES = {
     "lateral_restraint_sawn.csv": TableSpec(("restraint",), ("d_over_b_max",)),
     "bending_effective_length.csv": TableSpec(("case",), ("factor",)),
     "system_factors.csv": TableSpec(("case", "applies_to"), ("value",)),
+    "densities.csv": TableSpec(("material", "species", "service"), ("density",)),
 }
 
 
@@ -348,6 +350,11 @@ class DataSet:
 
     def resistance_factor(self, action: str) -> Datum:
         return self._find("resistance_factors.csv", f"phi {action}", "phi", action=action)
+
+    def density(self, material: str, species: str, service: str) -> Datum:
+        """Density for the member's own weight (kg/m³), by material, species and service condition."""
+        return self._find("densities.csv", f"rho {material} {species} {service}", "density", material=material,
+                          species=species, service=service)
 
     def duration_factor(self, cls: str) -> Datum:
         return self._find("duration_factors.csv", f"K_D {cls} term", "K_D", **{"class": cls})

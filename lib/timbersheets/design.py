@@ -15,16 +15,17 @@ from dataclasses import dataclass, field
 from .analysis import loading_mode, member_forces
 from .beamdesign import design_model, geometry_of, is_model, total_loads
 from .checks import CheckResult
-from .checks.bearing import check_bearing
+from .checks.bearing import check_bearing, check_support_bearing
 from .checks.bending import check_bending
 from .checks.compression import check_compression
 from .checks.shear import check_shear
 from .checks.tension import check_tension
-from .combined import deflections, design_combined, refuse_reversal
+from .combined import deflections, design_combined, refuse_reversal, tension_only
 from .data import DataSet, Datum, Recorded
 from .errors import DesignError, TimbersheetsError
 from .loads import EFFECTS, LOAD_TYPES, Effects, LoadCase, apply_combinations
 from .materials import Strengths, strengths
+from .ownweight import OwnWeight, gives_line_loads, own_weight, with_own_weight
 from .membertypes import MemberType, member_type, member_types
 from .schedule import Member, RowError
 from .sections import Section, service_category
@@ -47,6 +48,7 @@ class Context:
     used: list[Datum] = field(default_factory=list)
     K_Zt: float = 1.0
     data: DataSet | None = None  # for the lookups a check makes itself (size factors, restraint rules)
+    own_weight: OwnWeight | None = None  # included in member's dead load (member is then the loaded copy)
 
     @property
     def mark(self) -> str:
@@ -116,16 +118,37 @@ def effects_of(member: Member) -> Effects:
     return Effects(values, reversible=len(geometry.spans) > 1 or bool(geometry.left or geometry.right))
 
 
+def load_cases(member: Member, data: DataSet, used: list[Datum]) -> list[LoadCase]:
+    """The ULS combinations of `member` (with its own weight already in it) as its row asks for them.
+
+    A tension member with bending also gets every 0.9D alternative: least dead-load tension with the full
+    moment is what puts its compression face in compression (O86 interaction, compression face)."""
+    return apply_combinations(effects_of(member), data, used, member.K_D, both_senses=member.wind_sense != "one-way",
+                              least_tension=member_type(member.type).axial == "tension" and member_type(member.type).bends,
+                              storage=member.live_use == "storage")
+
+
 def build_context(member: Member, data: DataSet, section: Section | None = None) -> Context:
-    """Look up strengths and factors for `member` (or for `section` while sizing)."""
+    """Look up strengths and factors for `member` (or for `section` while sizing).
+
+    The context's member is the schedule's member with its own weight added to the dead load
+    (unless the row gives self_weight = no): the weight depends on the section."""
     section = section or member.section
     used: list[Datum] = []
+    weight = own_weight(member, section, data)
+    member = with_own_weight(member, weight)
+    if weight is not None:
+        used.append(weight.density)
     f = strengths(data, member.material, member.species, member.grade, section)
     category = "all" if member.material == "glulam" else service_category(section)
     K_S = {p: data.service_factor(member.material, category, p, member.service) for p in SERVICE_PROPERTIES}
     phi = {a: data.resistance_factor(a) for a in ("tension", "compression", "bending", "shear", "bearing")}
     ctx = Context(member, section, f, Recorded(f.values, used), Recorded(K_S, used), Recorded(phi, used), used,
-                  data=data)
+                  data=data, own_weight=weight)
+    if weight is not None and weight.effect == "w" and any(member.values[f"{e}_{t}"] for e in "MV" for t in LOAD_TYPES):
+        ctx.notes.append("own weight is not added to the frame model's moments and shears (the tool cannot place "
+                         "it in that model): include it in M_D and V_D; it is included in the line loads used for "
+                         "deflection")
     if member.material == "sawn" and member_type(member.type).axial == "tension":  # K_Zt: tension only
         kzt = data.size_factor_sawn("K_Zt", section.smaller, section.larger)
         ctx.K_Zt = kzt.value
@@ -138,13 +161,24 @@ def _axial(ctx: Context, cases: list[LoadCase], kind: MemberType) -> list[CheckR
     check = check_tension if kind.axial == "tension" else check_compression
     if ctx.section.plies > 1 and not kind.plies:
         raise DesignError(ctx.mark, "built-up (multi-ply) columns need the rules for nailed or bolted "
-                          "built-up columns, which this version does not implement", "O86:19 6.5.6.4",
+                          "built-up columns, which this version does not implement", "O86-14 6.5.6.4",
                           "Design it as a solid section or by hand")
-    refuse_reversal(ctx, cases, kind.axial)
+    if kind.axial == "tension":
+        cases = tension_only(ctx, cases)
+    else:
+        refuse_reversal(ctx, cases, kind.axial)
     out = [check(ctx, case, case.factored["P"]) for case in cases if case.factored["P"] > EPS]
     if not out:
         raise DesignError(ctx.mark, "carries no axial force", "", "Give the axial loads P_D … P_E")
+    if kind.axial == "compression":
+        out += support_bearings(ctx, cases)
     return out
+
+
+def support_bearings(ctx: Context, cases: list[LoadCase]) -> list[CheckResult]:
+    """Bearing of a column's end on the timber it bears on, per combination that compresses it."""
+    out = [check_support_bearing(ctx, case, case.factored["P"]) for case in cases if case.factored["P"] > EPS]
+    return [c for c in out if c is not None]
 
 
 def _bending(ctx: Context, cases: list[LoadCase], kind: MemberType) -> list[CheckResult]:
@@ -165,7 +199,7 @@ def _bending(ctx: Context, cases: list[LoadCase], kind: MemberType) -> list[Chec
         if bearing is not None:
             strength["bearing"].append(bearing)
     out = [c for name in ("bending", "shear", "bearing") for c in strength[name]]
-    if any(ctx.member.values[f"w_{t}"] for t in LOAD_TYPES):
+    if gives_line_loads(ctx.member, ctx.own_weight):
         out += deflections(ctx)
     if not out:
         raise DesignError(ctx.mark, "carries no bending moment or shear under any combination")
@@ -264,7 +298,7 @@ def design_member(member: Member, data: DataSet) -> MemberDesign:
         if member.size == "auto":
             section = _sized_section(member, data, kind, outcome)
         ctx = build_context(member, data, section)
-        cases = apply_combinations(effects_of(member), data, ctx.used, member.K_D)
+        cases = load_cases(ctx.member, data, ctx.used)
         outcome.context, outcome.cases = ctx, cases
         outcome.checks = design_function(kind)(ctx, cases)
         refuse_non_finite(member, outcome.checks, ctx.used)

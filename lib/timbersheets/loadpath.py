@@ -98,7 +98,9 @@ def resolve(member, carries_designs: dict, file: str = "schedule.csv") -> object
             raise ScheduleError(file, member.row, "carries", c.label, f"asks for reaction {c.reaction}, "
                                 f"but {c.mark} has {len(reactions)} support(s)",
                                 ", ".join(f"{c.mark}.R{j}" for j in reactions))
-        loads.append(CarriedLoad(c.mark, n, c.at, dict(reactions[n]), c.reaction is None))
+        # at the precision the notebook receives them (params), so both designs see the same loads
+        carried = {t: round(v / 1000, 6) * 1000 for t, v in reactions[n].items()}
+        loads.append(CarriedLoad(c.mark, n, c.at, carried, c.reaction is None))
     return replace(member, values={**member.values, "carried": tuple(loads)})
 
 

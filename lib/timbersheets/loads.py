@@ -7,7 +7,7 @@ moment M, shear V and line load w, each given per load type D, L, S, W, E.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from math import log10
 
 from .calc import calc
@@ -22,6 +22,8 @@ EFFECT_UNITS = {"P": "N", "M": "N*mm", "V": "N", "w": "N/mm", "F": "N"}
 #: Duration class of each load type (CSA O86 5.3.2; Table 5.1 examples).
 DURATION_CLASS = {"D": "long", "L": "standard", "S": "standard", "W": "short", "E": "short"}
 STANDARD_TERM = ("L", "S")
+#: Loads that act in either sense (wind pressure and suction, earthquake both ways).
+REVERSIBLE = ("W", "E")
 
 
 @dataclass(frozen=True)
@@ -39,13 +41,24 @@ class Combination:
     def label(self) -> str:
         """E.g. ``1.25D + 1.5S + 1.0L``: dead load, the principal load, then companions."""
         order = list(dict.fromkeys(["D", self.principal, *LOAD_TYPES]))
-        parts = []
+        out = ""
         for t in order:
             factor = self.factors[t]
             if factor:
-                text = f"{factor:.2f}".rstrip("0")
-                parts.append(f"{text}0{t}" if text.endswith(".") else f"{text}{t}")
-        return " + ".join(parts)
+                text = f"{abs(factor):.2f}".rstrip("0")
+                text = f"{text}0{t}" if text.endswith(".") else f"{text}{t}"
+                out += (" − " if factor < 0 else " + ") + text if out else ("−" if factor < 0 else "") + text
+        return out
+
+    @property
+    def reversed_loads(self) -> tuple[str, ...]:
+        """The load types this combination applies in the sense opposite to the schedule's."""
+        return tuple(t for t in LOAD_TYPES if self.factors[t] < 0)
+
+    def reversed(self) -> "Combination":
+        """The same combination with wind and earthquake acting in the opposite sense."""
+        factors = {t: -f if t in REVERSIBLE else f for t, f in self.factors.items()}
+        return replace(self, factors=factors)
 
     @property
     def reduced_dead(self) -> bool:
@@ -88,9 +101,17 @@ class Effects:
                                       for t in LOAD_TYPES[1:])
 
 
-@calc(units={"P_L": "N", "P_S": "N", "K_D": ""}, clause="O86:19 5.3.2.3")
-def kd_permanent(P_L, P_S):
-    K_D = max(1.0 - 0.50 * log10(P_L / P_S), 0.65)
+#: The symbols of :func:`kd_permanent`, in words for the sheet. O86 writes P_L and P_S; the schedule's
+#: P_L and P_S columns are the live and snow axial loads, so the sheet uses symbols of its own.
+KD_SYMBOLS = {"X_lt": "the specified long-term (dead-load) part of the effect",
+              "X_st": "the specified standard-term (live and snow) part of the same effect in this combination"}
+#: The K_D override of the schedule is bounded by the factors O86 Table 5.1 itself gives.
+KD_OVERRIDE_RANGE = (0.65, 1.15)
+
+
+@calc(units={"X_lt": "N", "X_st": "N", "K_D": ""}, clause="O86-14 5.3.2.3")
+def kd_permanent(X_lt, X_st):
+    K_D = max(1.0 - 0.50 * log10(X_lt / X_st), 0.65)
     return locals()
 
 
@@ -111,67 +132,108 @@ class LoadCase:
 
 
 def load_duration(comb: Combination, effects: Effects, data: DataSet, used: list[Datum],
-                  override: float | None) -> tuple[float, str, dict[str, float], str]:
-    """K_D for one combination (CSA O86:19 5.3.2, Table 5.1).
+                  override: float | None, storage: bool = False) -> tuple[float, str, dict[str, float], str]:
+    """K_D for one combination (CSA O86-14 5.3.2, Table 5.1), one value for every resistance of it.
 
     The class of the principal load sets K_D: long term (dead only) 0.65,
     standard term (L or S principal) 1.0, short term (W or E principal) 1.15.
-    For a standard-term combination where the specified long-term (dead) effect
-    P_L exceeds the specified standard-term effect P_S of that combination,
-    K_D = 1.0 − 0.50 log10(P_L/P_S) ≥ 0.65 (5.3.2.3). Where the member has
-    several effects (P, M, V, w), the lowest K_D of them is used; an effect from
-    dead load alone is long-term (0.65) even in a standard-term combination. The schedule's
-    K_D column overrides all of this.
+    In a standard-term combination, each effect (P, M, V, w) that carries live
+    or snow load is tested: where its specified dead part X_lt exceeds its
+    standard-term part X_st, K_D = 1.0 − 0.50 log10(X_lt/X_st) ≥ 0.65
+    (5.3.2.3), and the lowest such value is the combination's K_D. An effect from
+    dead load alone does not set it: that effect is checked long-term (0.65)
+    in the dead-only combination, whose factor 1.4 against 1.25 makes it the
+    more severe case. The schedule's K_D replaces the computed value, except
+    that it never raises the K_D of a dead-only combination.
+
+    With `storage` (live_use = storage) the live load is long-term load, as O86
+    Table 5.1 classes storage loads with dead load: an L-principal combination is
+    long-term, and elsewhere L joins the long-term part X_lt.
     """
-    if override is not None:
-        return override, "schedule K_D override", {}, ""
-    cls = DURATION_CLASS[comb.principal]
+    cls = "long" if storage and comb.principal == "L" else DURATION_CLASS[comb.principal]
     table = data.duration_factor(cls)
     used.append(table)
+    if override is not None:
+        if cls == "long" and override > table.value:
+            return table.value, (f"schedule K_D = {override:g} not applied: it would raise the long-term K_D of a "
+                                 "dead-only combination (Table 5.1)"), {}, ""
+        return override, f"schedule K_D override (computed: {cls}-term, Table 5.1)", {}, ""
+    if cls != "standard" and storage and comb.principal == "L":
+        return table.value, "long-term (storage live load L principal), Table 5.1", {}, ""
     if cls != "standard":
         return table.value, f"{cls}-term ({comb.principal} principal), Table 5.1", {}, ""
     best: tuple[float, dict[str, float], str] = (table.value, {}, "")
+    long_loads = ("D", "L") if storage else ("D",)
     for effect in effects.present():
-        p_l = abs(effects.get(effect, "D"))
-        p_s = abs(sum(effects.get(effect, t) for t in STANDARD_TERM if comb.factors[t]))
-        if p_l > 0 and p_s == 0:
-            long_term = data.duration_factor("long")
-            used.append(long_term)
-            if long_term.value < best[0]:
-                best = (long_term.value, {}, effect)  # this effect is from dead load alone
-        elif p_s > 0 and p_l > p_s:
-            values = kd_permanent(P_L=p_l, P_S=p_s)
+        x_lt = abs(sum(effects.get(effect, t) for t in long_loads if comb.factors[t]))
+        x_st = abs(sum(effects.get(effect, t) for t in STANDARD_TERM if comb.factors[t] and t not in long_loads))
+        if x_st > 0 and x_lt > x_st:
+            values = kd_permanent(X_lt=x_lt, X_st=x_st)
             if values["K_D"] < best[0]:
                 best = (values["K_D"], values, effect)
     kd, values, effect = best
     if values:
-        return kd, f"standard-term, long-term part P_L > P_S (5.3.2.3, on {effect})", values, effect
-    if effect:
-        return kd, f"standard-term combination, but {effect} comes from dead load alone: long-term, Table 5.1", {}, ""
+        part = "dead and storage" if storage else "dead"
+        return kd, f"standard-term, long-term ({part}) part X_lt > X_st (5.3.2.3, on {effect})", values, effect
     return kd, f"standard-term ({comb.principal} principal), Table 5.1", {}, ""
 
 
+#: NBC 4.1.3.2 (table note on storage, equipment and service areas; memory, as data/nbc2020_uls_combinations.csv
+#: records it for combinations 4b and 4e): the companion factor 0.5 on L rises to 1.0. Applied to every 0.5L
+#: companion, on the safe side where the note's reach is not recorded.
+STORAGE_COMPANION = (0.5, 1.0)
+
+
+def storage_companions(comb: Combination) -> Combination:
+    """`comb` for a storage, equipment or service area: a companion 0.5L becomes 1.0L."""
+    low, high = STORAGE_COMPANION
+    if comb.principal == "L" or comb.factors["L"] != low:
+        return comb
+    return replace(comb, factors={**comb.factors, "L": high})
+
+
+def _senses(comb: Combination, effects: Effects, both_senses: bool) -> list[Combination]:
+    """The combination as the schedule gives it, and reversed when it carries wind or earthquake."""
+    carries = any(comb.factors[t] and effects.get(e, t) for t in REVERSIBLE for e in ALL_EFFECTS)
+    return [comb, comb.reversed()] if both_senses and carries else [comb]
+
+
+def _opposes_dead(comb: Combination, effects: Effects) -> bool:
+    """Some load of this combination (in its sense) acts against the dead load (NBC 4.1.3.2.(5))."""
+    return any(effects.get(e, "D") * comb.factors[t] * effects.get(e, t) < 0 for e in ALL_EFFECTS
+               for t in LOAD_TYPES[1:])
+
+
 def apply_combinations(effects: Effects, data: DataSet, used: list[Datum],
-                       override: float | None = None) -> list[LoadCase]:
+                       override: float | None = None, both_senses: bool = True,
+                       least_tension: bool = False, storage: bool = False) -> list[LoadCase]:
     """Every combination that matters for the member, with factored effects and K_D.
 
-    Skipped: combinations whose principal load the member does not carry, the
-    0.9D alternatives unless some load acts against the dead load, combinations
-    whose factored effects are all zero, and duplicates (same effects and K_D)
-    of a combination listed before.
+    Wind and earthquake act in both senses unless `both_senses` is False (the
+    row's wind_sense = one-way): each combination that carries them is applied
+    as given and reversed. With `least_tension` (tension with bending) every
+    0.9D alternative is kept: it gives the least axial tension with the moment.
+    With `storage` (live_use = storage) every companion 0.5L becomes 1.0L
+    (:func:`storage_companions`) and live load is long-term in K_D.
+    Skipped: combinations whose principal load the member
+    does not carry, the 0.9D alternatives unless a load of that combination acts
+    against the dead load (or `least_tension`), combinations whose factored effects are all zero, and
+    duplicates (same effects and K_D) of a combination listed before.
     """
     cases: list[LoadCase] = []
     seen: set[tuple] = set()
     resists = effects.dead_resists()
-    for comb in combinations(data):
+    table = [storage_companions(c) for c in combinations(data)] if storage else combinations(data)
+    senses = [c for comb in table for c in _senses(comb, effects, both_senses)]
+    for comb in senses:
         if comb.principal != "D" and not any(effects.get(e, comb.principal) for e in ALL_EFFECTS):
             continue
-        if comb.reduced_dead and not resists:
+        if comb.reduced_dead and not (resists or least_tension or _opposes_dead(comb, effects)):
             continue
         factored = {e: sum(comb.factors[t] * effects.get(e, t) for t in LOAD_TYPES) for e in ALL_EFFECTS}
         if all(abs(v) < 1e-9 for v in factored.values()):
             continue
-        kd, basis, values, effect = load_duration(comb, effects, data, used, override)
+        kd, basis, values, effect = load_duration(comb, effects, data, used, override, storage)
         key = tuple(round(factored[e], 6) for e in ALL_EFFECTS) + (round(kd, 6),)
         if key in seen:
             continue

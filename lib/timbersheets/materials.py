@@ -84,3 +84,32 @@ def strengths(data: DataSet, material: str, species: str, grade: str, section: S
     for prop in SAWN_PROPERTIES:
         out.values[prop] = data.sawn_strength(species, table_grade, category, prop)
     return out
+
+
+SAWN_CATEGORIES = ("dimension", "beam-stringer", "post-timber")
+
+
+def support_f_cp(data: DataSet, material: str, species: str, grade: str) -> Datum:
+    """f_cp of a supporting member whose size the schedule does not give: the lowest over the size
+    categories that table the grade (sawn), or the grade's own value (glulam)."""
+    if material == "glulam":
+        return data.glulam_strength(species, grade, "f_cp")
+    found = [data.sawn_strength(species, g, c, "f_cp") for c in SAWN_CATEGORIES
+             if (g := sawn_table_grade(grade, c)) is not None]
+    if not found:
+        raise ValueError(f"grade {grade} is not tabled for any sawn size")
+    return min(found, key=lambda d: d.value)
+
+
+def parse_support(text: str) -> tuple[str, str, str] | str:
+    """`bears_on` as (material, species, grade) for timber, or 'steel' / 'concrete'. Raises ValueError."""
+    words = text.split()
+    if len(words) == 1 and words[0].casefold() in ("steel", "concrete"):
+        return words[0].casefold()
+    if len(words) != 3 or words[0].casefold() not in ("sawn", "glulam"):
+        raise ValueError("is not 'steel', 'concrete' or 'sawn|glulam <species> <grade>'")
+    material = words[0].casefold()
+    species = canonical(words[1], GLULAM_SPECIES if material == "glulam" else SAWN_SPECIES)
+    if species is None:
+        raise ValueError(f"names a species that is not a {material} species")
+    return material, species, words[2]

@@ -74,25 +74,24 @@ _DEFLECTIONS = ("deflection-live", "deflection-total")
 @lru_cache(maxsize=1)
 def member_types() -> dict[str, MemberType]:
     """The member types this version designs (the one place they are registered)."""
-    held_edge = MappingProxyType({**_LENGTHS, "Lu": 0.0})  # bending: the row says when the edge is not held
-    free_edge = MappingProxyType({**_LENGTHS, "Lu": "length"})  # a column's compression edge is not held unless stated
+    edge = ("Lu",)  # a type that bends must say how its compression edge is held: never assumed braced
     types = [
         MemberType("tension", "tension member", "axial.ipynb", "axial", axial="tension", bends=False,
                    checks=("tension",), plies=True, sections=("length", "net-area"), blank=_LENGTHS,
                    refuses=_BEAM_ONLY),
         MemberType("compression", "compression member", "axial.ipynb", "axial", axial="compression", bends=False,
-                   checks=("compression",), plies=False, sections=("length", "net-area"), blank=_LENGTHS,
+                   checks=("compression", "bearing"), plies=False, sections=("length", "net-area"), blank=_LENGTHS,
                    refuses=_BEAM_ONLY),
         MemberType("bending", "bending member", "bending.ipynb", "bending", axial=None, bends=True,
                    checks=("bending", "shear", "bearing", *_DEFLECTIONS), plies=True,
-                   sections=("span", "forces", "diagram", "serviceability"), blank=held_edge),
+                   sections=("span", "forces", "diagram", "serviceability"), requires=edge, blank=_LENGTHS),
         MemberType("beam-column", "beam-column (axial compression with bending)", "combined.ipynb", "combined",
                    axial="compression", bends=True, checks=("compression", "bending", "shear", "interaction",
-                                                            *_DEFLECTIONS),
-                   plies=False, sections=("span", "length"), blank=free_edge, refuses=_BEAM_ONLY),
+                                                            "bearing", *_DEFLECTIONS),
+                   plies=False, sections=("span", "length"), requires=edge, blank=_LENGTHS, refuses=_BEAM_ONLY),
         MemberType("tension-bending", "tension member with bending", "combined.ipynb", "combined",
                    axial="tension", bends=True, checks=("tension", "bending", "shear", "interaction", *_DEFLECTIONS),
-                   plies=True, sections=("span", "length"), blank=free_edge, refuses=_BEAM_ONLY),
+                   plies=True, sections=("span", "length"), requires=edge, blank=_LENGTHS, refuses=_BEAM_ONLY),
     ]
     return {t.name: t for t in types}
 

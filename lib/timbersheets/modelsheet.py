@@ -9,7 +9,7 @@ from __future__ import annotations
 from .beamdesign import geometry_of, loads_of, model_of, reactions_by_type
 from .beammodel import PATTERNED, library
 from .beampattern import Combined
-from .calc import format_number
+from .calc import format_metres, format_number
 from .sheets import Block, heading, para, q, table
 from .tex import Cell, Table, escape
 
@@ -27,9 +27,9 @@ def geometry_rows(m) -> list[list[object]]:
     g = geometry_of(m)
     spans = " + ".join(f"{s / 1000:g}" for s in g.spans)
     kind = "continuous over the interior supports" if len(g.spans) > 1 else "one span"
-    over = "; ".join(f"{side} overhang {v / 1000:g} m" for side, v in (("left", g.left), ("right", g.right)) if v)
+    over = "; ".join(f"{side} overhang {format_metres(v)} m" for side, v in (("left", g.left), ("right", g.right)) if v)
     text = f"spans {spans} m between support centres, {kind}" + (f"; {over}" if over else "") + \
-        f"; total length {g.length / 1000:g} m"
+        f"; total length {format_metres(g.length)} m"
     supports = ", ".join(f"R{j + 1} at {_m(s)} m" for j, s in enumerate(g.supports))
     return [["Geometry", escape(text)],
             ["Supports", escape(f"{supports} from the left end; held in position and against rotation about the "

@@ -21,8 +21,10 @@ from . import beamloads
 from .csvtext import cell_problem, clean, physical_lines, split_records
 from .errors import JobError, ParameterError, ScheduleError
 from .labels import label_problem
-from .membertypes import member_type, member_types
+from .loads import KD_OVERRIDE_RANGE
 from .materials import GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, sawn_table_grade
+from .membertypes import member_type, member_types
+from .rowrules import bearing_errors, lateral_support_errors
 from .sections import Section, parse_size, sawn_category
 from .units import UnitParseError, convert, example, parse_quantity
 
@@ -103,11 +105,25 @@ def _columns() -> tuple[Column, ...]:
                meaning="unbraced length about the strong (x) axis; 0 = braced over the length", blank="length"),
         Column("Ly", "quantity", "m", "mm", minimum=0, maximum=60,
                meaning="unbraced length about the weak (y) axis; 0 = braced (e.g. by sheathing)", blank="length"),
-        Column("Lu", "quantity", "m", "mm", default=0.0, minimum=0, maximum=60,
-               meaning="laterally unsupported length of the compression edge (0 = held continuously by decking or joists)",
-               blank="0 on a bending member; length on a beam-column or tension-bending member"),
+        # required for the bending types (checked across cells): lateral support is never assumed
+        Column("Lu", "quantity", "m", "mm", minimum=0, maximum=60,
+               meaning="laterally unsupported length of the top (compression) edge: 0 when decking, sheathing or "
+                       "joists fixed to it hold it continuously, else the distance between lateral supports",
+               blank="required for bending, beam-column and tension-bending (row error: never assumed braced)"),
+        Column("Lu_bottom", "quantity", "m", "mm", minimum=0, maximum=60,
+               meaning="unsupported length of the bottom edge, in compression when the moment reverses (uplift, "
+                       "hogging, wind suction)",
+               blank="the full length between supports (said on the sheet); 0 with restraint = both-edges"),
         Column("restraint", "choice", choices=("purlins", "blocking", "both-edges"),
-               meaning="lateral bracing beyond what Lu says: purlins, bridging or blocking at 8d, or both edges held"),
+               meaning="lateral bracing beyond what Lu says: purlins (top edge held at the purlins, Lu = their "
+                       "spacing), blocking (Lu = 0 plus bridging or blocking at 8d), both-edges (Lu = Lu_bottom = 0)"),
+        Column("bears_on", "text",
+               meaning="what a column or post bears on: sawn <species> <grade>, glulam <species> <grade>, steel, "
+                       "concrete (timber: compression perpendicular to grain checked in the support)",
+               blank="none: the sheet and results warn that bearing on the support was not checked"),
+        Column("bearing_width", "quantity", "mm", "mm", minimum=0, strict=True,
+               meaning="width of a beam's bearing where the support is narrower than the beam",
+               blank="the member width"),
         Column("net_area", "number", default=1.0, minimum=0, strict=True,
                meaning="A_n / A_g at the worst cross-section (holes, notches)"),
         Column("bearing", "quantity", "mm", "mm", minimum=0, strict=True, maximum=2000,
@@ -148,7 +164,16 @@ def _columns() -> tuple[Column, ...]:
         Column("defl_total", "number", default=240.0, minimum=120, maximum=2000,
                meaning="total-load deflection limit as a span divisor (240 = L/240)"),
         Column("K_D", "number", minimum=0, strict=True,
-               meaning="override of the load-duration factor, marked on the sheet", blank="computed per combination"),
+               meaning="override of the load-duration factor, 0.65 to 1.15; never raises the dead-only combination; "
+                       "marked on the sheet", blank="computed per combination"),
+        Column("live_use", "choice", default="general", choices=("general", "storage"),
+               meaning="general, or storage (storage, equipment and service areas): companion 0.5L becomes 1.0L "
+                       "(NBC note) and live load is long-term in K_D (O86 Table 5.1)"),
+        Column("self_weight", "choice", default="yes", choices=("yes", "no"),
+               meaning="yes: the tool adds the member's own weight to D from the density data; no: the given D "
+                       "includes it"),
+        Column("wind_sense", "choice", default="both", choices=("both", "one-way"),
+               meaning="both: wind and earthquake checked in both senses; one-way: only in the sense the row gives"),
         # sizing constraints, common practice: no glulam is wider than 365 mm or deeper than 2.5 m
         Column("width", "quantity", "mm", "mm", minimum=0, strict=True, maximum=365,
                meaning="sizing constraint for size = auto: a fixed width"),
@@ -625,20 +650,34 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str], data)
     beam_errors = beamloads.row_errors(file, row, v, given)
     if beam_errors:
         return errs + beam_errors
-    if v["length"] is None:
-        return errs + _type_rules(file, row, v, given)
-    for name in ("Lx", "Ly", "Lu"):
+    for name in ("Lx", "Ly", "Lu", "Lu_bottom"):
+        if v["length"] is None:  # a beam given by its spans alone has no one length to compare with
+            break
         if v[name] is not None and v[name] > v["length"] * (1 + 1e-9) and name in given:
             errs.append(ScheduleError(file, row, name, f"{v[name] / 1000:g} m", f"is longer than the member (length {v['length'] / 1000:g} m)",
                                       f"at most the length, {v['length'] / 1000:g} m"))
     errs += _type_rules(file, row, v, given)
+    errs += lateral_support_errors(file, row, v)
+    errs += bearing_errors(file, row, v, data)
+    low, high = KD_OVERRIDE_RANGE
+    if v["K_D"] is not None and not low <= v["K_D"] <= high:
+        errs.append(ScheduleError(file, row, "K_D", f"{v['K_D']:g}", "is outside the load-duration factors of "
+                                  f"O86 Table 5.1 ({low:g} long term to {high:g} short term)",
+                                  f"{low:g} to {high:g}, or blank to compute K_D per combination"))
     return errs
+
+
+#: Why a column a type requires matters, and what to write in it.
+REQUIRED_WHY = {"Lu": " to say how its compression edge is held (lateral support is never assumed)"}
+REQUIRED_HINT = {"Lu": "0 when decking, sheathing or joists fixed to it hold the compression edge continuously; "
+                       "else the distance between lateral supports in m (the length when nothing braces it)"}
 
 
 def _type_rules(file: str, row: int, v: dict[str, Any], given: set[str]) -> list[ScheduleError]:
     """The member type's own rules: columns it requires or refuses, and what its blank lengths mean."""
     kind = member_type(v["type"])
-    errs = [ScheduleError(file, row, name, "", f"is blank, but a {kind.name} member needs it", _allowed(COLUMNS[name]))
+    errs = [ScheduleError(file, row, name, "", f"is blank, but a {kind.name} member needs it"
+                          f"{REQUIRED_WHY.get(name, '')}", REQUIRED_HINT.get(name, _allowed(COLUMNS[name])))
             for name in kind.requires if name not in given]
     errs += [ScheduleError(file, row, name, _shown(COLUMNS[name], v[name]), f"does not apply to a {kind.name} member",
                            "leave it blank") for name in kind.refuses if name in given]
@@ -662,7 +701,7 @@ def _size_checks(file: str, row: int, v: dict[str, Any], data) -> list[ScheduleE
         widths = data.glulam_widths
         lam, min_depth = data.lamination
         if b not in widths:
-            return [ScheduleError(file, row, "size", text, f"has a width that is not a standard glulam width",
+            return [ScheduleError(file, row, "size", text, "has a width that is not a standard glulam width",
                                   f"widths {', '.join(f'{w:g}' for w in widths)} mm")]
         if d < min_depth:
             return [ScheduleError(file, row, "size", text, f"is shallower than the least glulam depth ({min_depth:g} mm)",

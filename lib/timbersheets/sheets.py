@@ -18,7 +18,7 @@ from .checks import CheckResult
 from .constants import CAUTION, RESULT_MIME
 from .data import DataSet
 from .design import MemberDesign, design_member, effects_of
-from .loads import EFFECT_UNITS, LOAD_TYPES, kd_permanent
+from .loads import EFFECT_UNITS, EFFECTS, KD_SYMBOLS, LOAD_TYPES, kd_permanent
 from .membertypes import MemberType, member_type
 from .schedule import Member
 from .symbols import ACTION_WORDS, meaning, symbol_latex, symbol_unit
@@ -176,8 +176,8 @@ class Sheet:
 
     # 2 -------------------------------------------------------------------------
     def present_effects(self) -> list[str]:
-        m = self.m
-        return effects_of(m).present()
+        ctx = self.design.context
+        return effects_of(ctx.member if ctx else self.m).present()  # with the own weight the tool adds
 
     def loads_section(self) -> Block:
         m = self.m
@@ -189,21 +189,49 @@ class Sheet:
 
         specified = effects_of(m)
         for t in LOAD_TYPES:
-            if not any(specified.get(e, t) for e in effects):
-                continue
-            rows.append([LOAD_NAMES[t], Cell.math(t), *[q(specified.get(e, t), EFFECT_UNITS[e]) for e in effects],
-                         DURATION_CLASS[t] + " term"])
+            if any(specified.get(e, t) for e in effects):
+                rows.append([LOAD_NAMES[t], Cell.math(t), *[q(specified.get(e, t), EFFECT_UNITS[e]) for e in effects],
+                             DURATION_CLASS[t] + " term"])
+            if t == "D":
+                rows += self.own_weight_rows(effects)
         sense = ("Line loads act downward on the span, negative values upward (uplift); moments and shears are "
                  "the frame model's, by load type." if self.kind.axial is None else
                  "Positive axial force acts in the member's own sense (tension for a tension member, compression "
                  "otherwise).")
-        intro = para("Specified loads from the schedule, including importance factors and the member's own "
-                     "weight (the tool adds none), by load type (NBC "
-                     f"{escape(self.codes.get('nbc', '2020'))} Part 4). {sense}")
+        weight = self.design.context.own_weight if self.design.context else None
+        own = ("The tool adds the member's own weight to the dead load D, as its own line (worked below); "
+               "every combination's D includes it." if weight else
+               "The schedule's dead load includes the member's own weight (self_weight = no); the tool adds none.")
+        intro = para("Specified loads from the schedule, including importance factors, by load type (NBC "
+                     f"{escape(self.codes.get('nbc', '2020'))} Part 4). {escape(own)} {sense}")
         from .modelsheet import loads_block
 
-        return (heading("Specified loads") + intro + table(Table(header, rows, "ll" + "r" * len(effects) + "l", units))
-                + loads_block(m))
+        out = heading("Specified loads") + intro + table(Table(header, rows, "ll" + "r" * len(effects) + "l", units))
+        return out + self.own_weight_block(weight) + loads_block(m)
+
+    def own_weight_rows(self, effects: list[str]) -> list[list[object]]:
+        weight = self.design.context.own_weight if self.design.context else None
+        if weight is None or weight.effect not in effects:
+            return []
+        cells = [q(weight.value, EFFECT_UNITS[e]) if e == weight.effect else "" for e in effects]
+        return [["Own weight (in D)", Cell.math("D"), *cells, "long term"]]
+
+    def own_weight_block(self, weight) -> Block:
+        if weight is None:
+            return Block("", "")
+        from .ownweight import own_weight_line, own_weight_total
+
+        d = weight.density
+        where = ("a uniform line load on the span" if weight.effect == "w" else
+                 "axial load at the base: the whole weight, on the safe side of the weight above the critical section")
+        out = para(f"Own weight, as {escape(where)}; density $\\rho$ of {escape(self.m.material)} "
+                   f"{escape(self.m.species)} in {escape(self.m.service)} service from densities.csv "
+                   f"({escape(d.table or 'table number not recorded')}; {escape(d.source)}; {escape(d.status)}); "
+                   "$g$ = 9.81 N/kg:")
+        out += math_block(own_weight_line.latex(weight.line))
+        if weight.total is not None:
+            out += math_block(own_weight_total.latex(weight.total))
+        return out
 
     # 3 -------------------------------------------------------------------------
     def combinations_section(self) -> Block:
@@ -220,16 +248,35 @@ class Sheet:
                      "numbered as its cases, "
                      "each principal load with and without its companion loads; 0.9D only where a load acts "
                      "against the dead load; combinations that repeat another are left out. "
-                     "$K_D$ by the duration class of the principal load (CSA O86:19 5.3.2, Table 5.1).",
-                     "ULS load combinations of NBC Table 4.1.3.2.-A; K_D by the principal load (CSA O86 5.3.2).")
+                     "$K_D$ by the duration class of the principal load (CSA O86-14 5.3.2, Table 5.1), one value "
+                     "for every resistance of the combination. In a live- or snow-principal combination, each "
+                     "effect that carries live or snow load is tested by 5.3.2.3 and the lowest value is used; an "
+                     "effect from dead load alone is checked long-term in the dead-only combination (1.4D with "
+                     "0.65 is the more severe case).",
+                     "ULS load combinations of NBC Table 4.1.3.2.-A; K_D by the principal load (CSA O86 5.3.2), one "
+                     "value per combination.")
+        if self.m.live_use == "storage" and any(self.m.values[f"{e}_L"] for e in EFFECTS):
+            storage = ("Storage live load (live_use = storage): every companion 0.5L is raised to 1.0L (the NBC "
+                       "4.1.3.2 note on storage areas, equipment areas and service rooms; recorded from memory), and "
+                       "the live load is long-term load in K_D, as O86 Table 5.1 classes storage loads: 0.65 where L "
+                       "is the principal load, and L counted in the long-term part X_lt elsewhere.")
+            intro += para(escape(storage), storage)
+        if any(self.m.values[f"{e}_{t}"] for e in EFFECTS for t in ("W", "E")):
+            senses = ("Wind and earthquake act in both senses (wind_sense = both): every combination with W or E "
+                      "is applied as the schedule gives the load (+) and reversed (−), with 0.9D where the reversed "
+                      "load opposes the dead load." if self.m.wind_sense != "one-way" else
+                      "Wind and earthquake act only in the sense the schedule gives (wind_sense = one-way).")
+            intro += para(escape(senses), senses)
         out = heading("Load combinations") + intro + table(
             Table(header, rows, "rl" + "r" * len(effects) + "rX", units))
         for case in d.cases:
             if case.kd_values:
                 unit = EFFECT_UNITS[case.kd_effect]
-                latex = kd_permanent.latex(case.kd_values, units={"P_L": unit, "P_S": unit})
+                latex = kd_permanent.latex(case.kd_values, units={"X_lt": unit, "X_st": unit})
+                words = "; ".join(f"${symbol_latex(k)}$ is {v}" for k, v in KD_SYMBOLS.items())
                 out += para(f"For {escape(case.label)} the long-term (dead) part exceeds the standard-term part, "
-                            f"so (CSA O86:19 5.3.2.3, on ${case.kd_effect}$):")
+                            f"so (CSA O86-14 5.3.2.3, on ${case.kd_effect}$; {words}; O86's own letters for "
+                            "these are those of the schedule's live and snow load columns, hence new names):")
                 out += math_block(latex)
         if self.kind.shows("forces"):
             from .beamsheet import forces_block
@@ -291,16 +338,20 @@ class Sheet:
 
     def _check_block(self, name: str, gov: CheckResult, all_cases: list[CheckResult]) -> Block:
         out = heading(f"{ACTION_WORDS.get(name, name)} ({gov.clause})", 2)
-        kd = ("specified loads; $K_D$ does not apply to stiffness" if serviceability(gov)
-              else f"$K_D = {format_number(gov.K_D)}$")
-        at = f" at {escape(gov.where)}" if gov.where else ""
-        out += para(f"Shown in full for the governing combination {escape(gov.combination)}{at} "
-                    f"({kd}); every combination is listed after.")
-        for step in gov.steps:
-            if step.caption:
-                out += para(f"\\emph{{{caption_latex(step.caption)}}}", f"*{md_escape(step.caption)}*")
-            out += math_block(step.latex())
-        out += math_block(self._utilization_latex(gov))
+        shown = branches(name, all_cases)
+        for result in shown:
+            kd = ("specified loads; $K_D$ does not apply to stiffness" if serviceability(result)
+                  else f"$K_D = {format_number(result.K_D)}$")
+            branch = (("Negative moment (bottom edge in compression)" if result.demand < 0 else
+                       "Positive moment (top edge in compression)") + ", shown in full for the combination that "
+                      "governs it" if len(shown) > 1 else "Shown in full for the governing combination")
+            at = f" at {escape(result.where)}" if result.where else ""
+            out += para(f"{branch} {escape(result.combination)}{at} ({kd}); every combination is listed after.")
+            for step in result.steps:
+                if step.caption:
+                    out += para(f"\\emph{{{caption_latex(step.caption)}}}", f"*{md_escape(step.caption)}*")
+                out += math_block(step.latex())
+            out += math_block(self._utilization_latex(result))
         unit = gov.unit
         header = ["Combination", Cell.math("K_D"), Cell.math(gov.demand_symbol_latex),
                   Cell.math(gov.resistance_symbol_latex), "Utilization"]
@@ -369,11 +420,21 @@ class Sheet:
         listing, md = extra + listing, extra_md + md
         codes = (f" Designed to CSA O86:{escape(self.codes.get('o86', '2019'))[-2:]} with loads combined per "
                  f"NBC {escape(self.codes.get('nbc', '2020'))} Part 4.")
-        clauses = (" Clause numbers follow the O86-14 numbering, believed unchanged in O86:19 (memory, unverified).")
+        clauses = (" The methods, clause numbers and tables used here follow CSA O86-14 (each data value names "
+                   "its edition); where O86:19 is known to have revised one of them, it is listed below.")
         notes = ""
+        from .edition import revision_notes
+
+        revised = revision_notes(self.design)
+        if revised:
+            items = "".join(f"\\item {caption_latex(r)}\n" for r in revised)
+            notes += ("\\par\\smallskip Earlier (O86-14) forms used where O86:19 revised the clause; verify them:\n"
+                      f"\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n")
+            md += "\n\nEarlier (O86-14) forms used where O86:19 revised the clause:\n" + "".join(
+                f"- {md_escape(r)}\n" for r in revised)
         if self.design.warnings:
             items = "".join(f"\\item {caption_latex(w)}\n" for w in self.design.warnings)
-            notes = f"\\par\\smallskip Notes on this member:\n\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n"
+            notes += f"\\par\\smallskip Notes on this member:\n\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n"
             md += "\n\nNotes:\n" + "".join(f"- {md_escape(w)}\n" for w in self.design.warnings)
         return Block(f"\\begin{{cautionbox}}\n{escape(CAUTION)}{codes}{escape(clauses)}{escape(source)}\n{notes}"
                      f"{listing}\\end{{cautionbox}}\n",
@@ -429,11 +490,20 @@ def entered_cell(m: Member) -> Cell:
         shown, shown_unit = to_display(m.values[name], unit)
         text.append(f"{name} {written} = {format_number(shown, shown_unit)} {unit_text(shown_unit)}")
     return Cell("; ".join(latex), md_escape("; ".join(text)))
+def branches(name: str, results: list[CheckResult]) -> list[CheckResult]:
+    """The results a sheet works in full: the governing one of each branch of the check.
+
+    Bending has two branches, positive and negative moment (top or bottom edge in compression, with its
+    own f_b and L_u); each that occurs is shown for the combination that governs it, worst first."""
+    if name != "bending":
+        return [max(results, key=lambda c: c.utilization)]
+    groups = [[c for c in results if (c.demand < 0) == negative] for negative in (False, True)]
+    return sorted((max(g, key=lambda c: c.utilization) for g in groups if g), key=lambda c: -c.utilization)
 
 
 def basis_cell(basis: str) -> Cell:
     """The K_D basis with its symbols set as maths."""
-    latex = escape(basis).replace(r"P\_L \textgreater{} P\_S", "$P_L > P_S$")
+    latex = escape(basis).replace(r"X\_lt \textgreater{} X\_st", "$X_{lt} > X_{st}$")
     return Cell(latex, md_escape(basis))
 
 

@@ -14,7 +14,6 @@ from dataclasses import dataclass, field
 
 from .data import DataSet
 from .errors import DesignError, TimbersheetsError
-from .loads import apply_combinations
 from .materials import sawn_table_grade
 from .membertypes import member_type
 from .schedule import Member
@@ -101,8 +100,12 @@ def evaluate(member: Member, data: DataSet, section: Section, cases, design) -> 
     """The governing utilization of `member` with `section` (fast path, no rendering)."""
     from .design import build_context
 
+    from .design import load_cases
+
     try:
         ctx = build_context(member, data, section)
+        if ctx.own_weight is not None:  # the weight, and so the combinations, change with the section
+            cases = load_cases(ctx.member, data, [])
         checks = design(ctx, cases)
     except DesignError as exc:
         return Candidate(section, math.inf, exc.problem)
@@ -134,10 +137,10 @@ def size(member: Member, data: DataSet, design) -> Sizing:
     passing sections in order of area: with a preference, the lighter ones it
     passed over come first, then the next heavier ones.
     """
-    from .design import effects_of
+    from .design import load_cases
 
     try:
-        cases = apply_combinations(effects_of(member), data, [], member.K_D)
+        cases = load_cases(member, data, [])
     except TimbersheetsError as exc:
         raise DesignError(member.mark, f"cannot be sized: {exc}") from None
     sections = catalogue(member, data)

@@ -43,6 +43,8 @@ DISPLAY_UNITS = {
     "N": "kN",
     "N*mm": "kN*m",
     "N/mm": "kN/m",
+    "N/mm**3": "kN/m**3",
+    "kg/mm**3": "kg/m**3",
 }
 
 _NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"

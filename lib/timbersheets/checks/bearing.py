@@ -1,5 +1,5 @@
 """Bearing: compression perpendicular to grain at the supports
-(CSA O86:19 6.5.7 sawn, 7.5.9 glulam).
+(CSA O86-14 6.5.7 sawn, 7.5.9 glulam).
 
 Sawn:   Q_r = φ F_cp A_b K_B K_Zcp,  F_cp = f_cp (K_D K_Scp K_T)   [form: S1]
 Glulam: Q_r = φ F_cp A_b K_B
@@ -18,8 +18,8 @@ from ..analysis import SPAN_CLAUSE
 from ..calc import calc, format_number
 from . import Step, result
 
-SAWN_CLAUSE = "O86:19 6.5.7"
-GLULAM_CLAUSE = "O86:19 7.5.9"
+SAWN_CLAUSE = "O86-14 6.5.7"
+GLULAM_CLAUSE = "O86-14 7.5.9"
 END_BEARING_K_B = 1.0  # K_B does not apply at the end of a member (bearing < 75 mm from the end)
 
 _UNITS = {"f_cp": "MPa", "K_D": "", "K_Scp": "", "K_T": "", "F_cp": "MPa", "phi": "", "b": "mm", "l_b": "mm",
@@ -50,7 +50,13 @@ def glulam_bearing(f_cp, K_D, K_Scp, K_T, phi, b, l_b, K_B):
 
 def check_bearing(m, forces, line_loads: bool):
     """Bearing resistance at each support against the reaction, or None (no bearing given, or uplift)."""
-    if m.member.bearing is None or forces.R_f <= 0:
+    if m.member.bearing is None:
+        note = ("bearing at the supports not checked: the row gives no bearing length (column 'bearing'); give it "
+                "to check compression perpendicular to grain")
+        if note not in m.notes:
+            m.notes.append(note)
+        return None
+    if forces.R_f <= 0:
         return None
     model = getattr(forces, "where", "")
     if not line_loads and not model:
@@ -60,10 +66,13 @@ def check_bearing(m, forces, line_loads: bool):
             m.notes.append(note)
         return None
     case, s = forces.case, m.section
+    width = m.member.bearing_width or s.b
     common = dict(f_cp=m.f["f_cp"], K_D=case.K_D, K_Scp=m.K_S["K_Scp"], K_T=m.K_T, phi=m.phi["bearing"],
-                  b=s.b, l_b=m.member.bearing, K_B=END_BEARING_K_B)
+                  b=width, l_b=m.member.bearing, K_B=END_BEARING_K_B)
     words = ("K_B = 1.0: the supports are at the member's ends, and K_B applies only to bearings at least 75 mm "
              "from the end")
+    if m.member.bearing_width:
+        words += f"; b = {width:g} mm, the bearing width the row gives (narrower than the member)"
     if m.glulam:
         values = glulam_bearing(**common)
         calc_, clause = glulam_bearing, GLULAM_CLAUSE
@@ -83,3 +92,50 @@ def check_bearing(m, forces, line_loads: bool):
         steps = [Step(udl_reaction, udl_reaction(w_f=forces.w_f, L=m.length), "Factored reaction at each support"),
                  Step(calc_, values, words)]
     return result("bearing", case, forces.R_f, values["Q_r"], "N", clause, tuple(steps), "Q_f", "Q_r")
+
+
+@calc(units={"f_cp": "MPa", "K_D": "", "K_Scp": "", "F_cp": "MPa", "phi": "", "b": "mm", "d": "mm", "A_b": "mm**2",
+             "K_B": "", "K_Zcp": "", "Q_r": "N"}, clause=SAWN_CLAUSE)
+def support_bearing(f_cp, K_D, K_Scp, phi, b, d, K_B, K_Zcp):
+    F_cp = f_cp * (K_D * K_Scp)
+    A_b = b * d
+    Q_r = phi * F_cp * A_b * K_B * K_Zcp
+    return locals()
+
+
+def check_support_bearing(m, case, P_f: float):
+    """Compression perpendicular to grain in the timber a column bears on (`bears_on`), or None.
+
+    The support's size is not in the schedule, so the factors that depend on it take their least value:
+    f_cp the lowest of the size categories, K_Scp the lower of them, K_B = 1.0 and K_Zcp = 1.0. The
+    bearing area is the column's end, b × d. A blank bears_on, steel or concrete leave a note instead."""
+    from ..materials import parse_support, support_f_cp
+
+    text = m.member.bears_on
+    if not text:
+        note = ("bearing on the support was not checked: the row does not say what the column bears on (give "
+                "bears_on: the supporting timber as 'sawn|glulam <species> <grade>', or steel, concrete)")
+    elif text in ("steel", "concrete"):
+        note = (f"the column bears on {text}: the bearing resistance of the {text} support (plate or bearing "
+                "area) is outside this tool and must be checked to its own standard")
+    else:
+        note = ""
+    if note:
+        if note not in m.notes:
+            m.notes.append(note)
+        return None
+    material, species, grade = parse_support(text)
+    f_cp = support_f_cp(m.data, material, species, grade)
+    categories = ("all",) if material == "glulam" else ("small", "timber")
+    k_scp = min((m.data.service_factor(material, c, "K_Scp", m.member.service) for c in categories),
+                key=lambda d: d.value)
+    m.used += [f_cp, k_scp]
+    s = m.section
+    values = support_bearing(f_cp=f_cp.value, K_D=case.K_D, K_Scp=k_scp.value, phi=m.phi["bearing"], b=s.b, d=s.d,
+                             K_B=END_BEARING_K_B, K_Zcp=1.0)
+    words = (f"Bearing of the column end on the {text} support: f_cp of the support (the lowest of its size "
+             "categories, its size not being given); A_b the column end, b × d; K_B = 1.0 and K_Zcp = 1.0, the "
+             "least values, since where the column sits on the support and the support's size are not given; "
+             "the support untreated (K_T = 1.0)")
+    return result("bearing", case, P_f, values["Q_r"], "N", GLULAM_CLAUSE if material == "glulam" else SAWN_CLAUSE,
+                  (Step(support_bearing, values, words),), "P_f", "Q_r")

@@ -1,4 +1,4 @@
-"""Bending moment resistance with lateral stability (CSA O86:19 6.5.4 sawn, 7.5.6 glulam).
+"""Bending moment resistance with lateral stability (CSA O86-14 6.5.4 sawn, 7.5.6 glulam).
 
 Sawn:   M_r = φ F_b S K_Zb K_L,  F_b = f_b (K_D K_H K_Sb K_T).
 Glulam: M_r = the lesser of φ F_b S K_X K_Zbg and φ F_b S K_X K_L, with
@@ -10,10 +10,12 @@ meets the rule for the restraint the row describes (Lu = 0: compression edge
 held by decking or joists; 0 < Lu < span: held at intervals by purlins or tie
 rods; Lu = span: no intermediate support); otherwise K_L is computed from
 C_B = √(L_e d / b²) ≤ 50 with L_e from Lu. Glulam: K_L = 1.0 for Lu = 0,
-computed otherwise. Under negative moment (uplift) the bottom edge is in
-compression; no row describes its restraint, so it is taken as laterally
-unsupported over the whole span. The ends are assumed held in position and
-against rotation at the bearings.
+computed otherwise. Under negative moment (uplift, hogging, suction) the bottom
+edge is in compression and ``Lu_bottom`` gives its unsupported length; blank,
+it is the whole length between supports. ``restraint = purlins`` and
+``blocking`` describe the top edge; ``both-edges`` holds both (Lu = Lu_bottom =
+0). The ends are assumed held in position and against rotation at the
+bearings.
 
 Clause numbers follow the O86-14 numbering (memory, unverified); the K_L and
 K_Zbg forms and the depth-to-width rules are from memory (reference notes
@@ -30,9 +32,9 @@ from ..data import Datum
 from ..errors import DataError, DesignError
 from . import Step, result
 
-SAWN_CLAUSE = "O86:19 6.5.4"
-GLULAM_CLAUSE = "O86:19 7.5.6"
-STABILITY_CLAUSE = {"sawn": "O86:19 6.5.4.2", "glulam": "O86:19 7.5.6.4"}
+SAWN_CLAUSE = "O86-14 6.5.4"
+GLULAM_CLAUSE = "O86-14 7.5.6"
+STABILITY_CLAUSE = {"sawn": "O86-14 6.5.4.2", "glulam": "O86-14 7.5.6.4"}
 CB_MAX = 50.0
 CB_STOCKY = 10.0  # C_B at or below which K_L = 1.0 (O86 6.5.4.2.4)
 
@@ -44,7 +46,7 @@ def bending_strength(f_b, K_D, K_H, K_Sb, K_T):
 
 
 @calc(units={"K_Le": "", "L_u": "mm", "d": "mm", "b": "mm", "E_05": "MPa", "K_SE": "", "K_T": "", "F_b": "MPa",
-             "L_e": "mm", "C_B": "", "C_K": ""}, clause="O86:19 6.5.4.2")
+             "L_e": "mm", "C_B": "", "C_K": ""}, clause="O86-14 6.5.4.2")
 def lateral_slenderness(K_Le, L_u, d, b, E_05, K_SE, K_T, F_b):
     L_e = K_Le * L_u
     C_B = sqrt(L_e * d / b**2)
@@ -52,13 +54,13 @@ def lateral_slenderness(K_Le, L_u, d, b, E_05, K_SE, K_T, F_b):
     return locals()
 
 
-@calc(units={"C_B": "", "C_K": "", "K_L": ""}, clause="O86:19 6.5.4.2")
+@calc(units={"C_B": "", "C_K": "", "K_L": ""}, clause="O86-14 6.5.4.2")
 def lateral_intermediate(C_B, C_K):
     K_L = 1 - 1 / 3 * (C_B / C_K) ** 4
     return locals()
 
 
-@calc(units={"C_B": "", "E_05": "MPa", "K_SE": "", "K_T": "", "F_b": "MPa", "K_L": ""}, clause="O86:19 6.5.4.2")
+@calc(units={"C_B": "", "E_05": "MPa", "K_SE": "", "K_T": "", "F_b": "MPa", "K_L": ""}, clause="O86-14 6.5.4.2")
 def lateral_slender(C_B, E_05, K_SE, K_T, F_b):
     K_L = 0.65 * E_05 * K_SE * K_T / (C_B**2 * F_b)
     return locals()
@@ -111,24 +113,33 @@ def sawn_size_factors(m) -> tuple[Datum, Datum]:
     except DataError:
         raise DesignError(m.mark, f"the bending and shear size factors K_Zb, K_Zv for {s.ply_b:g} mm thick "
                           "pieces are not in the data tables (only dimension lumber 38-102 mm thick is)",
-                          "O86:19 6.4.5", "Design this timber by hand, or add a verified size-factor table") from None
+                          "O86-14 6.4.5", "Design this timber by hand, or add a verified size-factor table") from None
     kzv = replace(kzb, symbol="K_Zv", label=kzb.label.replace("K_Zb", "K_Zv (as K_Zb)", 1))
     m.used += [kzb, kzv]
     return kzb, kzv
 
 
-def _restraint_rule(m, L_u: float, bottom: bool = False) -> tuple[str, Datum] | None:
+def unsupported_length(member, negative: bool) -> float:
+    """L_u of the edge in compression (mm): Lu for the top edge; under negative moment the bottom edge,
+    Lu_bottom, or the full length between supports when the row leaves it blank (never assumed braced)."""
+    if not negative:
+        return member.Lu
+    return member.length if member.Lu_bottom is None else member.Lu_bottom
+
+
+def _restraint_rule(m, L_u: float, negative: bool) -> tuple[str, Datum] | None:
     """The loosest depth-to-width rule the restraint meets, or None (compute K_L).
 
-    `bottom`: the bottom edge is in compression (negative moment); purlins hold the top edge only.
-    """
+    purlins and blocking describe the top edge; under negative moment only both-edges still applies."""
     ratio = m.section.d / m.section.b
     extra = m.member.values.get("restraint")
+    if negative and extra != "both-edges":
+        extra = None
     if extra == "both-edges":
         actual = "both-edges"
     elif L_u == 0:
         actual = "blocking" if extra == "blocking" else "decking"
-    elif extra == "purlins" and L_u < m.length and not bottom:
+    elif extra == "purlins" and L_u < m.length:
         actual = "purlins"
     else:
         actual = None  # only the d/b ≤ 4 rule, else K_L is computed from L_u
@@ -140,6 +151,28 @@ def _restraint_rule(m, L_u: float, bottom: bool = False) -> tuple[str, Datum] | 
     return None
 
 
+def _restraint_hint(given: str) -> str:
+    """What the row could say instead: only restraints looser than the one it already states."""
+    options = {"decking": "restraint = blocking if there is bridging or blocking at no more than 8d; ",
+               "blocking": ""}.get(given, None)
+    if options is None:
+        return "Use a wider or built-up member"
+    return (f"{options}restraint = both-edges if both edges are held in line; else give the distance between "
+            "lateral supports as Lu to compute K_L, or use a wider or built-up member")
+
+
+def bottom_edge_words(member) -> str:
+    """How the row holds the bottom edge, in words for the sheet."""
+    if member.restraint == "both-edges":
+        return "restraint = both-edges holds it in line (L_u = 0)"
+    if member.Lu_bottom is None:
+        return (f"Lu_bottom is not given, so it is taken as laterally unsupported over the full length between "
+                f"supports, L_u = {format_metres(member.length)} m")
+    if member.Lu_bottom == 0:
+        return "Lu_bottom = 0: held continuously"
+    return f"held at intervals of Lu_bottom = {format_metres(member.Lu_bottom)} m"
+
+
 def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
                       segment: float | None = None) -> tuple[float, list[Step], str]:
     """K_L under one combination, its steps, and the words that explain it.
@@ -147,17 +180,15 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
     `segment` (mm): the unsupported length of the compression edge a beam model gives for this moment.
     """
     s, member = m.section, m.member
-    L_u = segment if segment is not None else m.length if negative else member.Lu
-    edge = ("Negative moment: the bottom edge is in compression and is taken as laterally unsupported over the "
-            "span, L_u = L. " if negative else "")
-    if negative and segment is not None and member.values.get("restraint") == "both-edges":
-        edge = "Negative moment: the bottom edge is in compression. "
-    elif negative and segment is not None:
-        edge = ("Negative moment: the bottom edge is in compression and is taken as laterally unsupported "
-                f"between supports, L_u = {L_u / 1000:g} m. ")
+    L_u = segment if segment is not None else unsupported_length(member, negative)
+    bottom = bottom_edge_words(member)
+    if negative and segment is not None and member.Lu_bottom is None and member.restraint != "both-edges":
+        bottom = (f"Lu_bottom is not given, so it is taken as laterally unsupported between the supports, "
+                  f"L_u = {format_metres(L_u)} m")
+    edge = f"Negative moment: the bottom edge is in compression; {bottom}. " if negative else ""
     ratio = s.d / s.b
     if m.glulam and L_u == 0:
-        return 1.0, [], "Lateral stability: compression edge held continuously (L_u = 0), so K_L = 1.0."
+        return 1.0, [], f"{edge}Lateral stability: compression edge held continuously (L_u = 0), so K_L = 1.0."
     if not m.glulam:
         rule = _restraint_rule(m, L_u, negative)
         if rule is not None:
@@ -173,15 +204,13 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
                      f"limit with {rule[1].label.split(', ', 1)[1]}; the member has {given}, so K_L = 1.0.")
             return 1.0, [], edge + words
         if L_u == 0:
-            given = member.values.get("restraint") or "decking"
+            given = member.values.get("restraint") if not negative or member.restraint == "both-edges" else None
+            given = given or "decking"
             limit = next(d.value for n, d in m.data.lateral_restraints() if n == given)
             words = {"decking": "the compression edge held by decking or joists alone",
                      "blocking": "decking plus bridging or blocking at 8d"}.get(given, "both edges held")
             raise DesignError(m.mark, f"d/b = {ratio:.2f} exceeds {limit:g}, the most the depth-to-width rule "
-                              f"allows with {words}", STABILITY_CLAUSE["sawn"],
-                              "If there is bridging or blocking at no more than 8d, give restraint = blocking; if "
-                              "both edges are held, restraint = both-edges; else give Lu to compute K_L, or use a "
-                              "wider or built-up member")
+                              f"allows with {words}", STABILITY_CLAUSE["sawn"], _restraint_hint(given))
     k_le = m.data.bending_effective_length("simple-udl" if line_loads else "other")
     m.used.append(k_le)
     slender = lateral_slenderness(K_Le=k_le.value, L_u=L_u, d=s.d, b=s.b, E_05=m.f["E05"],
@@ -191,8 +220,12 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
         raise DesignError(m.mark, f"slenderness C_B = {C_B:.1f} exceeds {CB_MAX:g}",
                           STABILITY_CLAUSE["glulam" if m.glulam else "sawn"],
                           "Brace the compression edge (shorter Lu) or choose a wider section")
+    held = ""
+    if m.glulam and member.restraint == "purlins" and not negative:
+        held = ("; restraint = purlins: the compression edge is held at the purlins, so L_u is their spacing (the "
+                "depth-to-width rule is for sawn lumber; glulam computes K_L)")
     steps = [Step(lateral_slenderness, slender, f"{edge}Lateral stability, laterally unsupported length "
-                  f"L_u = {format_metres(L_u)} m ({'uniform load on a simple span' if line_loads else 'any loading'})")]
+                  f"L_u = {format_metres(L_u)} m ({'uniform load on a simple span' if line_loads else 'any loading'}){held}")]
     if C_B <= CB_STOCKY:
         return 1.0, steps, f"C_B = {C_B:.2f} ≤ {CB_STOCKY:g}, so K_L = 1.0."
     if C_B <= C_K:

@@ -1,4 +1,4 @@
-"""Combined axial load and bending (CSA O86:19 6.5.10 / 7.5.12 with compression,
+"""Combined axial load and bending (CSA O86-14 6.5.10 / 7.5.12 with compression,
 6.5.11 / 7.5.13 with tension; clause numbers as O86-14, memory, unverified).
 
 Beam-column (compression with strong-axis bending):
@@ -23,10 +23,10 @@ from ..calc import calc
 from ..errors import DesignError
 from . import Step, result
 
-BEAM_COLUMN_CLAUSE = "O86:19 6.5.10"
-GLULAM_BEAM_COLUMN_CLAUSE = "O86:19 7.5.12"
-TENSION_BENDING_CLAUSE = "O86:19 6.5.11"
-GLULAM_TENSION_BENDING_CLAUSE = "O86:19 7.5.13"
+BEAM_COLUMN_CLAUSE = "O86-14 6.5.10"
+GLULAM_BEAM_COLUMN_CLAUSE = "O86-14 7.5.12"
+TENSION_BENDING_CLAUSE = "O86-14 6.5.11"
+GLULAM_TENSION_BENDING_CLAUSE = "O86-14 7.5.13"
 
 
 @calc(units={"E_05": "MPa", "K_SE": "", "K_T": "", "I_x": "mm**4", "K_e": "", "L_x": "mm", "P_E": "N"},

@@ -1,4 +1,4 @@
-"""Compression parallel to grain with column stability (CSA O86:19 6.5.6 sawn,
+"""Compression parallel to grain with column stability (CSA O86-14 6.5.6 sawn,
 7.5.8 glulam), about the strong (x) and weak (y) axis.
 
 C_c = K_e L / d in the direction of buckling, at most 50; K_C from the
@@ -13,8 +13,8 @@ from ..calc import calc
 from ..errors import DesignError
 from . import Step, result
 
-SAWN_CLAUSE = "O86:19 6.5.6"
-GLULAM_CLAUSE = "O86:19 7.5.8"
+SAWN_CLAUSE = "O86-14 6.5.6"
+GLULAM_CLAUSE = "O86-14 7.5.8"
 CC_MAX = 50.0
 
 _SAWN = {"f_c": "MPa", "K_D": "", "K_H": "", "K_Sc": "", "K_T": "", "F_c": "MPa", "K_e": "",

@@ -1,4 +1,4 @@
-"""Shear resistance (CSA O86:19 6.5.5 sawn, 7.5.7 glulam).
+"""Shear resistance (CSA O86-14 6.5.5 sawn, 7.5.7 glulam).
 
 Sawn:   V_r = φ F_v (2/3) A_n K_Zv,  F_v = f_v (K_D K_H K_Sv K_T).
 Glulam: (a) V_r = φ F_v (2/3) A_n K_N, for members of volume Z under 2.0 m³;
@@ -23,8 +23,8 @@ from ..errors import DesignError
 from . import Step, result
 from .bending import sawn_size_factors
 
-SAWN_CLAUSE = "O86:19 6.5.5"
-GLULAM_CLAUSE = "O86:19 7.5.7"
+SAWN_CLAUSE = "O86-14 6.5.5"
+GLULAM_CLAUSE = "O86-14 7.5.7"
 NO_NOTCH = 1.0  # K_N of a member not notched at its supports
 
 _STRENGTH = {"f_v": "MPa", "K_D": "", "K_H": "", "K_Sv": "", "K_T": "", "F_v": "MPa", "phi": "", "A_n": "mm**2"}

@@ -1,7 +1,7 @@
-"""Tension parallel to grain (CSA O86:19 6.5.9 sawn, 7.5.11 glulam).
+"""Tension parallel to grain (CSA O86-14 6.5.9 sawn, 7.5.11 glulam).
 
-Clause numbers follow the O86-14 numbering, believed unchanged in O86:19
-(memory, unverified).
+Clause numbers follow the O86-14 numbering (memory, unverified); where O86:19
+is known to have revised a clause, the sheet lists it (edition.py).
 """
 
 from __future__ import annotations
@@ -9,8 +9,8 @@ from __future__ import annotations
 from ..calc import calc
 from . import Step, result
 
-SAWN_CLAUSE = "O86:19 6.5.9"
-GLULAM_CLAUSE = "O86:19 7.5.11"
+SAWN_CLAUSE = "O86-14 6.5.9"
+GLULAM_CLAUSE = "O86-14 7.5.11"
 
 
 @calc(units={"f_t": "MPa", "K_D": "", "K_H": "", "K_St": "", "K_T": "", "F_t": "MPa",
