@@ -41,7 +41,7 @@ def test_help_is_specific_to_each_command():
     assert "still designed" in " ".join(run_help.split())  # what --only does to the others
     run_exit = "1 a member fails or has an error"
     assert run_exit in " ".join(run_help.split())
-    for command in ("new", "size", "diff", "review"):
+    for command in ("new", "size", "diff", "review", "columns", "data", "doctor"):
         text = " ".join(cli(command, "--help").stdout.split())
         assert run_exit not in text, command
         assert "Exit status:" in text, command
@@ -56,7 +56,7 @@ def test_outputs_go_by_where_the_job_is_never_by_where_the_command_runs(tmp_path
     elsewhere.mkdir()
     loose = write_job(tmp_path / "jobs" / "loose-job", [member_row("C-1")])
     kept = write_job(tmp_path / "repo" / "calcsheets" / "kept-job", [member_row("C-1")])
-    for job, expected in ((loose, loose / "outputs" / "rev-A"),
+    for job, expected in ((loose, tmp_path / "jobs" / "outputs" / "loose-job" / "rev-A"),
                           (kept, tmp_path / "repo" / "outputs" / "kept-job" / "rev-A")):
         done = cli("run", str(job), "--no-pdf", cwd=elsewhere)
         assert done.returncode == 0, done.stderr

@@ -35,3 +35,4 @@ def test_unloaded_span_diagram_draws_without_warnings():
     with warnings.catch_warnings():
         warnings.simplefilter("error")  # "Attempting to set identical low and high ylims"
         assert shear_moment_png(0.0, 3.0, 0.2)[:4] == b"\x89PNG"
+

@@ -77,3 +77,14 @@ def test_the_checkers_comment_is_on_the_sheet(tmp_path):
                            text=True, check=True).stdout
     assert "Checker’s comment" in sheet  # TeX sets ' as a typographic apostrophe
     assert "RD, 20" in sheet and "revise: Confirm the post base detail" in sheet
+
+
+def test_the_checkers_comment_is_on_the_html_sheet():
+    import nbformat
+
+    from timbersheets.htmlsheet import sheet_html
+
+    block = {"mark": "C-1", "checked": "RD 2026-12-02 (revise)",
+             "review_comment": "RD, 2026-12-02, revise: Confirm the post base detail"}
+    page = sheet_html(nbformat.v4.new_notebook(), block)
+    assert "Checker\u2019s comment" in page and "revise: Confirm the post base detail" in page

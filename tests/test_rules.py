@@ -84,3 +84,14 @@ def test_deflection_has_no_load_duration_factor(tmp_path, data):
     doc = member_json(d)
     assert all(c["K_D"] is None for c in doc["checks"] if c["check"].startswith("deflection"))
     assert all(c["K_D"] is not None for c in doc["checks"] if not c["check"].startswith("deflection"))
+
+
+def test_a_beam_with_wind_says_its_wind_deflection_is_not_checked(tmp_path, data):
+    # Conservative reading: the SLS combinations here are gravity loads only, so a roof purlin with wind
+    # uplift has no wind deflection check, and its sheet must say so (as a beam-column's does).
+    d = design_row(tmp_path, data, **dict(PURLIN, Lu="0", w_W="-0.55"))
+    assert d.status != "error", d.errors
+    assert {c.check for c in d.checks} >= {"deflection-live", "deflection-total"}
+    assert any("deflection under the W line load is not checked" in w for w in d.warnings)
+    quiet = design_row(tmp_path, data, **dict(PURLIN, Lu="0"))
+    assert not any("line load is not checked" in w for w in quiet.warnings)

@@ -10,7 +10,6 @@ from typing import Any
 
 from .fileio import write_atomic
 
-
 DETAIL_LIMIT = 40  # members drawn one bar each; above this the chart summarises
 WORST = 20  # members named in a summary
 MAX_TITLE = 180  # characters of the title drawn: two lines of the figure's width

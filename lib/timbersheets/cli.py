@@ -97,6 +97,13 @@ def _parser() -> argparse.ArgumentParser:
                              "fails or has an error")
     review.add_argument("--out", type=Path, metavar="OUTDIR", help="the folder holding rev-<R>/ (as given to run --out)")
 
+    sub.add_parser("doctor", help="check Python, the package, TeX and the fonts; say how to get what is missing",
+                   description="Check what a run needs: Python, this package and its Jupyter kernel, xelatex with "
+                               "every LaTeX package the sheet layouts load, and their fonts (a one-line test page is "
+                               "typeset). Prints how to get TeX on Windows, macOS and Linux; HTML sheets "
+                               "(run --format html) need no TeX. Changes nothing.",
+                   epilog="Exit status: 0 ready; 1 PDF sheets cannot be made (HTML sheets and results can); "
+                          "2 Python or the package is not usable.")
     columns = sub.add_parser("columns", help="the schedule column reference: meaning, unit, default, allowed values",
                              description="Print every schedule column with its meaning, unit, default and allowed "
                                          "values, from the column table in the code.",
@@ -108,7 +115,8 @@ def _parser() -> argparse.ArgumentParser:
                                       "factors, load combination rows) the job's members use, grouped by table, with "
                                       "its source, status and the members that use it. A firm checks them once, in "
                                       "the file --firm-file writes, and names it in project.toml ([data] materials).",
-                          epilog=EPILOG)
+                          epilog="Exit status: 0 listed; 1 the firm's file (or --compare FILE) has errors; "
+                                 "2 the job is unusable.")
     data.add_argument("dir", type=Path, nargs="?", help="the job folder (not needed with --all or --compare)")
     data.add_argument("--all", action="store_true", help="list every value of the built-in tables instead")
     data.add_argument("--csv", action="store_true", help="write the list as CSV to standard output")
@@ -118,7 +126,8 @@ def _parser() -> argparse.ArgumentParser:
                       help="write a firm data file holding the values the job uses, status to-verify")
     data.add_argument("--compare", type=Path, metavar="FILE",
                       help="list where a firm data file differs from the built-in data")
-    data.add_argument("--out", type=Path, help="with --sheet: the folder for the PDF (default outputs/<job>/)")
+    data.add_argument("--out", type=Path, metavar="OUTDIR",
+                      help="with --sheet: the folder for the PDF (default: where run puts the job's outputs)")
     return p
 
 
@@ -269,7 +278,6 @@ def cmd_review(args: argparse.Namespace) -> int:
                          refuse_unexplained_ok, standing, status, today)
     from .revisions import load_results
     from .runner import job_dir
-    from .schedule import load_schedule
 
     project = load_project(args.dir)
     results = load_results(job_dir(project, args.out) / f"rev-{project.revision}")
@@ -295,14 +303,10 @@ def cmd_review(args: argparse.Namespace) -> int:
     unknown = [m for m in marks if m not in members]
     if unknown:
         raise UsageError(f"not in rev {project.revision}: {', '.join(unknown)}")
-    from .data import DataSet
+    from .job import load_job
 
-    from .loadpath import resolved_members
-
-    data = DataSet(project.materials)
     # the inputs as the run hashed them: with the reactions each member carries
-    current = {mark: m.inputs_hash for mark, m in resolved_members(load_schedule(project.schedule_path, data),
-                                                                    data).items()}
+    current = {mark: m.inputs_hash for mark, m in load_job(args.dir).members().items()}
     stale = [m for m in marks if current.get(m) != members[m].get("inputs_hash")]
     if stale:
         raise UsageError(f"the schedule changed after the last run for {', '.join(stale)}; "
@@ -338,6 +342,10 @@ def cmd_data(args: argparse.Namespace) -> int:
         if data.firm:
             for e in data.firm.errors:
                 print(f"error: {e}", file=sys.stderr)
+        missing = [d.mark for d in designs if d.errors]
+        if missing:
+            print(f"warning: {', '.join(missing)} could not be designed (see timbersheets run); the values they "
+                  "would use are not listed", file=sys.stderr)
     if args.csv:
         sys.stdout.write(csv_text(items))
     elif not (args.firm_file or args.sheet):
@@ -366,8 +374,17 @@ def cmd_columns(args: argparse.Namespace) -> int:
     return ExitCode.OK
 
 
+def cmd_doctor(args: argparse.Namespace) -> int:
+    from .doctor import diagnose, report
+    from .pipeline import templates_dir
+
+    lines, code = report(diagnose(templates_dir()))
+    print("\n".join(lines))
+    return code
+
+
 COMMANDS = {"new": cmd_new, "run": cmd_run, "size": cmd_size, "diff": cmd_diff, "review": cmd_review,
-            "columns": cmd_columns, "data": cmd_data}
+            "columns": cmd_columns, "data": cmd_data, "doctor": cmd_doctor}
 
 
 def main(argv: list[str] | None = None) -> int:

@@ -30,8 +30,9 @@ def refuse_reversal(ctx, cases: list[LoadCase], sense: str) -> None:
                           f"A {sense} member must stay in {sense}; design the reversal as its own member")
 
 
-def _deflections(ctx) -> list[CheckResult]:
-    """Deflection per SLS combination; the SLS combinations hold gravity loads only."""
+def deflections(ctx) -> list[CheckResult]:
+    """Deflection per SLS combination; the SLS combinations hold gravity loads only, and the sheet says
+    so when the member also carries a wind or earthquake line load (any member type that bends)."""
     out = [check_deflection(ctx, sc) for sc in service_cases(ctx.member, ctx.data)]
     lateral = [t for t in ("W", "E") if ctx.member.values[f"w_{t}"]]
     if lateral:
@@ -78,4 +79,4 @@ def design_combined(ctx, cases: list[LoadCase], kind) -> list[CheckResult]:
         missing = "axial force (P_D … P_E)" if not groups[sense] else "bending (w_* or M_*)"
         raise DesignError(ctx.mark, f"carries no {missing} under any combination", "",
                           f"Give it, or design the member as {'bending' if not groups[sense] else sense}")
-    return out + _deflections(ctx)
+    return out + deflections(ctx)

@@ -263,6 +263,13 @@ class DataSet:
     def value_datums(self, datum: Datum) -> list[Datum]:
         """The values a checker ticks for `datum`: itself, the parts of a derived value, or
         each load factor of a combination row."""
+        memo = self.__dict__.setdefault("_values_memo", {})
+        token = (datum.data, datum.key, datum.column, datum.label)
+        if token not in memo:
+            memo[token] = self._value_datums(datum)
+        return memo[token]
+
+    def _value_datums(self, datum: Datum) -> list[Datum]:
         out = []
         for d in datum.tabled():
             spec = TABLES.get(d.data)

@@ -16,12 +16,12 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from .data import TABLES, DataSet, Datum, key_text
-from .design import MemberDesign, design_all
+from .design import MemberDesign
 from .errors import JobError
 from .fileio import spreadsheet_safe, write_atomic
 from .firmdata import HEADER, read_firm
+from .job import job_of
 from .project import Project
-from .schedule import load_schedule
 
 LIST_HEADER = ["table", "data", "key", "column", "species", "grade", "item", "value", "unit", "edition", "source",
                "status", "verified_by", "verified_on", "builtin_value", "members"]
@@ -57,9 +57,8 @@ class Item:
 
 def job_designs(project: Project) -> tuple[DataSet, list[MemberDesign]]:
     """Every member of the job designed (no sheets): what its values are read from."""
-    data = DataSet(project.materials)
-    schedule = load_schedule(project.schedule_path, data)
-    return data, design_all(schedule.entries, data)
+    job = job_of(project)
+    return job.data, job.designs
 
 
 def used_items(data: DataSet, designs: list[MemberDesign]) -> list[Item]:

@@ -7,7 +7,6 @@ tick or corrected value, name, date and the edition checked against.
 
 from __future__ import annotations
 
-import subprocess
 import tempfile
 from pathlib import Path
 
@@ -16,9 +15,10 @@ from .constants import CAUTION, SHORT_CAUTION
 from .data import DataSet
 from .datacheck import Item, counts, groups
 from .fileio import write_atomic
-from .pipeline import XELATEX, ConversionError, templates_dir
+from .pipeline import templates_dir
 from .project import Project
 from .tex import escape
+from .typeset import typeset
 
 MEMBERS_SHOWN = 6
 
@@ -66,13 +66,8 @@ def write_sheet(project: Project, data: DataSet, items: list[Item], folder: Path
     """Typeset the verification sheet into `folder` (written atomically); returns its path."""
     target = folder / f"data-verification-rev-{project.revision}.pdf"
     with tempfile.TemporaryDirectory(prefix="ts-data-") as tmp:
-        work = Path(tmp)
-        (work / "verification.tex").write_text(sheet_tex(project, data, items), encoding="utf-8")
+        work, tex = Path(tmp), sheet_tex(project, data, items)
         for _ in range(2):  # the second pass knows the last page ("sheet n of N")
-            done = subprocess.run([*XELATEX, "verification.tex"], cwd=work, capture_output=True, text=True,
-                                  errors="replace")
-            if done.returncode != 0:
-                tail = "\n".join(ln for ln in done.stdout.splitlines() if ln.startswith("!"))[-1500:]
-                raise ConversionError("data verification sheet", "xelatex could not typeset it", tail)
-        write_atomic(target, (work / "verification.pdf").read_bytes())
+            done = typeset(tex, work, "verification", "data verification sheet")
+        write_atomic(target, done.pdf.read_bytes())
     return target

@@ -12,16 +12,15 @@ import traceback
 from collections.abc import Callable
 from dataclasses import dataclass, field
 
-from .analysis import loading_mode, member_forces, service_cases
+from .analysis import loading_mode, member_forces
 from .beamdesign import design_model, geometry_of, is_model, total_loads
 from .checks import CheckResult
 from .checks.bearing import check_bearing
 from .checks.bending import check_bending
 from .checks.compression import check_compression
-from .checks.deflection import check_deflection
 from .checks.shear import check_shear
 from .checks.tension import check_tension
-from .combined import design_combined, refuse_reversal
+from .combined import deflections, design_combined, refuse_reversal
 from .data import DataSet, Datum, Recorded
 from .errors import DesignError, TimbersheetsError
 from .loads import EFFECTS, LOAD_TYPES, Effects, LoadCase, apply_combinations
@@ -167,7 +166,7 @@ def _bending(ctx: Context, cases: list[LoadCase], kind: MemberType) -> list[Chec
             strength["bearing"].append(bearing)
     out = [c for name in ("bending", "shear", "bearing") for c in strength[name]]
     if any(ctx.member.values[f"w_{t}"] for t in LOAD_TYPES):
-        out += [check_deflection(ctx, sc) for sc in service_cases(ctx.member, ctx.data)]
+        out += deflections(ctx)
     if not out:
         raise DesignError(ctx.mark, "carries no bending moment or shear under any combination")
     return out
@@ -229,7 +228,11 @@ class MemberDesign:
         if self.context is None or self.context.data is None:
             return []
         seen: dict[tuple[str, str, str], Datum] = {}
-        for used in self.data_used:
+        read: set[int] = set()
+        for used in self.data_used:  # the same Datum is recorded each time a check reads it
+            if id(used) in read:
+                continue
+            read.add(id(used))
             for d in self.context.data.value_datums(used):
                 seen.setdefault((d.data, d.key, d.column), d)
         return list(seen.values())

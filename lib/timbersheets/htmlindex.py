@@ -26,8 +26,11 @@ def index_html(project: Project, doc: dict[str, Any], outdir: Path) -> str:
     for m in members:
         counts[m["status"]] += 1
     states = [m.get("review") or {"status": "not-checked"} for m in members]
-    lines = cover_lines(project, counts, count_text(states))
     all_ok = all(standing(state) == "ok" for state in states)
+    lines = cover_lines(project, counts, count_text(states))
+    stale = (doc.get("carried_over") or {}).get("out_of_date") or []
+    stale_text = (f"<p>Removed from this revision as out of date: {html.escape(', '.join(stale))}.</p>"
+                  if stale else "")
     f = {k: html.escape(v) for k, v in project.fields.items()}
     body = []
     for r in rows:
@@ -60,7 +63,8 @@ def index_html(project: Project, doc: dict[str, Any], outdir: Path) -> str:
 </tbody></table>
 <div class="caution"><p class="title">Cautions</p><p>{html.escape(CAUTION)}{unverified_text}</p></div>
 <h2>Index of members</h2>
-<p>{'' if all_ok else text(lines['unchecked'])}</p>
+<p>{text(lines['unchecked']) if not all_ok else ''}</p>
+{stale_text}
 <table><thead><tr><th>Mark</th><th>Description</th><th>Size</th><th>Governing</th><th class="r">Util.</th>
 <th>Verdict</th><th>Checked</th></tr></thead><tbody>
 {chr(10).join(body)}

@@ -39,6 +39,10 @@ def load_job(folder: Path) -> Job:
 
     Raises JobError when the job is unusable.
     """
-    project = load_project(folder)
+    return job_of(load_project(folder))
+
+
+def job_of(project: Project) -> Job:
+    """The job of an already loaded `project` (e.g. one whose data file a command overrides)."""
     data = DataSet(project.materials)
     return Job(project, load_schedule(project.schedule_path, data), data)

@@ -51,10 +51,9 @@ class Carried:
 
 def _current_files(task: SheetTask) -> list[tuple[str, Path]]:
     """Each file a full run would give this member, by path in the revision folder, with its cache file."""
-    files = [(f"notebooks/{task.mark}.ipynb", task.cache / f"{task.exec_key}.ipynb")]
+    files = [(f"notebooks/{task.mark}.ipynb", task.cached_notebook)]
     for fmt in FORMATS:
-        variant = dataclasses.replace(task, fmt=fmt)
-        files.append((f"sheets/{task.mark}.{fmt}", task.cache / f"{variant.sheet_key(task.exec_key)}.{fmt}"))
+        files.append((f"sheets/{task.mark}.{fmt}", dataclasses.replace(task, fmt=fmt).cached_sheet))
     return files
 
 
@@ -73,7 +72,7 @@ def carry_sheets(tasks: list[SheetTask], old: Path, stage: Path, carried: Carrie
 
 def package_key(doc: dict[str, Any], tasks: list[SheetTask]) -> str:
     """What package.pdf depends on: the results (not the time of the run), every PDF sheet, the layout."""
-    sheets = {t.mark: dataclasses.replace(t, fmt="pdf").sheet_key(t.exec_key) for t in tasks}
+    sheets = {t.mark: dataclasses.replace(t, fmt="pdf").sheet_key for t in tasks}
     layout = file_hash(templates_dir() / "latex" / "package" / "package.tex.j2")
     blob = json.dumps({"doc": {k: v for k, v in doc.items() if k != "run_at"}, "sheets": sheets, "layout": layout},
                       sort_keys=True, default=str)

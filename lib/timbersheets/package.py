@@ -11,10 +11,10 @@ Everything comes from the run's results document, so package and results.json ag
 
 from __future__ import annotations
 
+import hashlib
 import os
 import re
 from functools import lru_cache
-import subprocess
 import tempfile
 from pathlib import Path
 from typing import Any
@@ -22,12 +22,14 @@ from typing import Any
 from . import __version__
 from .constants import CAUTION, SHORT_CAUTION
 from .data import DataSet
-from .pipeline import XELATEX, ConversionError, templates_dir
+from .pipeline import library_fingerprint, templates_dir
+from .fileio import copy_atomic
 from .project import Project
 from .review import count_text, standing, titleblock_text
 from .revisions import MemberChange
 from .symbols import ACTION_WORDS
 from .tex import escape
+from .typeset import typeset
 
 VERDICT = {"pass": "passes", "fail": "does not pass", "error": "not designed"}
 VERDICT_TEX = {"pass": "PASSES", "fail": r"\textbf{DOES NOT PASS}", "error": r"\textbf{NOT DESIGNED}"}
@@ -171,17 +173,15 @@ def package_tex(project: Project, doc: dict[str, Any], data: DataSet, outdir: Pa
 
 
 def _typeset(tex: str, work: Path, name: str) -> tuple[Path, str]:
-    (work / f"{name}.tex").write_text(tex, encoding="utf-8")
-    done = subprocess.run([*XELATEX, f"{name}.tex"], cwd=work, capture_output=True, text=True, errors="replace")
-    if done.returncode != 0:
-        tail = "\n".join(ln for ln in done.stdout.splitlines() if ln.startswith("!"))[-1500:]
-        raise ConversionError("package", "xelatex could not typeset the package", tail)
+    done = typeset(tex, work, name, "package")
     aux = work / f"{name}.aux"
-    return work / f"{name}.pdf", aux.read_text(encoding="utf-8", errors="replace") if aux.exists() else ""
+    return done.pdf, aux.read_text(encoding="utf-8", errors="replace") if aux.exists() else ""
 
 
-def _stamps(project: Project, first: int, total: int, work: Path) -> Path:
-    """One page per sheet page, blank but for 'package page k of N' where the sheets leave room."""
+def _stamps(project: Project, first: int, total: int, work: Path, cache: Path | None) -> Path:
+    """One page per sheet page, blank but for 'package page k of N' where the sheets leave room.
+
+    The same pages typeset before are taken from `cache` (a review changes no page number)."""
     stamp = (r"{\footnotesize %s \quad rev %s \quad package page %d of %d}")
     pages = "".join(
         r"\begin{picture}(0,0)\put(548,-776){\makebox(0,0)[r]{" + stamp % (escape(project.fields["number"]),
@@ -189,32 +189,56 @@ def _stamps(project: Project, first: int, total: int, work: Path) -> Path:
     tex = ("\\documentclass[10pt]{article}\n\\usepackage[letterpaper,margin=0pt]{geometry}\n\\usepackage{fontspec}\n"
            "\\pagestyle{empty}\\setlength{\\parindent}{0pt}\\setlength{\\unitlength}{1bp}\n"
            "\\begin{document}\n" + pages + "\\end{document}\n")
-    return _typeset(tex, work, "stamps")[0]
+    cached = cache / f"{hashlib.sha256(tex.encode()).hexdigest()}.pagestamps.pdf" if cache is not None else None
+    if cached is not None and cached.exists():
+        return cached
+    pdf = _typeset(tex, work, "stamps")[0]
+    if cached is not None:
+        copy_atomic(pdf, cached)
+    return pdf
 
 
 FRONT_HINT = ".front-pages"
 
 
+def _package_key(tex: str, outdir: Path, rows: list[dict]) -> str:
+    """What the package is made of: the front matter's source (the staging folder's name left
+    out), the chart, every sheet's bytes and the library (which draws the page stamps)."""
+    digest = hashlib.sha256(tex.replace(outdir.resolve().as_posix(), "").encode())
+    for path in [outdir / "summary.png"] + [Path(r["sheet"]) for r in rows if r["sheet"]]:
+        digest.update(hashlib.sha256(path.read_bytes()).digest() if path.exists() else b"-")
+    digest.update(library_fingerprint().encode())
+    return digest.hexdigest()
+
+
 def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: Path,
                   changes: list[MemberChange], hint: Path | None = None,
-                  pages: dict[str, int] | None = None) -> Path:
+                  pages: dict[str, int] | None = None, cache: Path | None = None) -> Path:
     """package.pdf in `outdir`: front matter typeset, sheets appended and stamped; written atomically.
 
     `hint` is the previous revision folder: its front-matter length is the first
-    guess, which saves a second typesetting of the front matter on a rerun.
+    guess, which saves a second typesetting of the front matter on a rerun. A
+    package made of exactly the same parts before is taken from `cache`.
     """
     import pikepdf
 
     target = outdir / "package.pdf"
     chart = outdir / "summary.png"
     chart_path = chart.resolve().as_posix() if chart.exists() else ""
+    front_pages = 2
+    if hint is not None and (hint / FRONT_HINT).exists():
+        front_pages = int((hint / FRONT_HINT).read_text() or 2)
+    tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
+    cached = cache / f"{_package_key(tex, outdir, rows)}.package.pdf" if cache is not None else None
+    if cached is not None and cached.exists():
+        copy_atomic(cached, target)
+        (outdir / FRONT_HINT).write_text(str(front_pages))
+        return target
     with tempfile.TemporaryDirectory(prefix="ts-pkg-") as tmp:
         work = Path(tmp)
-        front_pages = 2
-        if hint is not None and (hint / FRONT_HINT).exists():
-            front_pages = int((hint / FRONT_HINT).read_text() or 2)
-        for _ in range(4):  # the front matter's length sets the page numbers it prints
-            tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
+        for attempt in range(4):  # the front matter's length sets the page numbers it prints
+            if attempt:
+                tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
             front, aux = _typeset(tex, work, "package")
             with pikepdf.open(front) as typeset:
                 actual = len(typeset.pages)
@@ -229,7 +253,7 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
             for src in sources:
                 package.pages.extend(src.pages)
             if sheets:
-                overlay = pikepdf.open(_stamps(project, front_pages + 1, total, work))
+                overlay = pikepdf.open(_stamps(project, front_pages + 1, total, work, cache))
                 sources.append(overlay)
                 for k, page in enumerate(package.pages[front_pages:]):
                     page.add_overlay(overlay.pages[k])
@@ -252,5 +276,7 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
             for src in sources:
                 src.close()
         os.replace(staged, target)
+    if cached is not None:
+        copy_atomic(target, cached)
     return target
 

@@ -1,4 +1,4 @@
-"""Executing a member's notebook (papermill) and converting it to PDF (nbconvert, xelatex).
+"""Executing a member's notebook (papermill) and converting it to LaTeX or HTML (nbconvert).
 
 Both steps are plain functions of files, so the runner can call them in worker
 processes. A failed execution still leaves the executed notebook, with the
@@ -10,30 +10,14 @@ from __future__ import annotations
 import hashlib
 import importlib.resources
 import os
-import re
-import shutil
-import subprocess
-import tempfile
 from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
 from .constants import SHORT_CAUTION
 from .errors import ParameterError, TimbersheetsError
-from .fileio import copy_atomic, write_atomic
+from .fileio import write_atomic
 from .tex import escape
-
-XELATEX = ["xelatex", "-interaction=nonstopmode", "-halt-on-error", "-no-shell-escape"]
-
-
-class ConversionError(TimbersheetsError):
-    def __init__(self, mark: str, problem: str, log_tail: str = "") -> None:
-        super().__init__(mark, problem, log_tail)
-        self.mark, self.problem, self.log_tail = mark, problem, log_tail
-
-    def __str__(self) -> str:
-        tail = f"\n{self.log_tail}" if self.log_tail else ""
-        return f"{self.mark}: {self.problem}{tail}"
 
 
 def templates_dir() -> Path:
@@ -198,40 +182,16 @@ def execute(template: Path, out: Path, parameters: dict[str, Any], cwd: Path, re
     return error
 
 
-def to_latex(notebook: Path, titleblock: dict[str, str]) -> tuple[str, dict[str, bytes]]:
-    """The sheet's LaTeX source (and images) with the title block set."""
+def to_latex(notebook: Path, titleblock: dict[str, str], unique_key: str = "output") -> tuple[str, dict[str, bytes]]:
+    """The sheet's LaTeX source (and images, their names starting `unique_key`) with the title block set."""
     import nbformat
     from nbconvert import LatexExporter
 
     nb = nbformat.read(str(notebook), as_version=4)
     nb.metadata.setdefault("timbersheets", {})["titleblock"] = {"caution": escape(SHORT_CAUTION), **titleblock}
     exporter = LatexExporter(template_name="sheet", extra_template_basedirs=[str(templates_dir() / "latex")])
-    body, resources = exporter.from_notebook_node(nb)
+    body, resources = exporter.from_notebook_node(nb, resources={"unique_key": unique_key})
     return body, dict(resources.get("outputs", {}))
-
-
-def compile_pdf(tex: str, files: dict[str, bytes], pdf: Path, mark: str, passes: int = 2) -> int:
-    """xelatex `tex` (no shell escape), move the PDF into place atomically; returns its page count."""
-    with tempfile.TemporaryDirectory(prefix="ts-tex-") as tmp:
-        work = Path(tmp)
-        (work / "sheet.tex").write_text(tex, encoding="utf-8")
-        for name, data in files.items():
-            (work / name).write_bytes(data)
-        for _ in range(passes):
-            done = subprocess.run([*XELATEX, "sheet.tex"], cwd=work, capture_output=True, text=True,
-                                  errors="replace")
-            if done.returncode != 0:
-                tail = "\n".join(line for line in done.stdout.splitlines() if line.startswith("!"))[-1500:]
-                raise ConversionError(mark, "xelatex could not typeset the sheet", tail)
-        copy_atomic(work / "sheet.pdf", pdf)
-        written = re.search(r"Output written on sheet\.pdf \((\d+) pages?", done.stdout)
-        return int(written.group(1)) if written else 0
-
-
-def notebook_to_pdf(notebook: Path, pdf: Path, titleblock: dict[str, str], mark: str) -> int:
-    """Convert a member's executed notebook to its PDF sheet; returns the page count."""
-    tex, files = to_latex(notebook, titleblock)
-    return compile_pdf(tex, files, pdf, mark)
 
 
 def to_html(notebook: Path, html: Path, titleblock: dict[str, str]) -> None:

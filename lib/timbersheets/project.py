@@ -13,8 +13,8 @@ from .labels import label_problem
 PROJECT_FIELDS = ("title", "number", "client", "location", "engineer", "designer", "checker", "revision", "date")
 SUPPORTED_CODES = {"nbc": ("2020",), "o86": ("2019",)}
 #: Where a job's outputs go (runner.job_dir), as the README and `run --help` say it.
-OUTPUT_RULE = ("outputs/<job>/ beside the calcsheets/ folder that holds the job; for a job folder anywhere "
-               "else, its own outputs/ subfolder")
+OUTPUT_RULE = ("outputs/<job>/ beside the job folder, or beside calcsheets/ when the job folder is in one "
+               "(as in this repository)")
 MAX_FIELD = 300  # characters in a title-block field
 
 

@@ -17,7 +17,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from .csvtext import cell_problem, clean, split_records
-from .errors import JobError, OutputError
+from .errors import JobError, OutputError, UsageError
 from .fileio import spreadsheet_safe
 
 REVIEW_FILE = "review.csv"
@@ -219,14 +219,14 @@ def refuse_unexplained_ok(verdict: str, comment: str, statuses: dict[str, str]) 
     """An "ok" on a member that fails or has an error needs a comment saying why.
 
     `statuses` maps each mark to be recorded to its status in the run (pass,
-    fail, error). Raises JobError naming the marks.
+    fail, error). Raises UsageError naming the marks.
     """
     if verdict != "ok" or comment.strip():
         return
     bad = [f"{mark} ({state})" for mark, state in statuses.items() if state != "pass"]
     if bad:
-        raise JobError(f"review --verdict ok {', '.join(bad)}", "an ok on a member that does not pass needs a reason",
-                       "Give --comment explaining why it is acceptable, or record --verdict revise")
+        raise UsageError(f"review --verdict ok {', '.join(bad)}: an ok on a member that does not pass needs a "
+                         "reason. Give --comment explaining why it is acceptable, or record --verdict revise")
 
 
 STANDINGS = ("ok", "revise", "stale", "not-checked")

@@ -8,13 +8,10 @@ written to a temporary name and renamed into place.
 from __future__ import annotations
 
 import datetime as dt
-import multiprocessing
 import os
 import re
 import shutil
 import time
-import traceback
-from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -22,10 +19,10 @@ from . import __version__
 from .constants import SHORT_CAUTION
 from .data import DataSet
 from .design import MemberDesign
-from .errors import ExitCode, JobError
+from .errors import ExitCode, UsageError
 from .membertypes import member_types
 from .fileio import copy_atomic, remove_stale_parts, write_atomic
-from .lifetime import die_with_parent, pid_alive
+from .lifetime import pid_alive
 from .keep import Carried, carry_package, carry_sheets, package_key, write_package_key
 from .pipeline import templates_dir
 from .job import load_job
@@ -34,7 +31,7 @@ from .fileio import write_csv
 from .results import member_json, results_doc, write_results
 from .review import comment_text, latest, load_review_file, read_reviews, status, titleblock_text
 from .revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
-from .sheetjobs import SheetOutcome, SheetTask, from_cache, run_sheet
+from .sheetjobs import SheetOutcome, SheetTask, run_sheets
 from .tex import escape
 
 
@@ -80,7 +77,13 @@ class RunReport:
 
     @property
     def converted(self) -> list[str]:
+        """Members whose sheet body was typeset (or HTML sheet written)."""
         return [m for m, s in self.sheets.items() if s.converted]
+
+    @property
+    def stamped(self) -> list[str]:
+        """Members whose title-block stamp was laid on their body."""
+        return [m for m, s in self.sheets.items() if s.stamped]
 
 
 def job_dir(project: Project, out: Path | None) -> Path:
@@ -92,9 +95,8 @@ def job_dir(project: Project, out: Path | None) -> Path:
     if out is not None:
         return out
     folder = project.folder.resolve()
-    if folder.parent.name == "calcsheets":
-        return folder.parent.parent / "outputs" / folder.name
-    return folder / "outputs"
+    beside = folder.parent.parent if folder.parent.name == "calcsheets" else folder.parent
+    return beside / "outputs" / folder.name
 
 
 def revision_dir(project: Project, out: Path | None) -> Path:
@@ -141,50 +143,6 @@ def sheet_tasks(project: Project, designs: list[MemberDesign], data: DataSet, ou
                                outdir / "notebooks" / f"{d.mark}.ipynb", sheet, opts.fmt, opts.force,
                                project.folder.resolve()))
     return tasks
-
-
-def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool) -> dict[str, SheetOutcome]:
-    """Execute and convert every task, `jobs` at a time; a failure stays with its member."""
-    from tqdm import tqdm
-
-    jobs = max(1, jobs or os.cpu_count() or 1)
-    # disable=None: a bar only on a terminal, as with the other command-line tools
-    bar = tqdm(total=len(tasks), desc="sheets", unit="sheet", disable=None if progress else True, leave=False)
-    outcomes: dict[str, SheetOutcome] = {}
-
-    def done(task: SheetTask, outcome: SheetOutcome) -> None:
-        outcomes[task.mark] = outcome
-        bar.set_postfix_str(task.mark, refresh=False)
-        bar.update()
-
-    pending = []
-    for task in tasks:  # unchanged members come straight from the cache, without a worker
-        cached = from_cache(task)
-        if cached is None:
-            pending.append(task)
-        else:
-            done(task, cached)
-    tasks = pending
-
-    if jobs == 1 or len(tasks) <= 1:
-        for task in tasks:
-            done(task, _safe_run(task))
-    else:
-        context = multiprocessing.get_context("spawn")
-        with ProcessPoolExecutor(max_workers=min(jobs, len(tasks)), mp_context=context,
-                                 initializer=die_with_parent) as pool:
-            futures = {pool.submit(_safe_run, t): t for t in tasks}
-            for future, task in futures.items():
-                done(task, future.result())
-    bar.close()
-    return outcomes
-
-
-def _safe_run(task: SheetTask) -> SheetOutcome:
-    try:
-        return run_sheet(task)
-    except Exception as exc:  # a worker failure belongs to its member, not the run  # noqa: BLE001
-        return SheetOutcome(task.mark, error=f"{type(exc).__name__}: {exc}", trace=traceback.format_exc())
 
 
 def cross_check(design: MemberDesign, outcome: SheetOutcome) -> None:
@@ -241,8 +199,8 @@ def check_only(project: Project, entries: list, only: list[str] | None) -> None:
     known = {e.mark for e in entries}
     unknown = [m for m in only or () if m not in known]
     if unknown:
-        raise JobError(f"--only {','.join(only)}", f"no member {', '.join(unknown)} in {project.schedule_path}",
-                       f"Marks in the schedule: {', '.join(sorted(known)) or 'none'}")
+        raise UsageError(f"--only {','.join(only)}: no member {', '.join(unknown)} in {project.schedule_path}. "
+                         f"Marks in the schedule: {', '.join(sorted(known)) or 'none'}")
 
 
 def swap_into_place(stage: Path, final: Path) -> None:
@@ -281,6 +239,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     previous = load_results(jobdir / f"rev-{prev_label}") if prev_label else None
     extra = member_extras(project, designs, previous)
     phases = {"design": time.monotonic() - started}
+    work: dict[str, float] = {}  # seconds per phase of the sheet work, summed over workers
     stage, final = stage_dir(project, opts)
     try:
         warnings = project.warnings + schedule.warnings
@@ -290,7 +249,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         tasks = every if not opts.only else [t for t in every if t.mark in set(opts.only)]
         if tasks and opts.sheets:
             mark = time.monotonic()
-            report.sheets = run_sheets(tasks, opts.jobs, opts.progress)
+            report.sheets = run_sheets(tasks, opts.jobs, opts.progress, work)
             phases["sheets"] = time.monotonic() - mark
             for d in designs:
                 if d.mark in report.sheets:
@@ -308,19 +267,16 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
 
         write_chart(stage / "summary.png", doc["members"],
                     f"{project.fields['title']} rev {project.revision}: governing utilization", jobdir / ".cache")
-        if opts.sheets and opts.fmt == "html":
-            from .htmlindex import index_html
-
-            write_atomic(stage / "index.html", index_html(project, doc, stage))
         if opts.sheets and opts.fmt == "pdf":
             from .package import build_package
-            from .pipeline import ConversionError
+            from .typeset import ConversionError
 
             try:
                 mark = time.monotonic()
                 report.package = final / "package.pdf"
                 build_package(project, doc, data, stage, changes, hint=final,
-                              pages={m: o.pages for m, o in report.sheets.items() if o.pages})
+                              pages={m: o.pages for m, o in report.sheets.items() if o.pages},
+                              cache=jobdir / ".cache")
                 write_package_key(stage, key)
                 phases["package"] = time.monotonic() - mark
             except ConversionError as exc:
@@ -331,14 +287,19 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
             report.package = final / "package.pdf" if (stage / "package.pdf").exists() else None
         report.carried = carried
         doc["carried_over"] = carried.to_json()
+        if opts.sheets and opts.fmt == "html":
+            from .htmlindex import index_html
+
+            write_atomic(stage / "index.html", index_html(project, doc, stage))
         write_results(stage, doc)
         snapshot_inputs(project, stage)
         counts = report.counts()
         report.log.insert(0, f"{project.name} rev {project.revision}: {len(designs)} members, "
                              f"{counts['pass']} pass, {counts['fail']} fail, {counts['error']} error; "
-                             f"{len(report.executed)} executed, {len(report.converted)} converted "
+                             f"{len(report.executed)} executed, {len(report.converted)} typeset, {len(report.stamped)} stamped "
                              f"({time.monotonic() - started:.1f} s: "
-                             + ", ".join(f"{k} {v:.1f} s" for k, v in phases.items()) + ")")
+                             + ", ".join(f"{k} {v:.1f} s" for k, v in phases.items()) + ")"
+                             + ("; sheet work: " + ", ".join(f"{k} {v:.1f} s" for k, v in work.items()) if work else ""))
         report.log += carried.log_lines()
         report.log += warnings + report.data_errors
         for d in designs:

@@ -1,24 +1,41 @@
-"""One member's sheet job: execute its notebook and convert it, using the cache.
+"""Members' sheet jobs: execute their notebooks and make their sheets, using the cache.
 
-The cache is content-addressed (``<outputs>/<job>/.cache/``): a notebook is
-keyed by the member's inputs, the template, the library and the data; a PDF by
-that key plus its title block. A member whose key is unchanged is not
-re-executed; ``--force`` ignores the cache.
+The cache is content-addressed (``<outputs>/<job>/.cache/``):
+
+- a notebook is keyed by the member's inputs, the template, the library and the data;
+- a PDF sheet body by that key, the title block's fixed fields and the layout;
+- a stamped PDF sheet by the body's key and the stamped fields (revision, date,
+  checked by); an HTML sheet by the notebook's key and the whole title block.
+
+A member whose key is unchanged is not re-executed and its body not re-typeset;
+``--force`` ignores the cache. Work is done in batches, one per worker at a time:
+the batch's notebooks run in the worker's one kernel and its bodies are typeset
+in one xelatex run (``batch.py``); the stamps of every sheet that needs one are
+then typeset in one run in the main process.
 """
 
 from __future__ import annotations
 
 import hashlib
 import json
+import math
+import multiprocessing
+import os
+import time
+import traceback
+from concurrent.futures import ProcessPoolExecutor, as_completed
 from dataclasses import dataclass, field
 from functools import cached_property
 from pathlib import Path
 from typing import Any
 
-from .fileio import copy_atomic
+from .batch import Body, Stamp, fixed_fields, stamp_sheets, stamped_fields, typeset_bodies
 from .constants import RESULT_MIME
-from .pipeline import ConversionError, execute, file_hash, library_fingerprint, notebook_to_pdf, to_html
+from .fileio import copy_atomic
+from .lifetime import die_with_parent
+from .pipeline import execute, file_hash, library_fingerprint, templates_dir, to_html
 
+BATCH = 20  # members per xelatex run: the ~2 s of preamble and fonts spread over 20 sheets
 
 
 @dataclass
@@ -41,21 +58,48 @@ class SheetTask:
                            "data": self.data_hash}, sort_keys=True)
         return hashlib.sha256(blob.encode()).hexdigest()
 
-    def sheet_key(self, exec_key: str) -> str:
-        layout = file_hash(self.template.parent / "latex" / "sheet" / "sheet.tex.j2")
-        blob = json.dumps({"e": exec_key, "tb": self.titleblock, "layout": layout, "fmt": self.fmt}, sort_keys=True)
+    @cached_property
+    def body_key(self) -> str:
+        layout = [file_hash(templates_dir() / "latex" / "sheet" / name) for name in ("sheet.tex.j2", "preamble.tex.j2")]
+        fields = self.titleblock if self.fmt == "html" else fixed_fields(self.titleblock)
+        blob = json.dumps({"e": self.exec_key, "tb": fields, "layout": layout, "fmt": self.fmt}, sort_keys=True)
         return hashlib.sha256(blob.encode()).hexdigest()
+
+    @cached_property
+    def sheet_key(self) -> str:
+        stamp = file_hash(templates_dir() / "latex" / "sheet" / "stamp.tex.j2")
+        blob = json.dumps({"b": self.body_key, "tb": stamped_fields(self.titleblock), "stamp": stamp}, sort_keys=True)
+        return hashlib.sha256(blob.encode()).hexdigest()
+
+    @property
+    def cached_notebook(self) -> Path:
+        return self.cache / f"{self.exec_key}.ipynb"
+
+    @property
+    def cached_body(self) -> Path:
+        return self.cache / f"{self.body_key}.body.pdf"
+
+    @property
+    def cached_sheet(self) -> Path:
+        """The finished sheet in the cache: the HTML, or the stamped PDF."""
+        if self.fmt == "html":
+            return self.cache / f"{self.body_key}.html"
+        return self.cache / f"{self.sheet_key}.pdf"
 
 
 @dataclass
 class SheetOutcome:
     mark: str
     executed: bool = False
-    converted: bool = False
+    converted: bool = False  # the body (or HTML) was typeset in this run
+    stamped: bool = False  # the title-block stamp was laid on in this run
     error: str | None = None  # notebook error (the notebook is kept, error marked)
     pages: int = 0  # pages of the PDF sheet (0: not known)
     record: dict[str, Any] | None = field(default=None, repr=False)
     trace: str = field(default="", repr=False)  # traceback of an unexpected failure, for run.log
+
+    def fail(self, problem: str) -> None:
+        self.error = (self.error + "; " if self.error else "") + problem
 
 
 def read_record(notebook: Path) -> tuple[dict[str, Any] | None, str | None]:
@@ -72,59 +116,154 @@ def read_record(notebook: Path) -> tuple[dict[str, Any] | None, str | None]:
     return record, error
 
 
-def from_cache(task: SheetTask) -> SheetOutcome | None:
-    """The outcome straight from the cache when neither step needs doing, else None."""
-    if task.force:
-        return None
-    key = task.exec_key
-    cached_nb = task.cache / f"{key}.ipynb"
-    cached_sheet = task.cache / f"{task.sheet_key(key)}.{task.fmt}" if task.sheet is not None else None
-    if not cached_nb.exists() or (cached_sheet is not None and not cached_sheet.exists()):
-        return None
-    outcome = SheetOutcome(task.mark)
-    copy_atomic(cached_nb, task.notebook)
-    outcome.record, outcome.error = read_record(task.notebook)
-    if cached_sheet is not None:
-        copy_atomic(cached_sheet, task.sheet)
-        outcome.pages = _read_pages(cached_sheet)
-    return outcome
+def _pages_file(pdf: Path) -> Path:
+    return pdf.with_name(pdf.name + ".pages")
 
 
-def _pages_file(sheet: Path) -> Path:
-    return sheet.with_name(sheet.name + ".pages")
-
-
-def _read_pages(sheet: Path) -> int:
-    path = _pages_file(sheet)
+def _read_pages(pdf: Path) -> int:
+    path = _pages_file(pdf)
     return int(path.read_text()) if path.exists() else 0
 
 
-def run_sheet(task: SheetTask) -> SheetOutcome:
-    """Execute (or reuse) the member's notebook, then convert (or reuse) its sheet."""
-    outcome = SheetOutcome(task.mark)
-    key = task.exec_key
-    cached_nb = task.cache / f"{key}.ipynb"
-    if task.force or not cached_nb.exists():
-        execute(task.template, cached_nb, task.parameters, task.cwd)
-        outcome.executed = True
-    copy_atomic(cached_nb, task.notebook)
+def _needs_body(task: SheetTask) -> bool:
+    return task.sheet is not None and (task.force or not task.cached_body.exists())
+
+
+def _needs_work(task: SheetTask) -> bool:
+    """Execution, a body or an HTML sheet to make: a worker's job. Stamping alone is not."""
+    if task.force or not task.cached_notebook.exists():
+        return True
+    if task.fmt == "html":
+        return task.sheet is not None and not task.cached_sheet.exists()
+    return task.sheet is not None and not task.cached_sheet.exists() and not task.cached_body.exists()
+
+
+def _take_notebook(task: SheetTask, outcome: SheetOutcome) -> None:
+    copy_atomic(task.cached_notebook, task.notebook)
     outcome.record, outcome.error = read_record(task.notebook)
-    if outcome.error:
-        cached_nb.unlink(missing_ok=True)  # never serve a failed run from the cache
-    if task.sheet is None:
-        return outcome
-    cached_sheet = task.cache / f"{task.sheet_key(key)}.{task.fmt}"
-    if task.force or outcome.executed or not cached_sheet.exists():
+
+
+def run_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, float]]:
+    """Execute what needs executing, then typeset the batch's bodies in one run (or make HTML).
+
+    A member's failure stays with that member. Returns the outcomes and the
+    seconds spent per phase."""
+    times: dict[str, float] = {}
+    outcomes = {t.mark: SheetOutcome(t.mark) for t in tasks}
+    started = time.monotonic()
+    for task in tasks:
+        outcome = outcomes[task.mark]
         try:
-            if task.fmt == "html":
-                to_html(task.notebook, cached_sheet, task.titleblock)
-            else:
-                _pages_file(cached_sheet).write_text(
-                    str(notebook_to_pdf(task.notebook, cached_sheet, task.titleblock, task.mark)))
-            outcome.converted = True
-        except ConversionError as exc:
-            outcome.error = (outcome.error + "; " if outcome.error else "") + str(exc)
-            return outcome
-    copy_atomic(cached_sheet, task.sheet)
-    outcome.pages = _read_pages(cached_sheet)
-    return outcome
+            if task.force or not task.cached_notebook.exists():
+                execute(task.template, task.cached_notebook, task.parameters, task.cwd)
+                outcome.executed = True
+            _take_notebook(task, outcome)
+        except Exception as exc:  # a worker failure belongs to its member, not the batch  # noqa: BLE001
+            outcome.fail(f"{type(exc).__name__}: {exc}")
+            outcome.trace = traceback.format_exc()
+            continue
+        if outcome.error:
+            task.cached_notebook.unlink(missing_ok=True)  # never serve a failed run from the cache
+    times["execute"] = time.monotonic() - started
+    ready = [t for t in tasks if t.notebook.exists() and t.sheet is not None]
+    if ready and ready[0].fmt == "html":
+        started = time.monotonic()
+        for task in ready:
+            to_html(task.notebook, task.cached_sheet, task.titleblock)
+            outcomes[task.mark].converted = True
+        times["typeset"] = time.monotonic() - started
+        return list(outcomes.values()), times
+    bodies = [Body(t.mark, t.notebook, fixed_fields(t.titleblock), t.cached_body) for t in ready
+              if _needs_body(t) or outcomes[t.mark].executed]
+    for mark, result in typeset_bodies(bodies, times).items() if bodies else ():
+        if isinstance(result, Exception):
+            outcomes[mark].fail(str(result))
+        else:
+            outcomes[mark].converted = True
+            outcomes[mark].pages = result
+    for body in bodies:
+        if outcomes[body.mark].converted:
+            _pages_file(body.pdf).write_text(str(outcomes[body.mark].pages))
+    return list(outcomes.values()), times
+
+
+def _safe_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, float]]:
+    try:
+        return run_batch(tasks)
+    except Exception as exc:  # noqa: BLE001 - a broken batch is its members' error, not the run's
+        trace = traceback.format_exc()
+        return [SheetOutcome(t.mark, error=f"{type(exc).__name__}: {exc}", trace=trace) for t in tasks], {}
+
+
+def batches(tasks: list[SheetTask], jobs: int) -> list[list[SheetTask]]:
+    """Tasks in batches of at most BATCH, and at least one batch per worker."""
+    size = max(1, min(BATCH, math.ceil(len(tasks) / jobs)))
+    return [tasks[i:i + size] for i in range(0, len(tasks), size)]
+
+
+def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool,
+               times: dict[str, float] | None = None) -> dict[str, SheetOutcome]:
+    """Execute, typeset and stamp every task, `jobs` workers at a time; a failure stays with its member.
+
+    `times` receives the seconds per phase (execute, typeset, split: summed over
+    workers; stamp: in this process)."""
+    jobs = max(1, jobs or os.cpu_count() or 1)
+    times = times if times is not None else {}
+    from tqdm import tqdm
+
+    # disable=None: a bar only on a terminal, as with the other command-line tools
+    bar = tqdm(total=len(tasks), desc="sheets", unit="sheet", disable=None if progress else True, leave=False)
+    outcomes: dict[str, SheetOutcome] = {}
+
+    def step(mark: str) -> None:
+        bar.set_postfix_str(mark, refresh=False)
+        bar.update()
+
+    def collect(result: tuple[list[SheetOutcome], dict[str, float]]) -> None:
+        for outcome in result[0]:
+            outcomes[outcome.mark] = outcome
+            step(outcome.mark)
+        for phase, seconds in result[1].items():
+            times[phase] = times.get(phase, 0.0) + seconds
+
+    work = [t for t in tasks if _needs_work(t)]
+    for task in tasks:  # the rest come from the cache, without a worker
+        if not _needs_work(task):
+            outcome = SheetOutcome(task.mark)
+            _take_notebook(task, outcome)
+            outcomes[task.mark] = outcome
+            step(task.mark)
+    groups = batches(work, jobs)
+    if jobs == 1 or len(groups) <= 1:
+        for group in groups:
+            collect(_safe_batch(group))
+    else:
+        context = multiprocessing.get_context("spawn")
+        with ProcessPoolExecutor(max_workers=min(jobs, len(groups)), mp_context=context,
+                                 initializer=die_with_parent) as pool:
+            for future in as_completed([pool.submit(_safe_batch, g) for g in groups]):
+                collect(future.result())
+    bar.close()
+    started = time.monotonic()
+    _finish(tasks, outcomes)
+    times["stamp"] = time.monotonic() - started
+    return {t.mark: outcomes[t.mark] for t in tasks}
+
+
+def _finish(tasks: list[SheetTask], outcomes: dict[str, SheetOutcome]) -> None:
+    """Stamp, in one run, every PDF sheet whose stamped version is not cached; put every sheet in place."""
+    pdf = [t for t in tasks if t.sheet is not None and t.fmt == "pdf" and t.cached_body.exists()]
+    stale = [t for t in pdf if t.force or outcomes[t.mark].converted or not t.cached_sheet.exists()]
+    stamps = [Stamp(t.mark, t.cached_body, _read_pages(t.cached_body), stamped_fields(t.titleblock),
+                    t.cached_sheet) for t in stale]
+    made = {s.mark: s.pdf for s in stamps}
+    for mark, result in stamp_sheets(stamps).items() if stamps else ():
+        if isinstance(result, Exception):
+            outcomes[mark].fail(str(result))
+        else:
+            outcomes[mark].stamped = True
+            _pages_file(made[mark]).write_text(str(result))
+    for task in tasks:
+        if task.sheet is not None and task.cached_sheet.exists() and task.cached_sheet.stat().st_size:
+            copy_atomic(task.cached_sheet, task.sheet)
+            outcomes[task.mark].pages = _read_pages(task.cached_sheet)

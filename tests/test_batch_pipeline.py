@@ -1,0 +1,170 @@
+"""Batch typesetting and title-block stamps, read back from the real PDFs.
+
+Several members share one xelatex run (``--jobs 1``: one batch); their title
+blocks' revision, date, checked by and "sheet n of N" are stamped afterwards.
+A checker must read the same title block as if each sheet had been typeset on
+its own (common practice: every page of a calculation names its revision and
+its checker, and numbers itself n of N).
+"""
+
+from __future__ import annotations
+
+import re
+import shutil
+import subprocess
+from pathlib import Path
+
+import pytest
+from pypdf import PdfReader
+
+from conftest import member_row, write_job
+from timbersheets.cli import main
+from timbersheets.runner import RunOptions, run_job
+
+pytestmark = pytest.mark.pipeline
+
+
+def page_text(pdf: Path, page: int) -> str:
+    return subprocess.run(["pdftotext", "-layout", "-f", str(page), "-l", str(page), str(pdf), "-"],
+                          capture_output=True, text=True, check=True).stdout
+
+
+def title_block(pdf: Path, page: int) -> str:
+    """The title block's text: what pdftotext reads above the first section of a page."""
+    return page_text(pdf, page).split("\n1 Member")[0] if page == 1 else page_text(pdf, page)[:600]
+
+
+ROWS = [member_row("BA-1"), member_row("BA-2", P_D="6", P_L="4"), member_row("BA-3", type="tension", P_D="3"),
+        member_row("BA-4", type="bending", size="38x235", length="3.4", Ly="", Lu="0", w_D="0.31", w_L="1.46",
+                   P_D="")]
+
+
+@pytest.fixture(scope="module")
+def batch_job(tmp_path_factory):
+    root = tmp_path_factory.mktemp("batch")
+    job = write_job(root / "job", [dict(r) for r in ROWS])
+    out = root / "out"
+    first = run_job(job, RunOptions(out=out, progress=False, jobs=1))
+    return job, out, first
+
+
+def test_every_page_numbers_itself_n_of_N_and_bookmarks_land_on_first_pages(batch_job):
+    job, out, first = batch_job
+    assert sorted(first.converted) == ["BA-1", "BA-2", "BA-3", "BA-4"]
+    rev = out / "rev-A"
+    starts = {}
+    for mark in ("BA-1", "BA-2", "BA-3", "BA-4"):
+        sheet = rev / "sheets" / f"{mark}.pdf"
+        total = len(PdfReader(str(sheet)).pages)
+        assert total == first.sheets[mark].pages
+        for k in range(1, total + 1):
+            block = title_block(sheet, k)
+            assert f"{k} of {total}" in block and mark in block and "not checked" in block, (mark, k)
+            if k == 1:
+                assert "2026-12-01" in block and "SEAL" in block, mark
+    package = rev / "package.pdf"
+    reader = PdfReader(str(package))
+    nested = next(item for item in reader.outline if isinstance(item, list))
+    for item in nested:
+        mark = item.title.split(" ")[0]
+        starts[mark] = reader.get_destination_page_number(item) + 1
+        text = page_text(package, starts[mark])
+        assert mark in text and "1 of " in text and "SEAL" in text, mark  # the first page, with its seal box
+    assert list(starts) == ["BA-1", "BA-2", "BA-3", "BA-4"]
+
+
+def test_a_review_restamps_every_sheet_and_typesets_no_body(batch_job):
+    job, out, _ = batch_job
+    assert main(["review", str(job), "--all", "--by", "QZ", "--verdict", "ok", "--out", str(out)]) == 0
+    after = run_job(job, RunOptions(out=out, progress=False, jobs=1))
+    assert after.executed == [] and after.converted == []
+    assert sorted(after.stamped) == ["BA-1", "BA-2", "BA-3", "BA-4"]
+    for mark in ("BA-1", "BA-2", "BA-3", "BA-4"):
+        sheet = out / "rev-A" / "sheets" / f"{mark}.pdf"
+        for k in range(1, len(PdfReader(str(sheet)).pages) + 1):
+            block = title_block(sheet, k)
+            assert "QZ 20" in block and "not checked" not in block, (mark, k)
+    again = run_job(job, RunOptions(out=out, progress=False, jobs=1))
+    assert again.converted == [] and again.stamped == []  # the stamped sheets come from the cache
+
+
+def test_a_new_revision_with_one_change_typesets_one_body_and_restamps_all(batch_job):
+    job, out, _ = batch_job
+    rows = [dict(r) for r in ROWS]
+    rows[1]["P_L"] = "9"
+    write_job(job, rows, revision="B")
+    second = run_job(job, RunOptions(out=out, progress=False, jobs=1))
+    assert second.executed == ["BA-2"] and second.converted == ["BA-2"]
+    assert sorted(second.stamped) == ["BA-1", "BA-2", "BA-3", "BA-4"]
+    for mark in ("BA-1", "BA-2", "BA-3", "BA-4"):
+        sheet = out / "rev-B" / "sheets" / f"{mark}.pdf"
+        total = len(PdfReader(str(sheet)).pages)
+        for k in range(1, total + 1):
+            block = title_block(sheet, k)
+            assert f"{k} of {total}" in block, (mark, k)
+            if mark == "BA-2":
+                assert "B, changed since A" in block and "changed since check" in block, k
+            else:
+                assert "changed since" not in block and "QZ 20" in block, (mark, k)
+                assert re.search(r"(^|\s)B(\s|$)", block) and not re.search(r"(^|\s)A(\s|$)", block), (mark, k)
+    body = page_text(out / "rev-B" / "sheets" / "BA-2.pdf", 1)
+    assert re.search(r"Live \(use and occupancy\)\s+L\s+9\.0\s", body)  # the new body, not the old
+
+
+def test_a_sheet_that_cannot_be_typeset_leaves_the_batch_standing(tmp_path, monkeypatch):
+    import nbformat
+
+    from timbersheets.pipeline import templates_dir
+
+    templates = tmp_path / "templates"
+    shutil.copytree(templates_dir(), templates)
+    nb = nbformat.read(templates / "axial.ipynb", 4)
+    nb.cells.insert(5, nbformat.v4.new_code_cell(
+        'from IPython.display import Latex, display\n'
+        'if member["mark"] == "TEX-1":\n    display(Latex(r"\\undefinedmacro{}"))'))
+    nbformat.write(nb, templates / "axial.ipynb")
+    monkeypatch.setenv("TIMBERSHEETS_TEMPLATES", str(templates))
+    job = write_job(tmp_path / "tex", [member_row("OK-1"), member_row("TEX-1"), member_row("OK-2")])
+    report = run_job(job, RunOptions(out=tmp_path / "out", progress=False, jobs=1))
+    assert sorted(report.converted) == ["OK-1", "OK-2"]
+    assert not (report.outdir / "sheets" / "TEX-1.pdf").exists()
+    assert any("xelatex could not typeset" in e and "Undefined control sequence" in e
+               for e in next(d for d in report.designs if d.mark == "TEX-1").errors)
+    for mark in ("OK-1", "OK-2"):
+        assert "1 of " in title_block(report.outdir / "sheets" / f"{mark}.pdf", 1)
+
+
+def words(pdf: Path, page: int) -> list[tuple[str, float, float, float, float]]:
+    """(word, xMin, yMin, xMax, yMax) in points from the top-left corner, as pdftotext reads them."""
+    out = subprocess.run(["pdftotext", "-bbox", "-f", str(page), "-l", str(page), str(pdf), "-"],
+                         capture_output=True, text=True, check=True).stdout
+    return [(w, float(a), float(b), float(c), float(d)) for a, b, c, d, w in
+            re.findall(r'<word xMin="([\d.]+)" yMin="([\d.]+)" xMax="([\d.]+)" yMax="([\d.]+)">([^<]*)</word>', out)]
+
+
+def test_stamped_values_sit_in_their_boxes_under_their_labels(batch_job):
+    # The stamp is typeset apart from the body: each value must land in its own cell, under its
+    # label (the body's) and left-aligned with it, as if both had been typeset together.
+    job, out, _ = batch_job
+    sheet = out / ("rev-B" if (out / "rev-B").exists() else "rev-A") / "sheets" / "BA-1.pdf"
+    found = words(sheet, 1)
+    for label, value in (("SHEET", "1"), ("DATE", "2026-12-01"), ("REVISION", None)):
+        lx, ly = next((x0, y1) for w, x0, y0, x1, y1 in found if w == label)
+        below = sorted((y0, w, x0) for w, x0, y0, x1, y1 in found if abs(x0 - lx) < 1.0 and ly < y0 < ly + 20)
+        assert below, label
+        assert value is None or below[0][1] == value, (label, below)
+
+
+def test_the_seal_box_is_at_least_45_mm_square(batch_job):
+    # Room for a seal with signature and date: at least 45 mm on every sheet (the cover has its
+    # own). The box is measured from the labels: SEAL sits 1.5 mm right of the box's left rule and
+    # 1.3 mm under its top; the box reaches the right edge of the 165 mm text block (27 mm left
+    # margin) and the block's foot, 9 mm under the top of the DESIGNED BY row.
+    job, out, _ = batch_job
+    found = words(out / "rev-A" / "sheets" / "BA-3.pdf", 1)
+    mm = 72 / 25.4
+    seal_x, seal_y = next((x0, y0) for w, x0, y0, *_ in found if w == "SEAL")
+    designed_y = next(y0 for w, x0, y0, *_ in found if w == "DESIGNED")
+    width = (27 + 165) - (seal_x / mm - 1.5)
+    height = designed_y / mm - seal_y / mm + 9
+    assert width >= 45 and height >= 45, (width, height)
