@@ -30,6 +30,7 @@ def utilization_chart(members: list[dict[str, Any]], title: str) -> bytes:
     from matplotlib import pyplot as plt
 
     rows = sorted((m for m in members if _finite(m.get("utilization"))), key=lambda m: -m["utilization"])
+    title = "".join(ch if ch.isprintable() else " " for ch in title[:MAX_TITLE + 1])
     title = title if len(title) <= MAX_TITLE else title[:MAX_TITLE - 3].rstrip() + "..."
     if len(rows) <= DETAIL_LIMIT:
         fig, ax = plt.subplots(figsize=(6.3, min(max(1.6, 0.22 * len(rows) + 0.9), 9.0)), dpi=150)
