@@ -42,3 +42,7 @@ def test_runs_without_pdfs_keep_current_sheets_and_name_stale_ones(tmp_path):
     assert (rev / "sheets" / "P-1.html").exists() and (rev / "sheets" / "P-2.html").exists()
     assert (rev / "sheets" / "P-2.pdf").read_bytes() == made["sheets/P-2.pdf"]
     assert "sheets/P-2.pdf" in results["carried_over"]["kept"]
+
+    _, results, _ = run(job, out, sheets=False)  # the HTML sheets are still current, and so is their index
+    assert {"sheets/P-1.html", "sheets/P-2.html", "sheets/P-2.pdf"} <= set(results["carried_over"]["kept"])
+    assert "P-1.html" in (rev / "index.html").read_text(encoding="utf-8")

@@ -287,7 +287,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
             report.package = final / "package.pdf" if (stage / "package.pdf").exists() else None
         report.carried = carried
         doc["carried_over"] = carried.to_json()
-        if opts.sheets and opts.fmt == "html":
+        if (opts.sheets and opts.fmt == "html") or any(p.endswith(".html") for p in carried.kept):  # made or kept
             from .htmlindex import index_html
 
             write_atomic(stage / "index.html", index_html(project, doc, stage))
