@@ -228,6 +228,7 @@ def beam_times(repeat: int = 5) -> list[str]:
     chosen = sizing.chosen.label if sizing and sizing.chosen else "none"
     lines.append(f"  continuous joist FJ-1 sized in {took:.2f} s ({sizing.searched} tried, chose {chosen})   "
                  f"target <= 0.5 s: {'met' if took <= 0.5 else 'NOT met'}")
+    return lines
 
 
 TARGETS = {"cold package": 20.0, "one load changed": 3.0, "new revision, one change": 4.0,
