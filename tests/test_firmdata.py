@@ -38,7 +38,9 @@ def firm_csv(rows: list[dict[str, object]], header: tuple[str, ...] = HEADER) ->
 
 
 def verified(row: dict[str, object], **changes: object) -> dict[str, object]:
-    return {**row, "status": "verified", "verified_by": "RD", "verified_on": "2026-11-30", "edition": "O86:19",
+    """The row as an engineer leaves it after checking it against the edition the job is designed to."""
+    edition = "NBC 2020" if str(row.get("data", "")).startswith(("nbc", "sls")) else "O86:19"
+    return {**row, "status": "verified", "verified_by": "RD", "verified_on": "2026-11-30", "edition": edition,
             **changes}
 
 
@@ -57,7 +59,7 @@ def all_verified(job: Path, drop: str = "") -> None:
     """Write the job's firm file with the tool, then mark every row verified (what the engineer does)."""
     project = load_project(job)
     data, designs = job_designs(project)
-    rows = [verified(r, edition=r["edition"]) for r in firm_rows(used_items(data, designs)) if r["item"] != drop]
+    rows = [verified(r) for r in firm_rows(used_items(data, designs)) if r["item"] != drop]
     (job / "firm.csv").write_text(firm_csv(rows), encoding="utf-8")
     with (job / "project.toml").open("a", encoding="utf-8") as f:
         f.write("\n" + FIRM_LINE)
@@ -136,6 +138,8 @@ BAD_ROWS = [
     ("strength-in-kPa", [verified(strength_row("f_t", 5500))], "value", "out of scale"),
     ("wrong-sign", [verified(strength_row("f_t", -5.5))], "value", "wrong sign"),
     ("not-a-number", [verified(strength_row("f_t", "nan"))], "value", "not a finite number"),
+    ("verified-against-another-edition", [verified(strength_row("f_t", 5.5), edition="O86-14")], "edition",
+     "is not the CSA O86 edition jobs are designed to"),
     ("unknown-unit", [verified(strength_row("f_t", 5.5, unit="psi"))], "unit", "is not the unit"),
 ]
 
@@ -162,6 +166,7 @@ def test_run_reports_a_bad_firm_row_and_exits_1_while_the_good_members_are_desig
     assert {m["mark"]: m["status"] for m in results["members"]} == {"T-1": "error", "C-1": "pass"}
     firm = next(f for f in results["data"]["files"] if f.get("name") == "firm.csv")
     assert firm["role"] == "firm data" and firm["values"] == 1 and "row 3" in firm["errors"][0]
+    assert "1 bad rows refused" in DataSet(job / "firm.csv").firm.description  # on the cover and every sheet
 
 
 BAD_FILES = [
@@ -215,6 +220,13 @@ def test_compare_lists_the_differences_from_the_built_in_data(tmp_path):
     assert differ == 1
     assert any("f_t" in ln and "firm 6, built-in 5.5" in ln for ln in lines)
     assert not any("f_b" in ln for ln in lines[1:])
+
+
+def test_data_warns_that_a_member_not_designed_has_no_values_listed(tmp_path, capsys):
+    job = write_job(tmp_path / "job", [member_row("OK-1"), member_row("BAD-1", species="Oak")])
+    assert main(["data", str(job)]) == 0
+    err = capsys.readouterr().err
+    assert "BAD-1 could not be designed" in err and "OK-1" not in err
 
 
 def test_firm_file_written_by_the_tool_lists_every_value_to_verify_and_is_never_overwritten(tmp_path):

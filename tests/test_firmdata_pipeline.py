@@ -37,7 +37,7 @@ def verified_job(tmp_path_factory):
     root = tmp_path_factory.mktemp("firm")
     job = tension_job(root, [verified({"data": "resistance_factors", "key": "action=tension", "value": 0.9})])
     data, designs = job_designs(load_project(job))
-    rows = [verified(r, edition=r["edition"], value=6.0 if r["item"] == "f_t S-P-F No.1/No.2 dimension" else r["value"])
+    rows = [verified(r, value=6.0 if r["item"] == "f_t S-P-F No.1/No.2 dimension" else r["value"])
             for r in firm_rows(used_items(data, designs))]
     (job / "firm.csv").write_text(firm_csv(rows), encoding="utf-8")
     report = run_job(job, RunOptions(out=root / "out", jobs=1, progress=False))
@@ -93,7 +93,7 @@ def test_readme_steps_reach_zero_unverified_values(tmp_path):
         if step.startswith("# edit"):  # what the engineer does: verify every row (values as the standard gives)
             firm = root / "calcsheets" / "data-demo" / "firm-data.csv"
             rows = list(csv.DictReader(firm.open(encoding="utf-8")))
-            firm.write_text(firm_csv([verified(r, edition=r["edition"]) for r in rows]), encoding="utf-8")
+            firm.write_text(firm_csv([verified(r) for r in rows]), encoding="utf-8")
             continue
         command = step.replace(".venv/bin/", f"{venv_bin}/")
         if " run " in command:

@@ -53,7 +53,7 @@ def demo_notebook(mark: str):
 def test_html_sheet_has_the_title_block_sections_and_verdict():
     page = sheet_html(*demo_notebook("C-1"))
     seen = visible_text(page)
-    for label in ("Project", "Member", "Revision", "Designed by", "Checked by", "Engineer of record", "Seal"):
+    for label in ("Project", "Member", "Sheet", "Revision", "Designed by", "Checked by", "Engineer of record", "Seal"):
         assert f">{label}<" in page, label
     assert "Kestrel Cove Community Boathouse" in seen and "C-1" in seen and "not checked" in seen
     headings = re.findall(r'<h2><span class="num">(\d+)</span> ([^<]+)</h2>', page)
@@ -122,3 +122,15 @@ def test_html_index_lists_every_member_offline(tmp_path):
     assert "A-1" in seen and "A-2" in seen and "DOES NOT PASS" in seen and "PASSES" in seen
     assert "2 members: 1 passes, 1 does not pass, 0 not designed" in seen
     assert "licensed professional engineer" in seen
+
+
+def test_a_failed_cell_marks_the_html_sheet_incomplete():
+    nb, tb = demo_notebook("T-1")
+    nb.cells.insert(3, nbformat.v4.new_code_cell(outputs=[nbformat.v4.new_output(
+        "error", ename="ZeroDivisionError", evalue="division by zero",
+        traceback=["\x1b[0;31mZeroDivisionError\x1b[0m: division by zero <script>"])]))
+    page = sheet_html(nb, tb)
+    seen = visible_text(page)
+    assert "INCOMPLETE SHEET" in seen and "EXECUTION ERROR" in seen and "Not for use" in seen
+    assert "ZeroDivisionError: division by zero" in seen
+    assert "<script>" not in page and "\x1b" not in page  # the traceback is text, escaped and without colours

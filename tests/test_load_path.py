@@ -233,3 +233,14 @@ def test_package_change_list_names_the_cause():
                           because=["RB-1"])
     rows = change_rows([change])
     assert rows[0]["what"] == "because" and rows[0]["new"] == "RB-1 changed" and rows[1]["item"] == "carried"
+
+
+def test_overhang_with_length_equals_spans_with_overhang(tmp_path, data):
+    # the schedule contract: length is the whole member, overhangs included; span = 5.5 - 1.5 = 4.0 m
+    base = {**GLULAM, "size": "130x304", "Lu": "4", "w_D": "2", "w_S": "4"}
+    rows = [{"mark": "A-1", **base, "length": "5.5", "overhang_right": "1.5"},
+            {"mark": "A-2", **base, "spans": "4.0", "overhang_right": "1.5"}]
+    d = designs(tmp_path, rows, data)
+    assert d["A-1"].member.values["spans"] == (4000.0,)
+    a, b = d["A-1"].governing, d["A-2"].governing
+    assert (a.check, a.combination, a.demand) == (b.check, b.combination, b.demand)

@@ -41,3 +41,11 @@ def test_model_sheet_shows_the_model_and_its_sources(tmp_path, data):
     assert image.data[:4] == b"\x89PNG" and "governing bending combination" in caption.latex
     checks = sheet.checks_section().latex
     assert "Where" in checks and "span 2" in checks
+
+
+def test_simple_span_sheet_gives_the_reactions_a_carrier_takes(tmp_path, data):
+    # hand calculation: R = wL/2: D 1.2 × 6 / 2 = 3.6 kN, S 3.0 × 6 / 2 = 9.0 kN
+    sheet = sheet_for(tmp_path, data, "RB-1")
+    forces = sheet.combinations_section().latex
+    assert "w\\_f L^2/8" in forces or "w_f L^2/8" in forces  # the closed form stays
+    assert "R1 = R2 = w L / 2 by load type: D 3.6, S 9.0 kN" in forces

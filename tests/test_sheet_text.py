@@ -34,12 +34,14 @@ def prose(latex: str) -> str:
     return latex.replace("\\_", "_")
 
 
-@pytest.mark.parametrize("mark", ["G-1", "T-1", "RB-2", "C-1"])
-def test_cautions_typeset_symbols_and_name_no_data_identifiers(demo_members, mark):
-    caution = sheet_of(demo_members[mark]).cautions().latex
-    words = prose(caution)
-    assert not re.search(r"\b[A-Za-z][A-Za-z0-9]*_[A-Za-z0-9]", words), re.findall(r"\S*_\S*", words)
-    assert "$K_{S" in caution  # the service factors are listed, as symbols
+def test_cautions_typeset_symbols_and_name_no_data_identifiers(demo_members):
+    typeset = 0
+    for mark, member in demo_members.items():  # the unverified values and the notes of every demo member
+        caution = sheet_of(member).cautions().latex
+        words = prose(caution)
+        assert not re.search(r"\b[A-Za-z][A-Za-z0-9]*_[A-Za-z0-9]", words), (mark, re.findall(r"\S*_\S*", words))
+        typeset += "$K_{S" in caution  # unverified service factors are listed, as symbols
+    assert typeset >= 10
 
 
 def test_glulam_factor_names_are_words(demo_members):

@@ -68,10 +68,6 @@ class Geometry:
             out.append(("right overhang", s[-1], s[-1] + self.right))
         return tuple(out)
 
-    @property
-    def simple(self) -> bool:
-        return len(self.spans) == 1 and not self.left and not self.right
-
 
 #: A load: ("udl", w N/mm, from mm, to mm) or ("point", P N, at mm).
 Load = tuple

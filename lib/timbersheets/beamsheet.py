@@ -8,7 +8,7 @@ analysis functions the design used.
 from __future__ import annotations
 
 from .analysis import loading_mode, member_forces, service_cases
-from .beamdesign import is_model
+from .beamdesign import is_model, reactions_by_type
 from .calc import format_number, format_value
 from .errors import TimbersheetsError
 from .membertypes import member_type
@@ -121,6 +121,11 @@ def forces_block(design) -> Block:
     if any(f.R_f < 0 for f in forces):
         out += para("A negative $Q_f$ is uplift at the supports: no bearing demand, but the connections must hold "
                     "the member down (not checked on this sheet).")
+    each = reactions_by_type(ctx.member)[1]
+    if each:
+        parts = ", ".join(f"{t} {format_number(to_display(v, 'N')[0], 'kN')}" for t, v in each.items())
+        out += para(escape(f"Specified reactions R1 = R2 = w L / 2 by load type: {parts} kN (what a member that "
+                           "carries this one takes)."))
     return out
 
 

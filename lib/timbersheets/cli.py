@@ -246,8 +246,13 @@ def cmd_diff(args: argparse.Namespace) -> int:
     from .fileio import write_csv
     from .project import load_project
     from .revisions import DIFF_HEADER, diff, diff_rows, format_diff, load_results
+    from .labels import label_problem
     from .runner import job_dir
 
+    for option, label in (("--from", args.r1), ("--to", args.r2)):
+        if label_problem(label):
+            raise UsageError(f"{option} '{label[:50]}' {label_problem(label)}; give a revision label as in "
+                             "project.toml, e.g. A")
     project = load_project(args.dir)
     base = job_dir(project, args.out)
     old, new = load_results(base / f"rev-{args.r1}"), load_results(base / f"rev-{args.r2}")
@@ -260,17 +265,19 @@ def cmd_diff(args: argparse.Namespace) -> int:
 
 def cmd_review(args: argparse.Namespace) -> int:
     from .project import load_project
-    from .review import (Review, append_reviews, comment_text, count_text, latest, read_reviews,
+    from .review import (Review, append_reviews, comment_text, count_text, latest, load_review_file,
                          refuse_unexplained_ok, standing, status, today)
     from .revisions import load_results
     from .runner import job_dir
-    from .schedule import load_schedule
 
     project = load_project(args.dir)
     results = load_results(job_dir(project, args.out) / f"rev-{project.revision}")
     members = {m["mark"]: m for m in results["members"]}
+    record = load_review_file(project.folder)
+    for problem in record.problems:
+        print(f"warning: {problem}", file=sys.stderr)
     if args.status:
-        reviews = latest(read_reviews(project.folder))
+        reviews = latest(record.reviews)
         states = {mark: status(reviews.get(mark), m.get("inputs_hash")) for mark, m in members.items()}
         pending = []
         for mark, state in states.items():
@@ -287,14 +294,10 @@ def cmd_review(args: argparse.Namespace) -> int:
     unknown = [m for m in marks if m not in members]
     if unknown:
         raise UsageError(f"not in rev {project.revision}: {', '.join(unknown)}")
-    from .data import DataSet
+    from .job import load_job
 
-    from .loadpath import resolved_members
-
-    data = DataSet(project.materials)
     # the inputs as the run hashed them: with the reactions each member carries
-    current = {mark: m.inputs_hash for mark, m in resolved_members(load_schedule(project.schedule_path, data),
-                                                                    data).items()}
+    current = {mark: m.inputs_hash for mark, m in load_job(args.dir).members().items()}
     stale = [m for m in marks if current.get(m) != members[m].get("inputs_hash")]
     if stale:
         raise UsageError(f"the schedule changed after the last run for {', '.join(stale)}; "
@@ -330,6 +333,10 @@ def cmd_data(args: argparse.Namespace) -> int:
         if data.firm:
             for e in data.firm.errors:
                 print(f"error: {e}", file=sys.stderr)
+        missing = [d.mark for d in designs if d.errors]
+        if missing:
+            print(f"warning: {', '.join(missing)} could not be designed (see timbersheets run); the values they "
+                  "would use are not listed", file=sys.stderr)
     if args.csv:
         sys.stdout.write(csv_text(items))
     elif not (args.firm_file or args.sheet):

@@ -188,7 +188,11 @@ def _read(path: Path, name: str) -> DataFile:
         raw = path.read_bytes()
     except OSError as exc:
         raise DataError(str(path), f"cannot be read ({exc.strerror})") from None
-    text = raw.decode("utf-8-sig")
+    try:
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        line = raw[:exc.start].count(b"\n") + 1
+        raise DataError(str(path), f"is not UTF-8 text (line {line}, byte {exc.start}); save it as CSV UTF-8") from None
     rows = tuple(csv.DictReader(text.splitlines()))
     return DataFile(name, path, hashlib.sha256(raw).hexdigest(), rows)
 
@@ -259,6 +263,13 @@ class DataSet:
     def value_datums(self, datum: Datum) -> list[Datum]:
         """The values a checker ticks for `datum`: itself, the parts of a derived value, or
         each load factor of a combination row."""
+        memo = self.__dict__.setdefault("_values_memo", {})
+        token = (datum.data, datum.key, datum.column, datum.label)
+        if token not in memo:
+            memo[token] = self._value_datums(datum)
+        return memo[token]
+
+    def _value_datums(self, datum: Datum) -> list[Datum]:
         out = []
         for d in datum.tabled():
             spec = TABLES.get(d.data)

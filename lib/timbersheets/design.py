@@ -7,6 +7,7 @@ of a :class:`Context`, the load cases and the record, returning check results.
 
 from __future__ import annotations
 
+import math
 import traceback
 from collections.abc import Callable
 from dataclasses import dataclass, field
@@ -227,7 +228,11 @@ class MemberDesign:
         if self.context is None or self.context.data is None:
             return []
         seen: dict[tuple[str, str, str], Datum] = {}
-        for used in self.data_used:
+        read: set[int] = set()
+        for used in self.data_used:  # the same Datum is recorded each time a check reads it
+            if id(used) in read:
+                continue
+            read.add(id(used))
             for d in self.context.data.value_datums(used):
                 seen.setdefault((d.data, d.key, d.column), d)
         return list(seen.values())
@@ -262,6 +267,7 @@ def design_member(member: Member, data: DataSet) -> MemberDesign:
         cases = apply_combinations(effects_of(member), data, ctx.used, member.K_D)
         outcome.context, outcome.cases = ctx, cases
         outcome.checks = design_function(kind)(ctx, cases)
+        refuse_non_finite(member, outcome.checks, ctx.used)
     except TimbersheetsError as exc:
         outcome.errors.append(str(exc))
     except Exception as exc:  # a defect must not stop the other members  # noqa: BLE001
@@ -272,6 +278,24 @@ def design_member(member: Member, data: DataSet) -> MemberDesign:
         outcome.data_used = list(outcome.context.used)
         outcome.warnings += [n for n in outcome.context.notes if n not in outcome.warnings]
     return outcome
+
+
+def refuse_non_finite(member: Member, checks: list[CheckResult], used: list[Datum]) -> None:
+    """A NaN or infinity anywhere in the results makes the member an error, naming its source.
+
+    Neither may reach a verdict: NaN compares false with every limit, so it would pass.
+    """
+    for c in checks:
+        numbers = {"demand": c.demand, "resistance": c.resistance, "utilization": c.utilization, **c.factors}
+        bad = [name for name, value in numbers.items() if not math.isfinite(value)]
+        if not bad:
+            continue
+        suspects = [f"{d.label} = {d.value} ({d.file})" for d in used if not math.isfinite(d.value)]
+        suspects += [f"{k} = {v}" for k, v in member.values.items()
+                     if isinstance(v, float) and not math.isfinite(v)]
+        cause = f"from {'; '.join(dict.fromkeys(suspects))}" if suspects else "from the member's inputs together"
+        raise DesignError(member.mark, f"{c.check} under {c.combination}: {', '.join(bad)} is not a finite number "
+                          f"({cause})", fix="Check the inputs and the data values named")
 
 
 def _sized_section(member: Member, data: DataSet, kind: MemberType, outcome: MemberDesign) -> Section:

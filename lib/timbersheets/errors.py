@@ -6,6 +6,8 @@ so it can be logged, pickled across worker processes and shown the same way.
 
 from __future__ import annotations
 
+import errno
+import shutil
 from enum import IntEnum
 
 
@@ -45,6 +47,24 @@ class JobError(TimbersheetsError):
     def __str__(self) -> str:
         text = f"{self.path}: {self.problem}"
         return f"{text}. {self.fix}" if self.fix else text
+
+
+class OutputError(TimbersheetsError):
+    """An output could not be written (disk full, read-only folder): exit 2, in one line."""
+
+    def __init__(self, folder: object, cause: OSError) -> None:
+        super().__init__(folder, cause)
+        self.folder, self.cause = folder, cause
+
+    def __str__(self) -> str:
+        text = f"{self.folder}: cannot write ({self.cause.strerror or self.cause})"
+        if self.cause.errno in (errno.ENOSPC, errno.EDQUOT):
+            try:
+                free = shutil.disk_usage(self.folder).free
+                text += f"; {free / 1e6:.1f} MB free there. Free some space (a run needs a few MB a member)"
+            except OSError:
+                pass
+        return text
 
 
 class ScheduleError(TimbersheetsError):

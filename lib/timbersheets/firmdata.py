@@ -29,11 +29,13 @@ import difflib
 import hashlib
 import io
 import math
+import re
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 from .data import TABLES, VERIFIED_STATUSES, DataFile, Datum, TableSpec, _table
 from .errors import DataError, DataRowError, JobError
+from .project import SUPPORTED_CODES
 
 FIRM_STATUSES = ("to-verify", "verified", "sourced", "memory-unverified")
 HEADER = ("data", "key", "column", "value", "unit", "edition", "table", "source", "status", "verified_by",
@@ -45,6 +47,7 @@ PROPERTIES = {"sawn_strengths.csv": ("f_b", "f_v", "f_c", "f_cp", "f_t", "E", "E
 SAWN_CATEGORIES = ("dimension", "beam-stringer", "post-timber")
 #: Load factors of a combination may be zero (a companion not taken); every other value is positive.
 MAY_BE_ZERO = ("nbc2020_uls_combinations.csv", "sls_combinations.csv")
+NBC_TABLES = MAY_BE_ZERO  # the tables of the building code; every other one is of CSA O86
 
 Key = tuple[tuple[str, str], ...]
 
@@ -98,8 +101,9 @@ class FirmFile:
         """One line for a cover or a sheet: name, hash, how many values, who verified them and when."""
         verified = sum(r.status == "verified" for r in self.rows)
         who = f", verified by {'; '.join(self.verifiers)}" if self.verifiers else ", none verified yet"
+        refused = f"; {len(self.errors)} bad rows refused (listed in run.log)" if self.errors else ""
         return (f"firm data file {self.name} (sha256 {self.short_hash}): {len(self.rows)} values, "
-                f"{verified} verified{who}")
+                f"{verified} verified{who}{refused}")
 
     def summary(self) -> dict[str, object]:
         return {"file": str(self.path), "name": self.name, "sha256": self.sha256, "role": "firm data",
@@ -227,7 +231,7 @@ def _validate_row(name: str, number: int, v: dict[str, str], cells: list[str], h
         errors.append(err("status", status, "is blank" if not status else "is not a data status",
                           ", ".join(FIRM_STATUSES)))
     elif status == "verified":
-        errors += _verified_problems(v, err)
+        errors += _verified_problems(data, v, err)
     return where, errors
 
 
@@ -290,7 +294,7 @@ def _value_problems(data: str, key: dict[str, str], column: str, text: str, orig
     return []
 
 
-def _verified_problems(v: dict[str, str], err) -> list[DataRowError]:
+def _verified_problems(data: str, v: dict[str, str], err) -> list[DataRowError]:
     out = []
     if not v.get("verified_by"):
         out.append(err("verified_by", "", "is blank on a verified row", "the checker's name or initials"))
@@ -300,7 +304,23 @@ def _verified_problems(v: dict[str, str], err) -> list[DataRowError]:
         out.append(err("verified_on", v.get("verified_on", ""), "is not a date on a verified row", "YYYY-MM-DD"))
     if not v.get("edition"):
         out.append(err("edition", "", "is blank on a verified row", "the edition checked against, e.g. O86:19"))
+    elif not _designed_edition(data, v["edition"]):
+        code = "NBC" if data in NBC_TABLES else "CSA O86"
+        years = SUPPORTED_CODES["nbc" if data in NBC_TABLES else "o86"]
+        out.append(err("edition", v["edition"], f"is not the {code} edition jobs are designed to, so the row "
+                       "does not verify the value for them", ", ".join(f"{code} {y}" for y in years)))
     return out
+
+
+def _designed_edition(data: str, edition: str) -> bool:
+    """Whether `edition` (O86:19, CSA O86-2019, NBC 2020 …) is one this version designs to."""
+    nbc = data in NBC_TABLES
+    pattern = r"NBC\s*(\d{4})" if nbc else r"(?:CSA\s*)?O86\s*[-:]?\s*(\d{2}|\d{4})"
+    match = re.fullmatch(pattern, edition.strip(), re.IGNORECASE)
+    if not match:
+        return False
+    year = match.group(1) if len(match.group(1)) == 4 else f"20{match.group(1)}"
+    return year in SUPPORTED_CODES["nbc" if nbc else "o86"]
 
 
 def _row(name: str, number: int, where: tuple[str, Key, str], v: dict[str, str]) -> FirmRow:

@@ -15,7 +15,7 @@ from __future__ import annotations
 import base64
 import html
 import re
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Any
 
 from latex2mathml.converter import convert as mathml
@@ -109,7 +109,6 @@ def _columns(spec: str) -> list[str]:
 class _Counters:
     section: int = 0
     subsection: int = 0
-    math: list[str] = field(default_factory=list)
 
 
 class Converter:
@@ -377,7 +376,8 @@ def title_block(tb: dict[str, str], incomplete: bool) -> str:
  <div><div class="lab">Location</div>{_field(tb, 'location')}</div></div></div>
 <div><div class="lab">Member</div><div class="mark">{_field(tb, 'mark')}</div>
  <div class="desc">{_field(tb, 'description')}</div>{flag}</div>
-<div><div class="lab">Revision</div>{_field(tb, 'revision')}<div class="lab" style="margin-top:2mm">Date</div>
+<div><div class="lab">Sheet</div>1 of 1 (HTML)<div class="lab" style="margin-top:2mm">Revision</div>
+ {_field(tb, 'revision')}<div class="lab" style="margin-top:2mm">Date</div>
  {_field(tb, 'date')}</div>
 <div class="seal"><div class="lab">Seal</div></div>
 <div class="row2"><div class="lab">Designed by</div>{_field(tb, 'designed')}</div>

@@ -22,7 +22,8 @@ from typing import Any
 
 from .package import FRONT_HINT
 from .pipeline import file_hash, templates_dir
-from .sheetjobs import SheetTask, copy_atomic
+from .fileio import copy_atomic
+from .sheetjobs import SheetTask
 
 FORMATS = ("pdf", "html")
 PACKAGE_KEY = ".package-key"

@@ -151,8 +151,3 @@ def design_in_order(entries: list, data, file: str = "schedule.csv") -> list:
         designs[m.mark] = design_member(resolved, data)
     return [designs[e.mark] if isinstance(e, Member) else rejected(e) for e in entries]
 
-
-def resolved_members(schedule, data) -> dict:
-    """The schedule's valid members by mark, each with the loads it carries filled in (what `size` searches on)."""
-    designs = design_in_order(schedule.entries, data, schedule.path.name)
-    return {d.mark: d.member for d in designs if d.member is not None}

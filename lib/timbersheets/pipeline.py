@@ -20,6 +20,7 @@ from typing import Any
 
 from .constants import SHORT_CAUTION
 from .errors import ParameterError, TimbersheetsError
+from .fileio import copy_atomic, write_atomic
 from .tex import escape
 
 XELATEX = ["xelatex", "-interaction=nonstopmode", "-halt-on-error", "-no-shell-escape"]
@@ -222,10 +223,7 @@ def compile_pdf(tex: str, files: dict[str, bytes], pdf: Path, mark: str, passes:
             if done.returncode != 0:
                 tail = "\n".join(line for line in done.stdout.splitlines() if line.startswith("!"))[-1500:]
                 raise ConversionError(mark, "xelatex could not typeset the sheet", tail)
-        pdf.parent.mkdir(parents=True, exist_ok=True)
-        staged = pdf.with_name(f".{pdf.name}.part")
-        shutil.copyfile(work / "sheet.pdf", staged)
-        os.replace(staged, pdf)
+        copy_atomic(work / "sheet.pdf", pdf)
         written = re.search(r"Output written on sheet\.pdf \((\d+) pages?", done.stdout)
         return int(written.group(1)) if written else 0
 
@@ -243,7 +241,4 @@ def to_html(notebook: Path, html: Path, titleblock: dict[str, str]) -> None:
     from .htmlsheet import sheet_html
 
     nb = nbformat.read(str(notebook), as_version=4)
-    html.parent.mkdir(parents=True, exist_ok=True)
-    staged = html.with_name(f".{html.name}.part")
-    staged.write_text(sheet_html(nb, titleblock), encoding="utf-8")
-    os.replace(staged, html)
+    write_atomic(html, sheet_html(nb, titleblock))

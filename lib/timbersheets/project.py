@@ -2,18 +2,20 @@
 
 from __future__ import annotations
 
+import os
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from .errors import JobError
+from .labels import label_problem
 
 PROJECT_FIELDS = ("title", "number", "client", "location", "engineer", "designer", "checker", "revision", "date")
 SUPPORTED_CODES = {"nbc": ("2020",), "o86": ("2019",)}
 #: Where a job's outputs go (runner.job_dir), as the README and `run --help` say it.
 OUTPUT_RULE = ("outputs/<job>/ beside the calcsheets/ folder that holds the job; for a job folder anywhere "
                "else, its own outputs/ subfolder")
-REVISION_CHARS = set("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789.-_")
+MAX_FIELD = 300  # characters in a title-block field
 
 
 @dataclass
@@ -50,33 +52,79 @@ def load_project(folder: Path) -> Project:
         raise JobError(str(folder), "is not a job folder", "Create one with: timbersheets new DIR")
     if not path.exists():
         raise JobError(str(path), "is missing", "Every job folder needs project.toml (timbersheets new DIR makes one)")
-    try:
-        doc = tomllib.loads(path.read_text(encoding="utf-8-sig"))
-    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
-        raise JobError(str(path), f"is not valid TOML ({exc})") from None
+    if not path.is_file():
+        raise JobError(str(path), "is not a file", "project.toml is a text file in the job folder")
+    doc = _read_toml(path)
     proj = doc.get("project")
     if not isinstance(proj, dict):
         raise JobError(str(path), "has no [project] table", f"Give [project] with {', '.join(PROJECT_FIELDS)}")
     fields = {k: str(proj.get(k, "")).strip() for k in PROJECT_FIELDS}
-    if not fields["revision"]:
-        raise JobError(str(path), "[project] revision is blank", 'Give a revision label, e.g. revision = "A"')
-    if not set(fields["revision"]) <= REVISION_CHARS:
-        raise JobError(str(path), f"[project] revision '{fields['revision']}' has characters a folder name cannot carry",
-                       "Use letters, digits, '.', '-' or '_' (e.g. A, B, 0, 1.1)")
-    codes = {k: str(v) for k, v in doc.get("codes", {}).items()}
+    long = [k for k, v in fields.items() if len(v) > MAX_FIELD]
+    if long:
+        raise JobError(str(path), f"[project] {long[0]} is {len(fields[long[0]]):,} characters long",
+                       f"A title-block field holds at most {MAX_FIELD} characters")
+    problem = label_problem(fields["revision"])
+    if problem:
+        raise JobError(str(path), f"[project] revision '{fields['revision'][:50]}' {problem}",
+                       'Give a short revision label, e.g. revision = "A" (letters, digits, ".", "-" or "_")')
+    codes = {k: str(v) for k, v in _table(path, doc, "codes").items()}
     for key, allowed in SUPPORTED_CODES.items():
         codes.setdefault(key, allowed[0])
         if codes[key] not in allowed:
-            raise JobError(str(path), f"[codes] {key} = '{codes[key]}' is not supported",
+            raise JobError(str(path), f"[codes] {key} = '{codes[key][:50]}' is not supported",
                            f"This version designs to {key.upper()} {', '.join(allowed)}")
-    materials = None
-    data = doc.get("data", {})
-    if data.get("materials"):
-        materials = (folder / str(data["materials"])).resolve()
-        if not materials.exists():
-            raise JobError(str(path), f"[data] materials file '{data['materials']}' does not exist",
-                           "Give a path relative to the job folder")
+    materials = _materials(path, folder, _table(path, doc, "data").get("materials"))
     return Project(folder, fields, codes, materials, doc, placeholder_warnings(path, fields))
+
+
+def _read_toml(path: Path) -> dict:
+    try:
+        return tomllib.loads(path.read_text(encoding="utf-8-sig"))
+    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
+        raise JobError(str(path), f"is not valid TOML ({exc})", "Save it as UTF-8 text") from None
+    except RecursionError:
+        raise JobError(str(path), "nests arrays or tables too deeply to be a project file") from None
+
+
+def _table(path: Path, doc: dict, name: str) -> dict:
+    value = doc.get(name, {})
+    if not isinstance(value, dict):
+        raise JobError(str(path), f"'{name}' is a {type(value).__name__}, not a table",
+                       f"Write it as a [{name}] table, e.g. [codes] then nbc = \"2020\"")
+    return value
+
+
+def _materials(path: Path, folder: Path, given: object) -> Path | None:
+    """The firm materials file: inside the job folder or a firm folder named in the user's config."""
+    if not given:
+        return None
+    materials = (folder / str(given)).resolve()
+    allowed = [folder.resolve(), *firm_folders()]
+    if not any(materials.is_relative_to(a) for a in allowed):
+        raise JobError(str(path), f"[data] materials '{given}' is outside the job folder",
+                       f"Keep it in the job folder, or name its folder in {user_config()} as "
+                       "[data] firm_folders = [\"/path\"]")
+    if not materials.is_file():
+        raise JobError(str(path), f"[data] materials file '{given}' does not exist or is not a file",
+                       "Give a path relative to the job folder")
+    return materials
+
+
+def user_config() -> Path:
+    base = os.environ.get("XDG_CONFIG_HOME") or str(Path.home() / ".config")
+    return Path(base) / "timbersheets" / "config.toml"
+
+
+def firm_folders() -> list[Path]:
+    """Folders the user's config allows firm data files in (``[data] firm_folders``)."""
+    path = user_config()
+    if not path.is_file():
+        return []
+    doc = _read_toml(path)
+    folders = _table(path, doc, "data").get("firm_folders", [])
+    if not isinstance(folders, list):
+        raise JobError(str(path), "[data] firm_folders is not a list of folders")
+    return [Path(str(f)).expanduser().resolve() for f in folders]
 
 
 # What `timbersheets new` writes, and no real job keeps.

@@ -9,16 +9,22 @@ from __future__ import annotations
 
 import csv
 import datetime as dt
+import fcntl
 import io
-from dataclasses import dataclass
+import os
+import re
+from dataclasses import dataclass, field
 from pathlib import Path
 
-from .errors import JobError
-from .fileio import write_atomic
+from .csvtext import cell_problem, clean, split_records
+from .errors import JobError, OutputError
+from .fileio import spreadsheet_safe
 
 REVIEW_FILE = "review.csv"
 FIELDS = ("mark", "checker", "date", "verdict", "comment", "inputs_hash", "revision")
 VERDICTS = ("ok", "revise")
+REQUIRED_FIELDS = ("mark", "verdict", "inputs_hash")
+HASH = re.compile(r"sha256:[0-9a-f]{64}")
 
 
 @dataclass(frozen=True)
@@ -32,16 +38,94 @@ class Review:
     revision: str
 
 
+@dataclass
+class ReviewFile:
+    """review.csv as read: the usable verdicts, and what was wrong with the other rows."""
+
+    reviews: list[Review] = field(default_factory=list)
+    problems: list[str] = field(default_factory=list)  # "review.csv, row N: ..." each
+    columns: list[str] = field(default_factory=list)  # the header as the file has it
+    encoding: str = "utf-8"
+    ends_with_newline: bool = True
+
+
 def read_reviews(folder: Path) -> list[Review]:
+    """The usable verdicts of review.csv (bad rows are left out; :func:`load_review_file` names them)."""
+    return load_review_file(folder).reviews
+
+
+def load_review_file(folder: Path) -> ReviewFile:
+    """Read review.csv by its header names; every row is validated, bad rows reported by row.
+
+    A hand-edited file keeps working: reordered columns are read by name, a row with
+    an unknown verdict or no inputs hash is reported and left out (so its member shows
+    as not checked), a runaway quote spoils only its own row.
+    """
     path = folder / REVIEW_FILE
     if not path.exists():
-        return []
-    text = path.read_text(encoding="utf-8-sig")
-    reader = csv.DictReader(io.StringIO(text))
-    missing = [f for f in FIELDS[:6] if f not in (reader.fieldnames or [])]
+        return ReviewFile()
+    if not path.is_file():
+        raise JobError(str(path), "is not a file", "review.csv is the checker's record; move the folder away")
+    return parse_review_text(*_decode(path.read_bytes()))
+
+
+def parse_review_text(text: str, encoding: str = "utf-8") -> ReviewFile:
+    out = ReviewFile(encoding=encoding, ends_with_newline=not text or text.endswith(("\n", "\r")))
+    records = split_records(text)
+    if not records:
+        return out
+    out.columns = [c.strip() for c in records[0].cells]
+    index = {name.casefold(): i for i, name in reversed(list(enumerate(out.columns)))}
+    missing = [f for f in REQUIRED_FIELDS if f not in index]
     if missing:
-        raise JobError(str(path), f"lacks column(s) {', '.join(missing)}", f"Expected: {', '.join(FIELDS)}")
-    return [Review(*(row.get(f, "") or "" for f in FIELDS)) for row in reader]
+        out.problems.append(f"{REVIEW_FILE}, row 1: lacks column(s) {', '.join(missing)}; "
+                            f"no verdict in it is used (expected: {', '.join(FIELDS)})")
+        return out
+    for record in records[1:]:
+        cells = [clean(c) for c in record.cells]
+        if not any(cells):
+            continue
+        problem = record.problem or _row_problem(cells, index, len(out.columns))
+        if problem:
+            out.problems.append(f"{REVIEW_FILE}, row {record.row}: {problem}; the row is not used")
+            continue
+        values = {f: (cells[index[f]] if f in index and index[f] < len(cells) else "") for f in FIELDS}
+        values["verdict"] = values["verdict"].casefold()
+        out.reviews.append(Review(**values))
+    return out
+
+
+def _row_problem(cells: list[str], index: dict[str, int], width: int) -> str:
+    def cell(name: str) -> str:
+        i = index[name]
+        return cells[i] if i < len(cells) else ""
+
+    if any(c for c in cells[width:]):
+        return f"has cells beyond the {width} named columns"
+    for name in FIELDS:
+        if name in index and cell_problem(cell(name)):
+            return f"column '{name}' {cell_problem(cell(name))}"
+    if not cell("mark"):
+        return "column 'mark' is blank"
+    if cell("verdict").casefold() not in VERDICTS:
+        return f"column 'verdict': '{cell('verdict')}' is not a verdict (allowed: {', '.join(VERDICTS)})"
+    if cell("inputs_hash") and not HASH.fullmatch(cell("inputs_hash")):  # blank: a row that never had inputs
+        return f"column 'inputs_hash': '{cell('inputs_hash')[:20]}' is not an inputs hash (sha256:<64 hex digits>)"
+    return ""
+
+
+def _decode(raw: bytes) -> tuple[str, str]:
+    """The text and the encoding to append in: UTF-8 (with or without BOM), UTF-16 with BOM,
+    else Latin-1 (every byte is a character, so an old file still reads)."""
+    if raw[:2] in (b"\xff\xfe", b"\xfe\xff"):
+        try:
+            return raw.decode("utf-16"), "utf-16-le" if raw[:2] == b"\xff\xfe" else "utf-16-be"
+        except UnicodeDecodeError:
+            pass
+    try:
+        return raw.decode("utf-8-sig"), "utf-8"
+    except UnicodeDecodeError:
+        return raw.decode("latin-1"), "latin-1"
 
 
 def latest(reviews: list[Review]) -> dict[str, Review]:
@@ -53,16 +137,63 @@ def latest(reviews: list[Review]) -> dict[str, Review]:
 
 
 def append_reviews(folder: Path, new: list[Review]) -> None:
-    """Append verdicts to review.csv (rewritten atomically, earlier lines kept)."""
+    """Append verdicts to review.csv under an exclusive lock, then read them back.
+
+    The earlier lines are never rewritten (a hand edit, the file's mode and its
+    encoding are kept); the new rows follow the file's own column order. Raises
+    JobError when the file cannot take them or a verdict is not in it afterwards:
+    success is never reported for a verdict the file does not hold.
+    """
     path = folder / REVIEW_FILE
-    old = path.read_text(encoding="utf-8-sig") if path.exists() else ""
+    if path.exists() and not path.is_file():
+        raise JobError(str(path), "is not a file", "review.csv is the checker's record; move the folder away")
+    try:
+        with open(path, "a+b") as handle:
+            fcntl.flock(handle.fileno(), fcntl.LOCK_EX)
+            handle.seek(0)
+            current = parse_review_text(*_decode(handle.read()))
+            handle.write(_new_lines(path, current, new))
+            handle.flush()
+            os.fsync(handle.fileno())
+            handle.seek(0)
+            after = parse_review_text(*_decode(handle.read()))
+    except OSError as exc:
+        raise OutputError(folder, exc) from None
+    missing = [r.mark for r in new if _as_written(r) not in after.reviews]
+    if missing:
+        raise JobError(str(path), f"the verdict for {', '.join(missing)} is not in the file after writing it",
+                       "Nothing is recorded for them; check the file and record them again")
+
+
+def _as_written(r: Review) -> Review:
+    """A review as it reads back: formula-protected and trimmed."""
+    return Review(**{f: clean(spreadsheet_safe(_text(getattr(r, f)))) for f in FIELDS})
+
+
+def _text(value: object) -> str:
+    return "" if value is None else str(value)
+
+
+def _new_lines(path: Path, current: ReviewFile, new: list[Review]) -> bytes:
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
-    if not old:
-        writer.writerow(FIELDS)
+    if not current.ends_with_newline:
+        buffer.write("\n")
+    columns = current.columns
+    if columns and not all(f in {c.casefold() for c in columns} for f in REQUIRED_FIELDS):
+        raise JobError(f"{path}, row 1", f"is not a review header ({', '.join(columns)[:80]})",
+                       f"Fix row 1 to: {','.join(FIELDS)} (or move the file away); nothing was recorded")
+    if not columns:
+        columns = list(FIELDS)
+        writer.writerow(columns)
     for r in new:
-        writer.writerow([r.mark, r.checker, r.date, r.verdict, r.comment, r.inputs_hash, r.revision])
-    write_atomic(path, old + buffer.getvalue())
+        values = {f: spreadsheet_safe(_text(getattr(r, f))) for f in FIELDS}
+        writer.writerow([values.get(c.casefold(), "") for c in columns])
+    try:
+        return buffer.getvalue().encode(current.encoding)
+    except UnicodeEncodeError:
+        raise JobError(str(path), f"is {current.encoding} text, which cannot hold the new verdict's text",
+                       "Save review.csv as CSV UTF-8, then record again") from None
 
 
 def status(review: Review | None, inputs_hash: str | None) -> dict[str, str]:

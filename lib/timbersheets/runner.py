@@ -10,6 +10,7 @@ from __future__ import annotations
 import datetime as dt
 import multiprocessing
 import os
+import re
 import shutil
 import time
 import traceback
@@ -23,14 +24,15 @@ from .data import DataSet
 from .design import MemberDesign
 from .errors import ExitCode, JobError
 from .membertypes import member_types
-from .fileio import write_atomic
+from .fileio import copy_atomic, remove_stale_parts, write_atomic
+from .lifetime import die_with_parent, pid_alive
 from .keep import Carried, carry_package, carry_sheets, package_key, write_package_key
 from .pipeline import templates_dir
 from .job import load_job
 from .project import Project
 from .fileio import write_csv
 from .results import member_json, results_doc, write_results
-from .review import comment_text, latest, read_reviews, status, titleblock_text
+from .review import comment_text, latest, load_review_file, read_reviews, status, titleblock_text
 from .revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
 from .sheetjobs import SheetOutcome, SheetTask, from_cache, run_sheet
 from .tex import escape
@@ -169,7 +171,8 @@ def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool) -> dict
             done(task, _safe_run(task))
     else:
         context = multiprocessing.get_context("spawn")
-        with ProcessPoolExecutor(max_workers=min(jobs, len(tasks)), mp_context=context) as pool:
+        with ProcessPoolExecutor(max_workers=min(jobs, len(tasks)), mp_context=context,
+                                 initializer=die_with_parent) as pool:
             futures = {pool.submit(_safe_run, t): t for t in tasks}
             for future, task in futures.items():
                 done(task, future.result())
@@ -216,12 +219,23 @@ def stage_dir(project: Project, opts: RunOptions) -> tuple[Path, Path]:
     """An empty staging folder beside the revision folder (what stays of the old one: keep.py)."""
     final = revision_dir(project, opts.out)
     final.parent.mkdir(parents=True, exist_ok=True)
+    remove_stale(final.parent)
     stage = final.parent / f".{final.name}.staging-{os.getpid()}"
     shutil.rmtree(stage, ignore_errors=True)
     stage.mkdir()
     return stage, final
 
 
+_STAGING = re.compile(r"^\.rev-.+\.(?:staging|old)-(\d+)$")
+
+
+def remove_stale(jobdir: Path) -> None:
+    """Staging folders and temporary files of killed runs of this user (their process is gone)."""
+    for path in jobdir.glob(".rev-*"):
+        match = _STAGING.match(path.name)
+        if match and path.is_dir() and path.stat().st_uid == os.getuid() and not pid_alive(int(match.group(1))):
+            shutil.rmtree(path, ignore_errors=True)
+    remove_stale_parts(jobdir / ".cache")
 def check_only(project: Project, entries: list, only: list[str] | None) -> None:
     """Refuse an --only mark the schedule does not have (a typo would otherwise run nothing, silently)."""
     known = {e.mark for e in entries}
@@ -246,7 +260,7 @@ def snapshot_inputs(project: Project, stage: Path) -> None:
     for path in (project.folder / "project.toml", project.schedule_path, project.folder / "review.csv",
                  project.materials):
         if path and path.exists():
-            shutil.copyfile(path, inputs / path.name)
+            copy_atomic(path, inputs / path.name)
 
 
 def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
@@ -259,6 +273,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     started = time.monotonic()
     job = load_job(folder)
     project, schedule, data = job.project, job.schedule, job.data
+    schedule.warnings += load_review_file(project.folder).problems
     check_only(project, schedule.entries, opts.only)
     designs = job.designs
     jobdir = job_dir(project, opts.out)

@@ -8,7 +8,6 @@ allowed. A bad row is kept as an error entry; the other rows go on.
 
 from __future__ import annotations
 
-import csv
 import difflib
 import hashlib
 import json
@@ -19,14 +18,15 @@ from pathlib import Path
 from typing import Any
 
 from . import beamloads
+from .csvtext import cell_problem, clean, physical_lines, split_records
 from .errors import JobError, ParameterError, ScheduleError
+from .labels import label_problem
 from .membertypes import member_type, member_types
 from .materials import GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, sawn_table_grade
 from .sections import Section, parse_size, sawn_category
 from .units import UnitParseError, convert, example, parse_quantity
 
 LOAD_TYPES = ("D", "L", "S", "W", "E")
-MARK = re.compile(r"^[A-Za-z0-9._-]+$")
 LOAD_NAMES = {"D": "dead", "L": "live", "S": "snow (with rain)", "W": "wind", "E": "earthquake"}
 LOAD_MEANING = {
     "P": "axial force (positive = the member's own sense: tension for tension members, compression otherwise)",
@@ -34,7 +34,9 @@ LOAD_MEANING = {
     "M": "strong-axis moment, where a frame model gives it",
     "V": "shear, where a frame model gives it",
 }
-EXTRA = "\x00extra"  # key marking a row with more cells than the header
+EXTRA = "\x00extra"  # key marking a row with cells beyond the header (their column numbers)
+BAD = "\x00bad:"  # key prefix marking a cell the file holds no usable value for (the problem)
+UNREAD = "\x00unread"  # key marking a row that could not be read whole (the problem)
 
 
 @dataclass(frozen=True)
@@ -54,11 +56,17 @@ class Column:
     choices: tuple[str, ...] = ()
     minimum: float | None = None  # values must be >= minimum (or > when strict)
     strict: bool = False
+    maximum: float | None = None  # values must be <= maximum
     meaning: str = ""
     blank: str = ""  # what a blank cell means, where that is not simply `default`
 
 
 def _columns() -> tuple[Column, ...]:
+    """The columns and their physical bounds, in entry units (a value outside is a row error).
+
+    Bounds are the range real members have, not the range the formulas accept: a
+    factor or a length outside them is a typing slip that would change the verdict.
+    """
     cols = [
         Column("mark", "text", required=True,
                meaning="member mark, unique in the job"),
@@ -72,48 +80,57 @@ def _columns() -> tuple[Column, ...]:
                meaning="stress grade: sawn SS, No.1, No.2, No.1/No.2, No.3, Stud; glulam 20f-E, 20f-EX, 24f-E, 24f-EX, 16c-E, 12c-E, 18t-E, 14t-E"),
         Column("size", "size", required=True,
                meaning="dressed size b x d in mm (38x235, 130x228); auto = the tool picks the lightest passing section"),
-        Column("plies", "count", default=1, minimum=1,
+        # common practice: built-up members of 2 to 5 plies
+        Column("plies", "count", default=1, minimum=1, maximum=5,
                meaning="number of laminations of a built-up sawn member"),
         Column("service", "choice", default="dry", choices=("dry", "wet"),
                meaning="service condition (O86 K_S)"),
-        Column("K_T", "number", default=1.0, minimum=0, strict=True,
+        # K_T reduces strength for incised or fire-retardant-treated wood, never raises it (O86 5.4.3)
+        Column("K_T", "number", default=1.0, minimum=0.5, maximum=1.0,
                meaning="treatment factor"),
-        Column("K_H", "number", default=1.0, minimum=0, strict=True,
+        # O86 5.4.4: system factors from 1.0 to 1.4 (Case 2 for bending and shear)
+        Column("K_H", "number", default=1.0, minimum=1.0, maximum=1.4,
                meaning="system factor (load sharing), sawn lumber only"),
-        Column("length", "quantity", "m", "mm", minimum=0, strict=True,
+        # common practice: longer than 60 m is no single timber member; shorter than 0.1 m is no member
+        Column("length", "quantity", "m", "mm", minimum=0.1, maximum=60,
                meaning="member length (the span of a beam; with spans, the total, overhangs included)",
                blank="required, except on a beam that gives spans"),
-        Column("Ke", "number", default=1.0, minimum=0, strict=True,
+        # O86 Annex A (from memory): recommended Ke from 0.65 (both ends fixed) to 2.4 (sway, far end
+        # pinned); 0.5 is the theoretical least
+        Column("Ke", "number", default=1.0, minimum=0.5, maximum=2.4,
                meaning="effective length factor, both axes"),
-        Column("Lx", "quantity", "m", "mm", minimum=0,
+        Column("Lx", "quantity", "m", "mm", minimum=0, maximum=60,
                meaning="unbraced length about the strong (x) axis; 0 = braced over the length", blank="length"),
-        Column("Ly", "quantity", "m", "mm", minimum=0,
+        Column("Ly", "quantity", "m", "mm", minimum=0, maximum=60,
                meaning="unbraced length about the weak (y) axis; 0 = braced (e.g. by sheathing)", blank="length"),
-        Column("Lu", "quantity", "m", "mm", default=0.0, minimum=0,
+        Column("Lu", "quantity", "m", "mm", default=0.0, minimum=0, maximum=60,
                meaning="laterally unsupported length of the compression edge (0 = held continuously by decking or joists)",
                blank="0 on a bending member; length on a beam-column or tension-bending member"),
         Column("restraint", "choice", choices=("purlins", "blocking", "both-edges"),
                meaning="lateral bracing beyond what Lu says: purlins, bridging or blocking at 8d, or both edges held"),
         Column("net_area", "number", default=1.0, minimum=0, strict=True,
                meaning="A_n / A_g at the worst cross-section (holes, notches)"),
-        Column("bearing", "quantity", "mm", "mm", minimum=0, strict=True,
+        Column("bearing", "quantity", "mm", "mm", minimum=0, strict=True, maximum=2000,
                meaning="bearing length at each support", blank="none (no bearing check)"),
     ]
-    for prefix, unit, compute in (("P", "kN", "N"), ("w", "kN/m", "N/mm"), ("M", "kN*m", "N*mm"), ("V", "kN", "N")):
-        cols += [Column(f"{prefix}_{t}", "quantity", unit, compute, default=0.0,
+    # common practice: a timber member carries well under 10 MN, 1 MN/m or 10 MN·m; beyond is a unit slip
+    for prefix, unit, compute, bound in (("P", "kN", "N", 1e4), ("w", "kN/m", "N/mm", 1e3),
+                                         ("M", "kN*m", "N*mm", 1e4), ("V", "kN", "N", 1e4)):
+        cols += [Column(f"{prefix}_{t}", "quantity", unit, compute, default=0.0, minimum=-bound, maximum=bound,
                         meaning=f"specified {LOAD_MEANING[prefix]} from {LOAD_NAMES[t]} load") for t in LOAD_TYPES]
     cols += [
         Column("spans", "spans",
                meaning="beam spans between support centres, separated by '+' (continuous over interior supports)",
                blank="one span, the length"),
-        Column("overhang_left", "quantity", "m", "mm", default=0.0, minimum=0,
+        Column("overhang_left", "quantity", "m", "mm", default=0.0, minimum=0, maximum=60,
                meaning="overhang beyond the left end support"),
-        Column("overhang_right", "quantity", "m", "mm", default=0.0, minimum=0,
+        Column("overhang_right", "quantity", "m", "mm", default=0.0, minimum=0, maximum=60,
                meaning="overhang beyond the right end support"),
-        Column("trib", "quantity", "m", "mm", minimum=0, strict=True,
+        Column("trib", "quantity", "m", "mm", minimum=0, strict=True, maximum=60,
                meaning="tributary width of the area loads q_*: w = q × trib", blank="none (q_* refused)"),
     ]
-    cols += [Column(f"q_{t}", "quantity", "kPa", "MPa", default=0.0,
+    # common practice: no building carries 1 MPa (1000 kPa) of area load
+    cols += [Column(f"q_{t}", "quantity", "kPa", "MPa", default=0.0, minimum=-1e3, maximum=1e3,
                     meaning=f"specified area load from {LOAD_NAMES[t]} load, times trib") for t in LOAD_TYPES]
     cols += [Column(f"point_{t}", "points", default=(),
                     meaning=f"{LOAD_NAMES[t]} point loads value@position; … (kN at m from the left end)", blank="none")
@@ -125,15 +142,17 @@ def _columns() -> tuple[Column, ...]:
                     meaning="reactions this member supports: MARK.Rn@position on a beam, MARK.Rn on a column; "
                     "MARK alone = its largest reaction", blank="none")]
     cols += [
-        Column("defl_L", "number", default=360.0, minimum=0, strict=True,
+        # span divisors: common practice from L/120 (cantilevers, roofs without ceilings) to L/2000
+        Column("defl_L", "number", default=360.0, minimum=120, maximum=2000,
                meaning="live-load deflection limit as a span divisor (360 = L/360)"),
-        Column("defl_total", "number", default=240.0, minimum=0, strict=True,
+        Column("defl_total", "number", default=240.0, minimum=120, maximum=2000,
                meaning="total-load deflection limit as a span divisor (240 = L/240)"),
         Column("K_D", "number", minimum=0, strict=True,
                meaning="override of the load-duration factor, marked on the sheet", blank="computed per combination"),
-        Column("width", "quantity", "mm", "mm", minimum=0, strict=True,
+        # sizing constraints, common practice: no glulam is wider than 365 mm or deeper than 2.5 m
+        Column("width", "quantity", "mm", "mm", minimum=0, strict=True, maximum=365,
                meaning="sizing constraint for size = auto: a fixed width"),
-        Column("max_depth", "quantity", "mm", "mm", minimum=0, strict=True,
+        Column("max_depth", "quantity", "mm", "mm", minimum=0, strict=True, maximum=2500,
                meaning="sizing constraint for size = auto: the largest depth"),
         Column("prefer", "choice", choices=("deep", "square"),
                meaning="sizing preference among passing sections of near-equal weight", blank="lightest"),
@@ -269,58 +288,117 @@ class Schedule:
 
 # --------------------------------------------------------------------------- reading
 def read_rows(path: Path) -> tuple[list[str], list[tuple[int, dict[str, str]]], list[str]]:
-    """Header, rows as (spreadsheet row number, {column: text}), and notes."""
+    """Header, rows as (spreadsheet row number, {column: text}), and notes.
+
+    A row that cannot be read whole (a runaway quote) comes back as ``{UNREAD: problem}``.
+    """
     if not path.exists():
         raise JobError(str(path), "no schedule file", "Create schedule.csv (timbersheets new DIR makes one)")
+    if not path.is_file():
+        raise JobError(str(path), "is not a file", "The schedule is a CSV or .xlsx file in the job folder")
     if path.suffix.lower() == ".xlsx":
         return _read_xlsx(path)
-    raw = path.read_bytes()
-    try:
-        text = raw.decode("utf-8-sig")
-    except UnicodeDecodeError as exc:
-        raise JobError(str(path), f"is not UTF-8 text (byte {exc.start})", "Save it as CSV UTF-8") from None
-    lines = text.splitlines()
+    text = decode_text(path)
     notes: list[str] = []
-    first = next((ln for ln in lines if ln.strip()), "")
+    first = next((ln for ln in physical_lines(text) if ln.strip()), "")
     delimiter = ","
     if first.count(";") > first.count(","):
         delimiter = ";"
         notes.append(f"{path.name}: read as semicolon-separated (decimal commas accepted)")
-    reader = csv.reader(lines, delimiter=delimiter)
-    table = list(reader)
-    if not table:
+    table = split_records(text, delimiter)
+    if not table or not any(c.strip() for c in table[0].cells):
         raise JobError(str(path), "is empty", "The first row must name the columns (mark, type, ...)")
-    header = [h.strip() for h in table[0]]
+    if table[0].problem:
+        raise JobError(f"{path.name}, row 1", table[0].problem)
+    header = [h.strip() for h in table[0].cells]
+    _refuse_duplicates(path.name, header)
     rows = []
-    for number, cells in enumerate(table[1:], start=2):
+    for record in table[1:]:
+        cells = record.cells
+        if record.problem:
+            rows.append((record.row, {"mark": cells[0].strip() if cells else "", UNREAD: record.problem}))
+            continue
         if not any(c.strip() for c in cells):
             continue
         if delimiter == ";":
             cells = [re.sub(r"^(\s*[-+]?\d+),(\d+)", r"\1.\2", c) for c in cells]
-        row = {h: (cells[i].strip() if i < len(cells) else "") for i, h in enumerate(header)}
-        if any(c.strip() for c in cells[len(header):]):
-            row[EXTRA] = "yes"
-        rows.append((number, row))
+        rows.append((record.row, _row_dict(header, cells)))
     return header, rows, notes
 
 
+def decode_text(path: Path) -> str:
+    """The text of a file saved as UTF-8 (with or without BOM) or UTF-16 (with BOM)."""
+    raw = path.read_bytes()
+    if raw[:2] in (b"\xff\xfe", b"\xfe\xff"):
+        try:
+            return raw.decode("utf-16")
+        except UnicodeDecodeError:
+            raise JobError(str(path), "is not valid UTF-16 text", "Save it as CSV UTF-8") from None
+    try:
+        return raw.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        line = raw[:exc.start].count(b"\n") + 1
+        raise JobError(str(path), f"is not UTF-8 text (line {line}, byte {exc.start})", "Save it as CSV UTF-8") from None
+
+
+def _refuse_duplicates(file: str, header: list[str]) -> None:
+    seen: dict[str, int] = {}
+    for number, name in enumerate(header, start=1):
+        if name and name in seen:
+            raise JobError(f"{file}, row 1, column '{name}'",
+                           f"appears twice (columns {seen[name]} and {number}); which one holds the value is unclear",
+                           "Keep one column of each name")
+        seen.setdefault(name, number)
+
+
+def _row_dict(header: list[str], cells: list[str]) -> dict[str, str]:
+    row = {h: (clean(cells[i]) if i < len(cells) else "") for i, h in enumerate(header) if h}
+    beyond = [i for i, c in enumerate(cells) if c.strip() and (i >= len(header) or not header[i])]
+    if beyond:
+        row[EXTRA] = ", ".join(str(i + 1) for i in beyond)
+    return row
+
+
 def _read_xlsx(path: Path) -> tuple[list[str], list[tuple[int, dict[str, str]]], list[str]]:
+    """The first sheet, numbers at full precision. A formula with no saved value and a
+    cell hidden under a merge are errors of their cell: both would read as blank."""
     import openpyxl
 
     try:
-        book = openpyxl.load_workbook(path, read_only=True, data_only=True)
+        book = openpyxl.load_workbook(path, data_only=True)
+        formulas = openpyxl.load_workbook(path, data_only=False).worksheets[0]
     except Exception as exc:  # openpyxl raises many kinds for a bad file
         raise JobError(str(path), f"cannot be read as .xlsx ({exc})") from None
     sheet = book.worksheets[0]
-    table = [["" if v is None else (f"{v:g}" if isinstance(v, float) else str(v)) for v in row]
-             for row in sheet.iter_rows(values_only=True)]
-    book.close()
+    table = [[_xlsx_text(v) for v in row] for row in sheet.iter_rows(values_only=True)]
     if not table:
         raise JobError(str(path), "is empty")
     header = [h.strip() for h in table[0]]
-    rows = [(n, {h: (cells[i].strip() if i < len(cells) else "") for i, h in enumerate(header) if h})
-            for n, cells in enumerate(table[1:], start=2) if any(c.strip() for c in cells)]
+    _refuse_duplicates(path.name, header)
+    hidden = {cell: str(r) for r in sheet.merged_cells.ranges for cell in list(r.cells)[1:]}
+    rows = []
+    for n, cells in enumerate(table[1:], start=2):
+        row = _row_dict(header, cells)
+        for i, name in enumerate(header):
+            if not name:
+                continue
+            if (n, i + 1) in hidden:
+                row[BAD + name] = (f"is inside merged cells {hidden[(n, i + 1)]}; only the first cell of a merge "
+                                   "holds a value. Unmerge and fill every row")
+            elif cells[i:i + 1] == [""] and formulas.cell(n, i + 1).data_type == "f":
+                row[BAD + name] = ("is a formula with no saved value; open the file in a spreadsheet program "
+                                   "and save it, so the value is stored")
+        if any(c.strip() for c in cells) or any(k.startswith(BAD) for k in row):
+            rows.append((n, row))
     return header, rows, []
+
+
+def _xlsx_text(value: Any) -> str:
+    if value is None:
+        return ""
+    if isinstance(value, float):
+        return repr(value)
+    return str(value)
 
 
 # --------------------------------------------------------------------------- validating
@@ -334,6 +412,8 @@ def load_schedule(path: Path, data=None) -> Schedule:
     data = data or default_data()
     header, rows, notes = read_rows(path)
     name = path.name
+    if not rows:
+        raise JobError(str(path), "has no member rows", "Give one row per member below the header")
     warnings = list(notes)
     missing = [c for c in REQUIRED if c not in header]
     if missing:
@@ -350,7 +430,7 @@ def load_schedule(path: Path, data=None) -> Schedule:
     for number, cells in rows:
         mark = cells.get("mark", "")
         errors, values, given = _validate_row(name, number, cells, data)
-        if mark and MARK.match(mark):
+        if mark and not label_problem(mark):
             if mark in first_row:
                 errors.insert(0, ScheduleError(name, number, "mark", mark,
                                                f"is a duplicate of the mark in row {first_row[mark]}",
@@ -370,17 +450,26 @@ def _validate_row(file: str, row: int, cells: dict[str, str], data) -> tuple[lis
     errors: list[ScheduleError] = []
     values: dict[str, Any] = {}
     given: set[str] = set()
+    if UNREAD in cells:
+        return [ScheduleError(file, row, None, None, cells[UNREAD])], values, given
     if EXTRA in cells:
-        errors.append(ScheduleError(file, row, None, None, "has more cells than the header has columns",
-                                    "one cell per header column (quote text that contains commas)"))
+        errors.append(ScheduleError(file, row, None, None, f"has a value in column(s) {cells[EXTRA]}, beyond the "
+                                    "named columns", "one cell per header column (quote text that contains commas)"))
     for name, col in COLUMNS.items():
         text = cells.get(name, "")
+        if BAD + name in cells:
+            errors.append(ScheduleError(file, row, name, None, cells[BAD + name]))
+            continue
         if not text:
             if col.required:
                 errors.append(ScheduleError(file, row, name, "", "is blank, but the column is required", _allowed(col)))
             values[name] = col.default
             continue
         given.add(name)
+        problem = cell_problem(text)
+        if problem:
+            errors.append(ScheduleError(file, row, name, text[:40] + ("..." if len(text) > 40 else ""), problem))
+            continue
         try:
             values[name] = _read_cell(col, text)
         except ValueError as exc:
@@ -412,28 +501,39 @@ def choices(col: Column) -> tuple[str, ...]:
 
 def _allowed(col: Column) -> str:
     if col.name == "mark":
-        return "letters, digits, '-', '_' and '.'"
+        return "letters, digits, '-', '_' and '.', at most 40 characters"
     if col.kind == "choice":
         return ", ".join(choices(col))
     if col.kind == "size":
         return "b x d in mm, e.g. 38x235 or 130x228"
     if col.kind == "count":
-        return "a whole number of at least 1"
+        return f"a whole number from {col.minimum:g} to {col.maximum:g}"
     if col.kind in beamloads.ALLOWED:
         return beamloads.ALLOWED[col.kind]
     if col.kind == "quantity":
-        bound = "greater than 0" if col.strict else "0 or more" if col.minimum is not None else "any sign"
-        return f"a number in {col.unit} ({bound}), or with its own unit, e.g. {example(col.unit)}"
+        return f"a number in {col.unit} ({bound_text(col)}), or with its own unit, e.g. {example(col.unit)}"
     if col.kind == "number":
-        bound = "greater than 0" if col.strict else "0 or more"
-        return f"a plain number ({bound})"
+        return f"a plain number ({bound_text(col)})"
     return ""
+
+
+def bound_text(col: Column) -> str:
+    """The column's bounds in words, as the column reference states them."""
+    low = col.minimum
+    if low is None:
+        return "any value"
+    if col.maximum is not None and low == -col.maximum:
+        return f"from {low:g} to {col.maximum:g}"
+    if col.maximum is None:
+        return "greater than 0" if col.strict and low == 0 else f"greater than {low:g}" if col.strict \
+            else "0 or more" if low == 0 else f"at least {low:g}"
+    return f"{'over' if col.strict else 'from'} {low:g} {'up ' if col.strict else ''}to {col.maximum:g}"
 
 
 def _read_cell(col: Column, text: str) -> Any:
     if col.kind == "text":
-        if col.name == "mark" and not MARK.match(text):
-            raise ValueError("has characters a mark may not have")
+        if col.name == "mark" and label_problem(text):
+            raise ValueError(label_problem(text))
         return text
     if col.kind == "choice":
         folded = {c.casefold(): c for c in choices(col)}
@@ -450,8 +550,8 @@ def _read_cell(col: Column, text: str) -> Any:
     if col.kind in beamloads.READERS:
         return beamloads.READERS[col.kind](text)
     if col.kind == "count":
-        if not re.fullmatch(r"\d+", text) or int(text) < 1:
-            raise ValueError("is not a whole number of at least 1")
+        if not re.fullmatch(r"\d{1,6}", text) or not col.minimum <= int(text) <= col.maximum:
+            raise ValueError(f"is not a whole number from {col.minimum:g} to {col.maximum:g}")
         return int(text)
     if col.kind == "quantity":
         try:
@@ -471,12 +571,13 @@ def _read_cell(col: Column, text: str) -> Any:
 
 
 def _check_bound(col: Column, value: float) -> None:
-    if col.minimum is None:
-        return
-    if col.strict and value <= col.minimum:
-        raise ValueError("must be greater than 0" if col.minimum == 0 else f"must exceed {col.minimum:g}")
-    if value < col.minimum:
-        raise ValueError("must not be negative" if col.minimum == 0 else f"must be at least {col.minimum:g}")
+    if col.minimum is not None:
+        if col.strict and value <= col.minimum:
+            raise ValueError("must be greater than 0" if col.minimum == 0 else f"must exceed {col.minimum:g}")
+        if value < col.minimum:
+            raise ValueError("must not be negative" if col.minimum == 0 else f"must be at least {col.minimum:g}")
+    if col.maximum is not None and value > col.maximum:
+        raise ValueError(f"exceeds {col.maximum:g}, more than any real member has")
 
 
 def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str], data) -> list[ScheduleError]:
@@ -531,9 +632,6 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str], data)
             errs.append(ScheduleError(file, row, name, f"{v[name] / 1000:g} m", f"is longer than the member (length {v['length'] / 1000:g} m)",
                                       f"at most the length, {v['length'] / 1000:g} m"))
     errs += _type_rules(file, row, v, given)
-    if v["K_H"] is not None and v["K_H"] > 1.4:
-        errs.append(ScheduleError(file, row, "K_H", f"{v['K_H']:g}", "exceeds the largest system factor of O86 "
-                                  "(1.4, Case 2 for bending and shear)", "1.0 to 1.4"))
     return errs
 
 

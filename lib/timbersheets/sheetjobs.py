@@ -10,13 +10,12 @@ from __future__ import annotations
 
 import hashlib
 import json
-import os
-import shutil
 from dataclasses import dataclass, field
 from functools import cached_property
 from pathlib import Path
 from typing import Any
 
+from .fileio import copy_atomic
 from .constants import RESULT_MIME
 from .pipeline import ConversionError, execute, file_hash, library_fingerprint, notebook_to_pdf, to_html
 
@@ -57,13 +56,6 @@ class SheetOutcome:
     pages: int = 0  # pages of the PDF sheet (0: not known)
     record: dict[str, Any] | None = field(default=None, repr=False)
     trace: str = field(default="", repr=False)  # traceback of an unexpected failure, for run.log
-
-
-def copy_atomic(src: Path, dst: Path) -> None:
-    dst.parent.mkdir(parents=True, exist_ok=True)
-    staged = dst.with_name(f".{dst.name}.part")
-    shutil.copyfile(src, staged)
-    os.replace(staged, dst)
 
 
 def read_record(notebook: Path) -> tuple[dict[str, Any] | None, str | None]:

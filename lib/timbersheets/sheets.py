@@ -372,7 +372,7 @@ class Sheet:
         clauses = (" Clause numbers follow the O86-14 numbering, believed unchanged in O86:19 (memory, unverified).")
         notes = ""
         if self.design.warnings:
-            items = "".join(f"\\item {escape(w)}\n" for w in self.design.warnings)
+            items = "".join(f"\\item {caption_latex(w)}\n" for w in self.design.warnings)
             notes = f"\\par\\smallskip Notes on this member:\n\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n"
             md += "\n\nNotes:\n" + "".join(f"- {md_escape(w)}\n" for w in self.design.warnings)
         return Block(f"\\begin{{cautionbox}}\n{escape(CAUTION)}{codes}{escape(clauses)}{escape(source)}\n{notes}"

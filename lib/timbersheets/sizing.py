@@ -72,7 +72,8 @@ def catalogue(member: Member, data: DataSet) -> list[Section]:
     sections: list[Section] = []
     if member.material == "glulam":
         lam, min_depth = data.lamination
-        deepest = max_depth or data.glulam_factor("depth_max_standard").value
+        standard = data.glulam_factor("depth_max_standard").value
+        deepest = min(max_depth, standard) if max_depth else standard  # the catalogue ends at the standard
         depths = [min_depth + lam * i for i in range(int((deepest - min_depth) // lam) + 1)]
         sections = [Section(float(w), d) for w in data.glulam_widths for d in depths]
     else:
@@ -105,7 +106,9 @@ def evaluate(member: Member, data: DataSet, section: Section, cases, design) -> 
         checks = design(ctx, cases)
     except DesignError as exc:
         return Candidate(section, math.inf, exc.problem)
-    gov = max(checks, key=lambda c: c.utilization)
+    gov = max(checks, key=lambda c: c.utilization if math.isfinite(c.utilization) else math.inf)
+    if not math.isfinite(gov.utilization):
+        return Candidate(section, math.inf, f"{gov.check} under {gov.combination} is not a finite number")
     return Candidate(section, gov.utilization, f"{gov.check} under {gov.combination}")
 
 

@@ -7,13 +7,19 @@ prints literally and reads no file.
 
 from __future__ import annotations
 
+import subprocess
+import unicodedata
 from dataclasses import dataclass, field
+from functools import lru_cache
 
 _LATEX = {
     "\\": r"\textbackslash{}", "{": r"\{", "}": r"\}", "$": r"\$", "&": r"\&", "#": r"\#",
     "^": r"\textasciicircum{}", "_": r"\_", "%": r"\%", "~": r"\textasciitilde{}",
-    "<": r"\textless{}", ">": r"\textgreater{}", "|": r"\textbar{}", "\n": " ", "\r": " ", "\t": " ",
+    "<": r"\textless{}", ">": r"\textgreater{}", "|": r"\textbar{}",
+    # TeX ligatures would turn these into typographic quotes and dashes (-- into an en dash)
+    "'": r"\textquotesingle{}", "`": r"\textasciigrave{}", '"': r"\textquotedbl{}",
 }
+_PAIRED = ("-", ",")  # doubled, TeX joins them (-- an en dash, ,, a low quote): kept apart by {}
 _MARKDOWN = set("\\`*_{}[]()#+-.!|<>$")
 
 
@@ -21,37 +27,76 @@ _MARKDOWN = set("\\`*_{}[]()#+-.!|<>$")
 _NATIVE = (set(range(0x20, 0x7F)) | set(range(0xA0, 0x180)) | set(range(0x3B1, 0x3CA))
            | {0x2013, 0x2014, 0x2018, 0x2019, 0x201A, 0x201C, 0x201D, 0x201E, 0x2020, 0x2021, 0x2022, 0x2026,
               0x2030, 0x2032, 0x2033, 0x2039, 0x203A, 0x20AC, 0x2122, 0x2264, 0x2265, 0x2260, 0x2248, 0x22C5})
-#: Ranges DejaVu Sans (fonts-dejavu-core) covers: Greek, Cyrillic, Canadian syllabics, arrows,
-#: mathematical operators, technical symbols, box drawing, shapes, dingbats.
-_FALLBACK = ((0x180, 0x24F), (0x370, 0x52F), (0x1400, 0x167F), (0x2000, 0x2BFF))
+#: Ranges DejaVu Sans (fonts-dejavu-core) covers, when its own character map cannot be read.
+_FALLBACK = ((0x180, 0x24F), (0x370, 0x52F), (0x1400, 0x167F), (0x2010, 0x2027), (0x2030, 0x205E),
+             (0x2190, 0x23FF), (0x2500, 0x27BF))
+#: Unicode categories that print as nothing (format characters) or a space (separators).
+_DROP, _SPACE = ("Cf", "Cc", "Cs", "Co", "Cn"), ("Zs", "Zl", "Zp")
+
+
+@lru_cache(maxsize=1)
+def fallback_characters() -> frozenset[int] | None:
+    """The characters the installed DejaVu Sans has (read from the font), or None."""
+    try:
+        found = subprocess.run(["fc-match", "-f", "%{file}", "DejaVu Sans"], capture_output=True, text=True,
+                               timeout=10, check=True).stdout.strip()
+        from fontTools.ttLib import TTFont
+
+        if "DejaVuSans" not in found:
+            return None
+        return frozenset(TTFont(found, lazy=True).getBestCmap())
+    except (OSError, subprocess.SubprocessError, ImportError, ValueError):
+        return None
 
 
 def _covered_by_fallback(code: int) -> bool:
+    cmap = fallback_characters()
+    if cmap is not None:
+        return code in cmap
     return any(lo <= code <= hi for lo, hi in _FALLBACK)
 
 
 def escape(text: object) -> str:
-    """LaTeX-safe text: every special character printed literally.
+    """LaTeX-safe text: every character printed as itself, or as '?' when no font has it.
 
     Characters outside the sheet's typeface are set in the fallback font
-    (``\\tsfallback``, DejaVu Sans), so a place name in syllabics prints; a
-    character no installed font covers (an emoji) prints as '?', never breaks
-    the sheet.
+    (``\\tsfallback``, DejaVu Sans), a run of them in one group, so a place
+    name in syllabics prints; a character neither font covers (an emoji) prints
+    as '?', and a line break or other separator as a space: nothing breaks the sheet.
     """
-    out = []
-    for ch in str(text):
+    out: list[str] = []
+    run: list[str] = []
+
+    def flush() -> None:
+        if run:
+            out.append("\\tsfallback{" + "".join(run) + "}")
+            run.clear()
+
+    text = str(text)
+    for i, ch in enumerate(text):
         code = ord(ch)
-        if ch in _LATEX:
+        category = unicodedata.category(ch)
+        if ch in _PAIRED:
+            flush()
+            out.append(ch + ("{}" if text[i + 1:i + 2] == ch else ""))
+        elif ch in _LATEX:
+            flush()
             out.append(_LATEX[ch])
-        elif code < 0x20:
+        elif category in _SPACE or ch in "\n\r\t\f\v\x85":
+            flush()
+            out.append(" ")
+        elif category in _DROP:
             continue
         elif code in _NATIVE:
+            flush()
             out.append(ch)
         elif _covered_by_fallback(code):
-            out.append(f"\\tsfallback{{{ch}}}")
+            run.append(ch)
         else:
+            flush()
             out.append("?")
-    return "".join(out).replace("}\\tsfallback{", "")
+    flush()
+    return "".join(out)
 
 
 def md_escape(text: object) -> str:
