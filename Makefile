@@ -10,7 +10,7 @@ DEMO   := calcsheets/kestrel-cove-boathouse
 
 help:
 	@echo "make demo   set up, then build the demo job's calc package (outputs/kestrel-cove-boathouse/)"
-	@echo "make check  the fast tests (no notebooks, no TeX): the inner loop, well under a minute"
+	@echo "make check  the fast tests (no notebooks, no TeX, no corpus): the inner loop, under 30 s"
 	@echo "make test   set up, then run the whole test suite (real papermill, nbconvert and xelatex)"
 	@echo "make wheel-check  build the wheel, install it in a fresh venv, build a demo sheet from another folder"
 	@echo "make bench  set up, then time a 100-member package and the sizing search"
@@ -29,7 +29,7 @@ demo: $(STAMP) system
 	$(BIN)/timbersheets run $(DEMO); status=$$?; [ $$status -le 1 ] || exit $$status
 
 check: $(STAMP)
-	$(BIN)/python -m pytest -q -m "not pipeline"
+	$(BIN)/python -m pytest -q -m "not pipeline and not corpus" -n 2
 
 test: $(STAMP) system
 	$(BIN)/python -m pytest -q
