@@ -13,7 +13,7 @@ from hypothesis import strategies as st
 from timbersheets.tex import _DROP, _LATEX, _NATIVE, _SPACE, _covered_by_fallback, escape
 
 pytestmark = pytest.mark.pipeline  # runs xelatex
-SHEET = Path(__file__).resolve().parent.parent / "templates" / "latex" / "sheet" / "sheet.tex.j2"
+SHEET = Path(__file__).resolve().parent.parent / "templates" / "latex" / "sheet" / "preamble.tex.j2"  # the font set-up
 PREAMBLE_LINES = re.compile(r"^\\(newcommand\{\\tsfallback\}|tracinglostchars|newunicodechar).*$", re.M)
 MAPPED = {ord(m) for m in re.findall(r"\\newunicodechar\{(.)\}", SHEET.read_text(encoding="utf-8"))}
 
@@ -21,7 +21,8 @@ MAPPED = {ord(m) for m in re.findall(r"\\newunicodechar\{(.)\}", SHEET.read_text
 def typeset(texts: list[str], work: Path) -> str:
     """One paragraph per text, with the sheet's own font set-up; the PDF's text."""
     preamble = "\n".join(m.group(0) for m in PREAMBLE_LINES.finditer(SHEET.read_text(encoding="utf-8")))
-    body = "\n\n".join(f"ZZQ{i}ZZQ {escape(t)}" for i, t in enumerate(texts))
+    # each text ends in a marker, so a trailing hyphen never ends a line (pdftotext would join it away)
+    body = "\n\n".join(f"ZZQ{i}ZZQ {escape(t)} ZZE" for i, t in enumerate(texts))
     (work / "t.tex").write_text("\\documentclass{article}\\usepackage{amsmath,amssymb,fontspec,newunicodechar}\n"
                                 f"{preamble}\n\\pagestyle{{empty}}\\hyphenpenalty=10000\\exhyphenpenalty=10000\\raggedright\\sloppy\n"
                                 f"\\begin{{document}}\n{body}\n\\end{{document}}\n", encoding="utf-8")
@@ -36,6 +37,8 @@ def expected(text: str) -> str:
     out = []
     for ch in text:
         category = unicodedata.category(ch)
+        if ch == "\xad":  # soft hyphen: a break hint, invisible unless a line breaks there
+            continue
         if ch in _LATEX or ord(ch) in _NATIVE:
             out.append(ch)
         elif category in _SPACE or ch in "\n\r\t\f\v\x85":
@@ -53,7 +56,7 @@ def words(text: str) -> str:
 
 def pieces(pdf_text: str, n: int) -> list[str]:
     parts = re.split(r"ZZQ(\d+)ZZQ", pdf_text)
-    return [words(parts[2 + 2 * i]) for i in range(n)]
+    return [words(parts[2 + 2 * i].replace("ZZE", "")) for i in range(n)]
 
 
 # Characters whose text round-trips through a PDF: not right-to-left (pdftotext reorders them),
@@ -61,7 +64,9 @@ def pieces(pdf_text: str, n: int) -> list[str]:
 READABLE = st.characters(blacklist_categories=("Cs", "Mn", "Mc", "Me"),
                          blacklist_characters="".join(chr(c) for c in MAPPED)).filter(
     lambda ch: unicodedata.bidirectional(ch) not in ("R", "AL", "AN", "RLE", "RLO", "RLI"))
-SETTINGS = settings(max_examples=6, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+# derandomized: the same examples on every machine, so CI cannot fail on a draw the last run never made
+SETTINGS = settings(max_examples=6, deadline=None, derandomize=True,
+                    suppress_health_check=[HealthCheck.function_scoped_fixture])
 
 
 @SETTINGS
