@@ -18,19 +18,10 @@ from .fileio import write_atomic
 from .pipeline import templates_dir
 from .project import Project
 from .tex import escape
-from .typeset import typeset
+from .typeset import layout_environment, typeset
 
 MEMBERS_SHOWN = 6
 
-
-def _environment():
-    import jinja2
-
-    return jinja2.Environment(
-        loader=jinja2.FileSystemLoader(str(templates_dir() / "latex" / "data")),
-        block_start_string="((*", block_end_string="*))", variable_start_string="((",
-        variable_end_string="))", comment_start_string="((=", comment_end_string="=))",
-        autoescape=False, undefined=jinja2.StrictUndefined, keep_trailing_newline=True)
 
 
 def _members(marks: list[str]) -> str:
@@ -59,7 +50,7 @@ def sheet_tex(project: Project, data: DataSet, items: list[Item]) -> str:
         "caution": escape(SHORT_CAUTION), "caution_long": escape(CAUTION),
         "tool_version": f"timbersheets {__version__}", "data_hash": data.hash.split(":")[1][:12],
     }
-    return _environment().get_template("verification.tex.j2").render(**context)
+    return layout_environment(templates_dir() / "latex" / "data").get_template("verification.tex.j2").render(**context)
 
 
 def write_sheet(project: Project, data: DataSet, items: list[Item], folder: Path) -> Path:

@@ -44,8 +44,9 @@ def loads_block(m) -> Block:
     out = Block("", "")
     v = m.values
     if is_model(m):
-        out += para(escape("F is the total specified load of each type on the member (line, partial, point and "
-                           "carried loads), the load on which K_D's long-term ratio is taken (CSA O86 5.3.2.3)."))
+        out += para("$F$ " + escape("is the total specified load of each type on the member (line, partial, point "
+                                    "and carried loads), the load on which the long-term ratio for ") + "$K_D$"
+                    + escape(" is taken (CSA O86 5.3.2.3)."))
     elif v.get("carried"):
         out += para(escape("P includes the axial loads this member carries from other members (listed below)."))
     if v.get("trib") is not None and any(v[f"q_{t}"] for t in "DLSWE"):
@@ -92,7 +93,7 @@ def forces_block(design) -> Block:
                        "stiffness method), each load type and span analysed alone and added (superposition). "
                        "Dead load is on every span; wind and earthquake as given. " + arrangement +
                        "Moments, shears and reactions of a prismatic beam do not depend on its stiffness; "
-                       "deflections are the model's E I Δ divided by E_S I_x."))
+                       "deflections are the model's ") + r"$E I \Delta$ divided by $E_S I_x$.")
     reactions = reactions_by_type(m)
     types = [t for t in "DLSWE" if any(r.get(t) for r in reactions.values())]
     rows = [[f"R{j}", *[q(r.get(t, 0.0), "N") for t in types]] for j, r in reactions.items()]
@@ -155,7 +156,8 @@ def serviceability_block(design, data) -> Block:
              "unverified" if any(not d.verified for d in c.datums) else "sourced"] for c in cases]
     words = ("Deflection of each span and of each overhang tip from the same model, under specified loads with "
              "live and snow placed to make each deflection largest (either sense). Limit: the span over n; at an "
-             "overhang tip, twice the overhang over n. E_S = E K_SE K_T, no K_D. Live 1.0L (+ 1.0S), total "
-             "1.0D + 1.0L + 1.0S, each with only the loads this member carries.")
-    return out + para(escape(words)) + table(Table(["Deflection", "Combination", "Limit", "Data status"], rows,
+             "overhang tip, twice the overhang over n.")
+    stiffness = r" $E_S = E\,K_{SE}\,K_T$, no $K_D$. "
+    combos = "Live 1.0L (+ 1.0S), total 1.0D + 1.0L + 1.0S, each with only the loads this member carries."
+    return out + para(escape(words) + stiffness + escape(combos)) + table(Table(["Deflection", "Combination", "Limit", "Data status"], rows,
                                                    "llrl"))

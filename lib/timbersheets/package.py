@@ -29,20 +29,11 @@ from .review import count_text, standing, titleblock_text
 from .revisions import MemberChange
 from .symbols import ACTION_WORDS
 from .tex import escape
-from .typeset import typeset
+from .typeset import layout_environment, typeset
 
 VERDICT = {"pass": "passes", "fail": "does not pass", "error": "not designed"}
 VERDICT_TEX = {"pass": "PASSES", "fail": r"\textbf{DOES NOT PASS}", "error": r"\textbf{NOT DESIGNED}"}
 
-
-def _environment():
-    import jinja2
-
-    return jinja2.Environment(
-        loader=jinja2.FileSystemLoader(str(templates_dir() / "latex" / "package")),
-        block_start_string="((*", block_end_string="*))", variable_start_string="((",
-        variable_end_string="))", comment_start_string="((=", comment_end_string="=))",
-        autoescape=False, undefined=jinja2.StrictUndefined, keep_trailing_newline=True)
 
 
 def page_count(pdf: Path) -> int:
@@ -169,7 +160,7 @@ def package_tex(project: Project, doc: dict[str, Any], data: DataSet, outdir: Pa
         "tool_version": f"timbersheets {__version__}", "data_hash": data.hash.split(":")[1][:12],
         "total_pages": front_pages + sum(r["pages"] for r in rows),
     }
-    return _environment().get_template("package.tex.j2").render(**context), rows
+    return layout_environment(templates_dir() / "latex" / "package").get_template("package.tex.j2").render(**context), rows
 
 
 def _typeset(tex: str, work: Path, name: str) -> tuple[Path, str]:

@@ -51,3 +51,15 @@ def typeset(tex: str, work: Path, name: str, what: str, files: dict[str, bytes] 
 def error_tail(log: str) -> str:
     """The lines of a TeX log that state an error ("! ..."), last ones kept."""
     return "\n".join(line for line in log.splitlines() if line.startswith("!"))[-TAIL_CHARS:]
+
+
+def layout_environment(folder: Path):
+    """The Jinja environment of our LaTeX layouts in `folder`: ((* *)) blocks and (( )) values, so the
+    templates' own braces stay plain LaTeX; a missing value is an error, never an empty string."""
+    import jinja2
+
+    return jinja2.Environment(
+        loader=jinja2.FileSystemLoader(str(folder)),
+        block_start_string="((*", block_end_string="*))", variable_start_string="((",
+        variable_end_string="))", comment_start_string="((=", comment_end_string="=))",
+        autoescape=False, undefined=jinja2.StrictUndefined, keep_trailing_newline=True)
