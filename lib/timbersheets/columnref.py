@@ -1,4 +1,4 @@
-"""The schedule column reference, made from the column table in `schedule.py`.
+"""The schedule column reference, made from the column table in `columns.py`.
 
 One source: `timbersheets columns` prints it and `tools/write-column-reference`
 writes it to docs/columns.md (a test keeps that file equal to the code).
@@ -36,7 +36,7 @@ def markdown() -> str:
     lines = [
         "# Schedule columns",
         "",
-        "Generated from the column table in `lib/timbersheets/schedule.py` by",
+        "Generated from the column table in `lib/timbersheets/columns.py` by",
         "`tools/write-column-reference`; do not edit by hand. `timbersheets columns` prints the same.",
         "",
         "A blank cell means the default. A number may carry its own unit (`3.6 m`, `12 ft`, `12'-6\"`,",
