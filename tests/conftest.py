@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import csv
 import io
+import re
 import shutil
 from pathlib import Path
 
@@ -14,6 +15,13 @@ from timbersheets.design import design_member
 from timbersheets.schedule import load_schedule
 
 REPO = Path(__file__).resolve().parent.parent
+
+
+def readme_commands(heading: str) -> list[str]:
+    """The shell commands of the first ```sh block under `heading` in README.md, comments cut off."""
+    section = (REPO / "README.md").read_text(encoding="utf-8").split(heading, 1)[1]
+    block = re.search(r"```sh\n(.*?)```", section, re.S).group(1)
+    return [line.split("  #")[0].strip() for line in block.splitlines() if line.strip()]
 DEMO = REPO / "calcsheets" / "kestrel-cove-boathouse"
 
 

@@ -12,7 +12,7 @@ from pathlib import Path
 
 import pytest
 
-from conftest import REPO
+from conftest import REPO, readme_commands
 from test_firmdata import firm_csv, tension_job, verified
 from timbersheets.datacheck import firm_rows, job_designs, used_items
 from timbersheets.datasheet import write_sheet
@@ -77,19 +77,13 @@ def test_verification_sheet_holds_every_value_the_job_uses(verified_job, tmp_pat
         assert any(pattern.search(line) for line in lines), (what, item.datum.value)
 
 
-def readme_data_steps() -> list[str]:
-    text = (REPO / "README.md").read_text(encoding="utf-8")
-    section = text.split("## Verified data", 1)[1]
-    block = re.search(r"```sh\n(.*?)```", section, re.S).group(1)
-    return [line.split("  #")[0].strip() for line in block.splitlines() if line.strip()]
-
 
 def test_readme_steps_reach_zero_unverified_values(tmp_path):
     root = tmp_path / "repo"
     shutil.copytree(REPO / "calcsheets", root / "calcsheets")
     venv_bin = Path(sys.executable).parent
     outputs = []
-    for step in readme_data_steps():
+    for step in readme_commands("## Verified data"):
         if step.startswith("# edit"):  # what the engineer does: verify every row (values as the standard gives)
             firm = root / "calcsheets" / "data-demo" / "firm-data.csv"
             rows = list(csv.DictReader(firm.open(encoding="utf-8")))

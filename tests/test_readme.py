@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import re
 import shutil
 import subprocess
 import sys
@@ -10,16 +9,10 @@ from pathlib import Path
 
 import pytest
 
-from conftest import REPO
+from conftest import REPO, readme_commands
 
 pytestmark = pytest.mark.pipeline
 
-
-def loop_commands() -> list[str]:
-    text = (REPO / "README.md").read_text(encoding="utf-8")
-    section = text.split("## The revision loop", 1)[1]
-    block = re.search(r"```sh\n(.*?)```", section, re.S).group(1)
-    return [line.split("  #")[0].strip() for line in block.splitlines() if line.strip()]
 
 
 def test_readme_loop_runs_as_written(tmp_path):
@@ -28,7 +21,7 @@ def test_readme_loop_runs_as_written(tmp_path):
     venv_bin = Path(sys.executable).parent
     codes = []
     outputs = []
-    for command in loop_commands():
+    for command in readme_commands("## The revision loop"):
         command = command.replace(".venv/bin/", f"{venv_bin}/")
         done = subprocess.run(command, shell=True, cwd=root, capture_output=True, text=True)
         codes.append(done.returncode)
