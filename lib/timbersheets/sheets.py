@@ -319,8 +319,9 @@ class Sheet:
                          meaning(name), "schedule", "as given"])
         intro = para(f"Specified strengths for {escape(d.context.strengths.description) if d.context else ''}, "
                      "modification factors and resistance factors used by the checks below, with the table "
-                     "each comes from. Values marked unverified are from the team's reference notes and await "
-                     "checking against a licensed copy of the standard.")
+                     "each comes from. Values marked unverified were recorded from memory or secondary sources "
+                     "(lib/timbersheets/data/README.md lists each) and await checking against a licensed copy of "
+                     "the standard.")
         return heading("Material and modification factors") + intro + table(
             Table(["Symbol", "Value", "Meaning", "Source", "Data status"], rows, "lrXXl"))
 

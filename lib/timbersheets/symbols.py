@@ -15,6 +15,7 @@ SYMBOLS: dict[str, tuple[str, str]] = {
     "f_tn": ("f_{tn}", "specified strength in tension, net section"),
     "f_tg": ("f_{tg}", "specified strength in tension, gross section"),
     "E": ("E", "modulus of elasticity"),
+    "rho": (r"\rho", "density of the wood, for the own weight"),
     "E05": ("E_{05}", "modulus of elasticity for stability (fifth percentile)"),
     "K_Sb": ("K_{Sb}", "service condition factor, bending"),
     "K_Sv": ("K_{Sv}", "service condition factor, shear"),
@@ -40,7 +41,7 @@ SYMBOLS: dict[str, tuple[str, str]] = {
 }
 
 #: Units of data symbols that are not strengths (strengths and moduli are MPa).
-SYMBOL_UNITS = {"b_lam": "mm", "Z_max": "m**3"}
+SYMBOL_UNITS = {"b_lam": "mm", "Z_max": "m**3", "rho": "kg/m**3"}
 
 ACTION_WORDS = {
     "tension": "Tension parallel to grain",
