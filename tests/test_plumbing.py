@@ -4,7 +4,7 @@ import ast
 from pathlib import Path
 
 from conftest import member_row, write_job
-from timbersheets import design
+from timbersheets import driver
 from timbersheets.cli import main
 from timbersheets.constants import CAUTION, SHORT_CAUTION
 from timbersheets.errors import DataError, ExitCode, JobError, ScheduleError, UsageError
@@ -42,9 +42,9 @@ def test_a_usage_error_exits_2_with_its_message(tmp_path, capsys):
 
 def test_an_internal_error_leaves_its_traceback_in_run_log(tmp_path, monkeypatch):
     def defective(ctx, cases, kind):
-        return [1 / 0]  # a deliberate defect in a design routine
+        return [1 / 0]  # a deliberate defect in the design driver
 
-    monkeypatch.setitem(design.ROUTINES, "axial", defective)
+    monkeypatch.setattr(driver, "run_checks", defective)
     job = write_job(tmp_path / "job", [member_row("OK-1")])
     report = run_job(job, RunOptions(out=tmp_path / "out", sheets=False, progress=False))
     assert report.designs[0].status == "error"

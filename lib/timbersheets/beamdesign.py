@@ -112,7 +112,9 @@ def _where(t) -> str:
 
 
 def design_model(ctx, cases) -> list:
-    """Checks of a beam from its model: bending, shear and bearing per ULS combination, deflection per SLS."""
+    """Checks of a beam from its model, in the order made: bending, shear and bearing per ULS combination
+    (NotChecked where bearing cannot be), then deflection per SLS combination."""
+    from .checks import CheckResult
     from .checks.bearing import check_bearing
     from .checks.bending import check_bending
     from .checks.shear import check_shear
@@ -125,7 +127,7 @@ def design_model(ctx, cases) -> list:
                           "Give the loads on the beam only, or the frame model's forces only (then without spans, "
                           "overhangs, point_*, part_* and carries)")
     model = model_of(m)
-    out = {"bending": [], "shear": [], "bearing": []}
+    out: list = []
     for case in cases:
         for t in model.targets("strength", case.combination.factors, ctx.section.d):
             where = _where(t)
@@ -133,19 +135,17 @@ def design_model(ctx, cases) -> list:
                 negative = t.kind == "M-"
                 L_u = _unsupported_length(m, t, negative)
                 f = ModelForces(case, M_f=t.value, where=where, L_u=L_u)
-                out["bending"].append(replace(check_bending(ctx, f, False), where=where))
+                out.append(replace(check_bending(ctx, f, False), where=where))
             elif t.kind == "V":
                 f = ModelForces(case, V_f=abs(t.value), V_fd=abs(t.value), where=where)
-                out["shear"].append(replace(check_shear(ctx, f, False), where=where))
+                out.append(replace(check_shear(ctx, f, False), where=where))
             elif t.kind == "R":
                 result = check_bearing(ctx, ModelForces(case, R_f=t.value, where=where), False)
-                if result is not None:
-                    out["bearing"].append(replace(result, where=where))
-    checks = [c for name in ("bending", "shear", "bearing") for c in out[name]]
-    checks += model_deflections(ctx, model)
-    if not checks:
-        raise DesignError(ctx.mark, "carries no bending moment or shear under any combination")
-    return checks
+                if isinstance(result, CheckResult):
+                    out.append(replace(result, where=where))
+                elif result is not None:
+                    out.append(result)
+    return out + model_deflections(ctx, model)
 
 
 def _unsupported_length(m, target, negative: bool) -> float:
@@ -160,21 +160,23 @@ def _unsupported_length(m, target, negative: bool) -> float:
 def model_deflections(ctx, model) -> list:
     from .analysis import service_cases_for
     from .checks import Step, result
+    from .checks.context import inputs
 
     m, s = ctx.member, ctx.section
     out = []
     for sc in service_cases_for(m, ctx.data, model.present()):
         n_lim = m.values["defl_L" if sc.check == "deflection-live" else "defl_total"]
-        ctx.used += list(sc.datums)
         for t in model.targets("deflection", sc.factors):
             overhang = "overhang" in t.region
             L_d = 2 * t.length if overhang else t.length
-            values = model_deflection(EI_Delta=abs(t.value), E=ctx.f["E"], K_SE=ctx.K_S["K_SE"], K_T=ctx.K_T,
-                                      I_x=s.I_x, L_d=L_d, n_lim=n_lim)
+            given = inputs(EI_Delta=abs(t.value), E=ctx.f["E"], K_SE=ctx.K_S["K_SE"], K_T=ctx.K_T, I_x=s.I_x,
+                           L_d=L_d, n_lim=n_lim)
+            values = model_deflection(**given.values)
             words = (f"{sc.label} at {_where(t)}: E I Δ from the beam model (section 3) divided by E_S I_x; limit "
                      f"{'2 × overhang' if overhang else 'span'} L_d = {L_d / 1000:g} m over n = {n_lim:g}")
             r = result(sc.check, sc, values["Delta"], values["Delta_lim"], "mm", SLS_CLAUSE,
-                       (Step(model_deflection, values, words),), r"\Delta", r"\Delta_lim")
+                       (Step(model_deflection, values, words),), r"\Delta", r"\Delta_lim",
+                       used=(*sc.datums, *given.used))
             out.append(replace(r, leave_out=("Delta_lim",), with_kd=False, where=_where(t)))
     return out
 

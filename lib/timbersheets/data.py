@@ -4,15 +4,16 @@ Each value is a :class:`Datum` that knows the file, table and row it came from
 and whether it has been verified against the standard. A firm may point a job at
 its own data file (``[data] materials`` in project.toml, read by
 :mod:`timbersheets.firmdata`); its values win over the built-in ones, in any
-table. Every value a member uses is recorded, so the sheet and results.json can
-list the unverified ones.
+table. Every value a member uses travels with the check result that read it
+(:mod:`timbersheets.checks.context`), so the sheet and results.json can list the
+unverified ones.
 """
 
 from __future__ import annotations
 
 import csv
 import hashlib
-from collections.abc import Iterator, Mapping
+from collections.abc import Mapping
 from dataclasses import dataclass, replace
 from functools import cached_property
 from importlib import resources
@@ -144,29 +145,6 @@ class Datum:
     def tabled(self) -> tuple["Datum", ...]:
         """The tabled values behind this one (itself, or the parts of a derived value)."""
         return tuple(p for part in self.parts for p in part.tabled()) if self.parts else (self,)
-
-
-class Recorded(Mapping[str, float]):
-    """Values by name; reading one records its Datum as used by the member."""
-
-    def __init__(self, datums: Mapping[str, Datum], used: list[Datum]) -> None:
-        self._datums = dict(datums)
-        self._used = used
-
-    def __getitem__(self, key: str) -> float:
-        datum = self._datums[key]
-        self._used.append(datum)
-        return datum.value
-
-    def __iter__(self) -> Iterator[str]:
-        return iter(self._datums)
-
-    def __len__(self) -> int:
-        return len(self._datums)
-
-    def datum(self, key: str) -> Datum:
-        """The Datum behind `key`, without recording it."""
-        return self._datums[key]
 
 
 def combined_status(*datums: Datum) -> str:

@@ -1,8 +1,11 @@
 """Designing one member: context (strengths, factors, section), load cases, checks.
 
 What a member type is comes from its record (:mod:`timbersheets.membertypes`);
-the record names one of the design routines in :data:`ROUTINES`, each a function
-of a :class:`Context`, the load cases and the record, returning check results.
+the one driver (:func:`timbersheets.driver.run_checks`) runs the record's checks
+on the member's :class:`~timbersheets.checks.context.Context` under each load
+combination. The member's data values and notes are the union of what the
+context, the load cases and the check results carry: nothing is recorded as a
+side effect of reading a value.
 """
 
 from __future__ import annotations
@@ -11,21 +14,17 @@ import math
 import traceback
 from collections.abc import Callable
 from dataclasses import dataclass, field
+from types import MappingProxyType
 
-from .analysis import loading_mode, member_forces
-from .beamdesign import design_model, geometry_of, is_model, total_loads
-from .checks import CheckResult
-from .checks.bearing import check_bearing, check_support_bearing
-from .checks.bending import check_bending
-from .checks.compression import check_compression
-from .checks.shear import check_shear
-from .checks.tension import check_tension
-from .combined import deflections, design_combined, refuse_reversal, tension_only
-from .data import DataSet, Datum, Recorded
+from . import driver
+from .beamdesign import geometry_of, is_model, total_loads
+from .checks import Checked, CheckResult
+from .checks.context import Context
+from .data import DataSet, Datum
 from .errors import DesignError, TimbersheetsError
 from .loads import EFFECTS, LOAD_TYPES, Effects, LoadCase, apply_combinations
-from .materials import Strengths, strengths
-from .ownweight import OwnWeight, gives_line_loads, own_weight, with_own_weight
+from .materials import strengths
+from .ownweight import own_weight, with_own_weight
 from .membertypes import MemberType, member_type, member_types
 from .schedule import Member, RowError
 from .sections import Section, service_category
@@ -33,72 +32,6 @@ from .sizing import Sizing, size
 
 SERVICE_PROPERTIES = ("K_Sb", "K_Sv", "K_Sc", "K_Scp", "K_St", "K_SE")
 EPS = 1e-9
-
-
-@dataclass
-class Context:
-    """Everything a check needs about one member, as floats in compute units."""
-
-    member: Member
-    section: Section
-    strengths: Strengths
-    f: Recorded  # specified strengths (MPa) by symbol
-    K_S: Recorded
-    phi: Recorded
-    used: list[Datum] = field(default_factory=list)
-    K_Zt: float = 1.0
-    data: DataSet | None = None  # for the lookups a check makes itself (size factors, restraint rules)
-    own_weight: OwnWeight | None = None  # included in member's dead load (member is then the loaded copy)
-
-    @property
-    def mark(self) -> str:
-        return self.member.mark
-
-    @property
-    def glulam(self) -> bool:
-        return self.member.material == "glulam"
-
-    notes: list[str] = field(default_factory=list)  # design remarks that go on the sheet and into results
-
-    @property
-    def K_H(self) -> float:
-        return self.member.K_H
-
-    def K_H_for(self, action: str) -> float:
-        """K_H for compression or tension: the schedule's value, at most the tabled one (O86 Table 6.4.4)."""
-        limit = self.data.system_factor_limit(action)
-        if self.member.K_H <= limit.value:
-            return self.member.K_H
-        self.used.append(limit)
-        note = (f"K_H = {self.member.K_H:g} from the schedule applies to bending and shear; {action} takes "
-                f"K_H = {limit.value:g}, the most O86 tables for it")
-        if note not in self.notes:
-            self.notes.append(note)
-        return limit.value
-
-    @property
-    def K_T(self) -> float:
-        return self.member.K_T
-
-    @property
-    def K_e(self) -> float:
-        return self.member.Ke
-
-    @property
-    def length(self) -> float:
-        return self.member.length
-
-    @property
-    def L_x(self) -> float:
-        return self.member.Lx
-
-    @property
-    def L_y(self) -> float:
-        return self.member.Ly
-
-    @property
-    def A_n(self) -> float:
-        return self.section.A * self.member.net_area
 
 
 def effects_of(member: Member) -> Effects:
@@ -132,9 +65,11 @@ def build_context(member: Member, data: DataSet, section: Section | None = None)
     """Look up strengths and factors for `member` (or for `section` while sizing).
 
     The context's member is the schedule's member with its own weight added to the dead load
-    (unless the row gives self_weight = no): the weight depends on the section."""
+    (unless the row gives self_weight = no): the weight depends on the section. The density and
+    K_Zt it reads, and its note on a frame model's own weight, are carried in its `used` and `notes`."""
     section = section or member.section
     used: list[Datum] = []
+    notes: list[str] = []
     weight = own_weight(member, section, data)
     member = with_own_weight(member, weight)
     if weight is not None:
@@ -143,79 +78,21 @@ def build_context(member: Member, data: DataSet, section: Section | None = None)
     category = "all" if member.material == "glulam" else service_category(section)
     K_S = {p: data.service_factor(member.material, category, p, member.service) for p in SERVICE_PROPERTIES}
     phi = {a: data.resistance_factor(a) for a in ("tension", "compression", "bending", "shear", "bearing")}
-    ctx = Context(member, section, f, Recorded(f.values, used), Recorded(K_S, used), Recorded(phi, used), used,
-                  data=data, own_weight=weight)
     if weight is not None and weight.effect == "w" and any(member.values[f"{e}_{t}"] for e in "MV" for t in LOAD_TYPES):
-        ctx.notes.append("own weight is not added to the frame model's moments and shears (the tool cannot place "
-                         "it in that model): include it in M_D and V_D; it is included in the line loads used for "
-                         "deflection")
+        notes.append("own weight is not added to the frame model's moments and shears (the tool cannot place "
+                     "it in that model): include it in M_D and V_D; it is included in the line loads used for "
+                     "deflection")
+    kzt = None
     if member.material == "sawn" and member_type(member.type).axial == "tension":  # K_Zt: tension only
         kzt = data.size_factor_sawn("K_Zt", section.smaller, section.larger)
-        ctx.K_Zt = kzt.value
         used.append(kzt)
-    return ctx
+    return Context(member, section, f, MappingProxyType(dict(f.values)), MappingProxyType(K_S),
+                   MappingProxyType(phi), data, kzt, weight, tuple(used), tuple(notes))
 
 
-def _axial(ctx: Context, cases: list[LoadCase], kind: MemberType) -> list[CheckResult]:
-    """Design routine of an axial member, in the type's sense (tension or compression)."""
-    check = check_tension if kind.axial == "tension" else check_compression
-    if ctx.section.plies > 1 and not kind.plies:
-        raise DesignError(ctx.mark, "built-up (multi-ply) columns need the rules for nailed or bolted "
-                          "built-up columns, which this version does not implement", "O86-14 6.5.6.4",
-                          "Design it as a solid section or by hand")
-    if kind.axial == "tension":
-        cases = tension_only(ctx, cases)
-    else:
-        refuse_reversal(ctx, cases, kind.axial)
-    out = [check(ctx, case, case.factored["P"]) for case in cases if case.factored["P"] > EPS]
-    if not out:
-        raise DesignError(ctx.mark, "carries no axial force", "", "Give the axial loads P_D … P_E")
-    if kind.axial == "compression":
-        out += support_bearings(ctx, cases)
-    return out
-
-
-def support_bearings(ctx: Context, cases: list[LoadCase]) -> list[CheckResult]:
-    """Bearing of a column's end on the timber it bears on, per combination that compresses it."""
-    out = [check_support_bearing(ctx, case, case.factored["P"]) for case in cases if case.factored["P"] > EPS]
-    return [c for c in out if c is not None]
-
-
-def _bending(ctx: Context, cases: list[LoadCase], kind: MemberType) -> list[CheckResult]:
-    """Design function for a bending member on a simple span: strength per ULS
-    combination (bending, shear, bearing), then deflection per SLS combination."""
-    if is_model(ctx.member):
-        return design_model(ctx, cases)
-    mode = loading_mode(ctx.member)
-    line = mode == "line"
-    strength: dict[str, list[CheckResult]] = {"bending": [], "shear": [], "bearing": []}
-    for case in cases:
-        forces = member_forces(ctx.member, ctx.section.d, case, mode)
-        if abs(forces.M_f) > EPS:
-            strength["bending"].append(check_bending(ctx, forces, line))
-        if abs(forces.V_fd) > EPS or (forces.W_f and abs(forces.W_f) > EPS):
-            strength["shear"].append(check_shear(ctx, forces, line))
-        bearing = check_bearing(ctx, forces, line)
-        if bearing is not None:
-            strength["bearing"].append(bearing)
-    out = [c for name in ("bending", "shear", "bearing") for c in strength[name]]
-    if gives_line_loads(ctx.member, ctx.own_weight):
-        out += deflections(ctx)
-    if not out:
-        raise DesignError(ctx.mark, "carries no bending moment or shear under any combination")
-    return out
-
-
-Routine = Callable[[Context, list[LoadCase], MemberType], list[CheckResult]]
-
-#: The design routines a member type record names (MemberType.routine).
-ROUTINES: dict[str, Routine] = {"axial": _axial, "bending": _bending, "combined": design_combined}
-
-
-def design_function(kind: MemberType) -> Callable[[Context, list[LoadCase]], list[CheckResult]]:
+def design_function(kind: MemberType) -> Callable[[Context, list[LoadCase]], Checked]:
     """The checks of `kind` as a function of (context, cases): what design and sizing call."""
-    routine = ROUTINES[kind.routine]
-    return lambda ctx, cases: routine(ctx, cases, kind)
+    return lambda ctx, cases: driver.run_checks(ctx, cases, kind)
 
 
 @dataclass
@@ -230,7 +107,7 @@ class MemberDesign:
     checks: list[CheckResult] = field(default_factory=list)
     errors: list[str] = field(default_factory=list)
     warnings: list[str] = field(default_factory=list)
-    data_used: list[Datum] = field(default_factory=list)
+    data_used: list[Datum] = field(default_factory=list)  # context's, load cases', then the checks' (first read first)
     sizing: Sizing | None = None
     trace: str = field(default="", repr=False)  # traceback of an internal error, for run.log
 
@@ -298,19 +175,22 @@ def design_member(member: Member, data: DataSet) -> MemberDesign:
         if member.size == "auto":
             section = _sized_section(member, data, kind, outcome)
         ctx = build_context(member, data, section)
-        cases = load_cases(ctx.member, data, ctx.used)
-        outcome.context, outcome.cases = ctx, cases
-        outcome.checks = design_function(kind)(ctx, cases)
-        refuse_non_finite(member, outcome.checks, ctx.used)
+        outcome.context = ctx
+        outcome.data_used = list(ctx.used)
+        outcome.warnings += [n for n in ctx.notes if n not in outcome.warnings]
+        cases = load_cases(ctx.member, data, outcome.data_used)
+        outcome.cases = cases
+        checked = design_function(kind)(ctx, cases)
+        outcome.checks = list(checked.results)
+        outcome.data_used += checked.used
+        outcome.warnings += [n for n in checked.notes if n not in outcome.warnings]
+        refuse_non_finite(member, outcome.checks, outcome.data_used)
     except TimbersheetsError as exc:
         outcome.errors.append(str(exc))
     except Exception as exc:  # a defect must not stop the other members  # noqa: BLE001
         outcome.errors.append(f"internal error while designing ({type(exc).__name__}: {exc}); please report it "
                               "with run.log, which holds the traceback")
         outcome.trace = traceback.format_exc()
-    if outcome.context:
-        outcome.data_used = list(outcome.context.used)
-        outcome.warnings += [n for n in outcome.context.notes if n not in outcome.warnings]
     return outcome
 
 

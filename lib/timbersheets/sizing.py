@@ -106,7 +106,7 @@ def evaluate(member: Member, data: DataSet, section: Section, cases, design) -> 
         ctx = build_context(member, data, section)
         if ctx.own_weight is not None:  # the weight, and so the combinations, change with the section
             cases = load_cases(ctx.member, data, [])
-        checks = design(ctx, cases)
+        checks = design(ctx, cases).results
     except DesignError as exc:
         return Candidate(section, math.inf, exc.problem)
     gov = max(checks, key=lambda c: c.utilization if math.isfinite(c.utilization) else math.inf)

@@ -16,7 +16,8 @@ from __future__ import annotations
 
 from ..analysis import SPAN_CLAUSE
 from ..calc import calc, format_number
-from . import Step, result
+from . import CheckResult, NotChecked, Step, result
+from .context import Context, inputs
 
 SAWN_CLAUSE = "O86-14 6.5.7"
 GLULAM_CLAUSE = "O86-14 7.5.9"
@@ -48,27 +49,24 @@ def glulam_bearing(f_cp, K_D, K_Scp, K_T, phi, b, l_b, K_B):
     return locals()
 
 
-def check_bearing(m, forces, line_loads: bool):
-    """Bearing resistance at each support against the reaction, or None (no bearing given, or uplift)."""
+def check_bearing(m: Context, forces, line_loads: bool) -> CheckResult | NotChecked | None:
+    """Bearing resistance at each support against the reaction; NotChecked when the row does not allow
+    it, None when there is no bearing demand (uplift)."""
     if m.member.bearing is None:
-        note = ("bearing at the supports not checked: the row gives no bearing length (column 'bearing'); give it "
-                "to check compression perpendicular to grain")
-        if note not in m.notes:
-            m.notes.append(note)
-        return None
+        return NotChecked("bearing", ("bearing at the supports not checked: the row gives no bearing length (column "
+                                      "'bearing'); give it to check compression perpendicular to grain",))
     if forces.R_f <= 0:
         return None
     model = getattr(forces, "where", "")
     if not line_loads and not model:
-        note = ("bearing not checked: with moments and shears from a frame model the support reactions are not "
-                "known (at an interior support the reaction is the sum of the shears on both sides)")
-        if note not in m.notes:
-            m.notes.append(note)
-        return None
+        return NotChecked("bearing", ("bearing not checked: with moments and shears from a frame model the support "
+                                      "reactions are not known (at an interior support the reaction is the sum of the "
+                                      "shears on both sides)",))
     case, s = forces.case, m.section
     width = m.member.bearing_width or s.b
-    common = dict(f_cp=m.f["f_cp"], K_D=case.K_D, K_Scp=m.K_S["K_Scp"], K_T=m.K_T, phi=m.phi["bearing"],
+    read = inputs(f_cp=m.f["f_cp"], K_D=case.K_D, K_Scp=m.K_S["K_Scp"], K_T=m.K_T, phi=m.phi["bearing"],
                   b=width, l_b=m.member.bearing, K_B=END_BEARING_K_B)
+    common, used = read.values, list(read.used)
     words = ("K_B = 1.0: the supports are at the member's ends, and K_B applies only to bearings at least 75 mm "
              "from the end")
     if m.member.bearing_width:
@@ -79,7 +77,7 @@ def check_bearing(m, forces, line_loads: bool):
     else:
         ratio = s.b / s.d
         k_zcp, datums = m.data.bearing_size_factor(ratio)
-        m.used += datums
+        used += datums
         values = sawn_bearing(K_Zcp=k_zcp, **common)
         calc_, clause = sawn_bearing, SAWN_CLAUSE
         words += f"; K_Zcp = {format_number(k_zcp)} for width/depth b/d = {ratio:.2f}"
@@ -91,7 +89,8 @@ def check_bearing(m, forces, line_loads: bool):
     else:
         steps = [Step(udl_reaction, udl_reaction(w_f=forces.w_f, L=m.length), "Factored reaction at each support"),
                  Step(calc_, values, words)]
-    return result("bearing", case, forces.R_f, values["Q_r"], "N", clause, tuple(steps), "Q_f", "Q_r")
+    return result("bearing", case, forces.R_f, values["Q_r"], "N", clause, tuple(steps), "Q_f", "Q_r",
+                  used=tuple(used))
 
 
 @calc(units={"f_cp": "MPa", "K_D": "", "K_Scp": "", "F_cp": "MPa", "phi": "", "b": "mm", "d": "mm", "A_b": "mm**2",
@@ -103,8 +102,8 @@ def support_bearing(f_cp, K_D, K_Scp, phi, b, d, K_B, K_Zcp):
     return locals()
 
 
-def check_support_bearing(m, case, P_f: float):
-    """Compression perpendicular to grain in the timber a column bears on (`bears_on`), or None.
+def check_support_bearing(m: Context, case, P_f: float) -> CheckResult | NotChecked:
+    """Compression perpendicular to grain in the timber a column bears on (`bears_on`), or NotChecked.
 
     The support's size is not in the schedule, so the factors that depend on it take their least value:
     f_cp the lowest of the size categories, K_Scp the lower of them, K_B = 1.0 and K_Zcp = 1.0. The
@@ -121,21 +120,19 @@ def check_support_bearing(m, case, P_f: float):
     else:
         note = ""
     if note:
-        if note not in m.notes:
-            m.notes.append(note)
-        return None
+        return NotChecked("bearing", (note,))
     material, species, grade = parse_support(text)
     f_cp = support_f_cp(m.data, material, species, grade)
     categories = ("all",) if material == "glulam" else ("small", "timber")
     k_scp = min((m.data.service_factor(material, c, "K_Scp", m.member.service) for c in categories),
                 key=lambda d: d.value)
-    m.used += [f_cp, k_scp]
     s = m.section
-    values = support_bearing(f_cp=f_cp.value, K_D=case.K_D, K_Scp=k_scp.value, phi=m.phi["bearing"], b=s.b, d=s.d,
-                             K_B=END_BEARING_K_B, K_Zcp=1.0)
+    read = inputs(f_cp=f_cp, K_D=case.K_D, K_Scp=k_scp, phi=m.phi["bearing"], b=s.b, d=s.d, K_B=END_BEARING_K_B,
+                  K_Zcp=1.0)
+    values = support_bearing(**read.values)
     words = (f"Bearing of the column end on the {text} support: f_cp of the support (the lowest of its size "
              "categories, its size not being given); A_b the column end, b × d; K_B = 1.0 and K_Zcp = 1.0, the "
              "least values, since where the column sits on the support and the support's size are not given; "
              "the support untreated (K_T = 1.0)")
     return result("bearing", case, P_f, values["Q_r"], "N", GLULAM_CLAUSE if material == "glulam" else SAWN_CLAUSE,
-                  (Step(support_bearing, values, words),), "P_f", "Q_r")
+                  (Step(support_bearing, values, words),), "P_f", "Q_r", used=read.used)

@@ -30,7 +30,8 @@ from math import sqrt
 from ..calc import calc, format_metres, format_number
 from ..data import Datum
 from ..errors import DataError, DesignError
-from . import Step, result
+from . import CheckResult, Step, result
+from .context import Context, inputs
 
 SAWN_CLAUSE = "O86-14 6.5.4"
 GLULAM_CLAUSE = "O86-14 7.5.6"
@@ -87,7 +88,7 @@ def glulam_bending(phi, F_b, S_x, K_X, K_Zbg, K_L):
     return locals()
 
 
-def sawn_size_factors(m) -> tuple[Datum, Datum]:
+def sawn_size_factors(m: Context) -> tuple[Datum, Datum]:
     """K_Zb and K_Zv of a sawn bending member, from the size-factor table.
 
     Rule for built-up members: the table is entered with the thickness and
@@ -115,7 +116,6 @@ def sawn_size_factors(m) -> tuple[Datum, Datum]:
                           "pieces are not in the data tables (only dimension lumber 38-102 mm thick is)",
                           "O86-14 6.4.5", "Design this timber by hand, or add a verified size-factor table") from None
     kzv = replace(kzb, symbol="K_Zv", label=kzb.label.replace("K_Zb", "K_Zv (as K_Zb)", 1))
-    m.used += [kzb, kzv]
     return kzb, kzv
 
 
@@ -127,7 +127,7 @@ def unsupported_length(member, negative: bool) -> float:
     return member.length if member.Lu_bottom is None else member.Lu_bottom
 
 
-def _restraint_rule(m, L_u: float, negative: bool) -> tuple[str, Datum] | None:
+def _restraint_rule(m: Context, L_u: float, negative: bool) -> tuple[str, Datum] | None:
     """The loosest depth-to-width rule the restraint meets, or None (compute K_L).
 
     purlins and blocking describe the top edge; under negative moment only both-edges still applies."""
@@ -146,7 +146,6 @@ def _restraint_rule(m, L_u: float, negative: bool) -> tuple[str, Datum] | None:
     provided = ["none"] + ([actual] if actual else [])
     for name, datum in m.data.lateral_restraints():
         if name in provided and ratio <= datum.value:
-            m.used.append(datum)
             return name, datum
     return None
 
@@ -173,9 +172,9 @@ def bottom_edge_words(member) -> str:
     return f"held at intervals of Lu_bottom = {format_metres(member.Lu_bottom)} m"
 
 
-def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
-                      segment: float | None = None) -> tuple[float, list[Step], str]:
-    """K_L under one combination, its steps, and the words that explain it.
+def lateral_stability(m: Context, F_b: float, negative: bool, line_loads: bool,
+                      segment: float | None = None) -> tuple[float, list[Step], str, tuple[Datum, ...]]:
+    """K_L under one combination, its steps, the words that explain it and the data values it read.
 
     `segment` (mm): the unsupported length of the compression edge a beam model gives for this moment.
     """
@@ -188,7 +187,7 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
     edge = f"Negative moment: the bottom edge is in compression; {bottom}. " if negative else ""
     ratio = s.d / s.b
     if m.glulam and L_u == 0:
-        return 1.0, [], f"{edge}Lateral stability: compression edge held continuously (L_u = 0), so K_L = 1.0."
+        return 1.0, [], f"{edge}Lateral stability: compression edge held continuously (L_u = 0), so K_L = 1.0.", ()
     if not m.glulam:
         rule = _restraint_rule(m, L_u, negative)
         if rule is not None:
@@ -202,7 +201,7 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
                      f"the compression edge held at intervals of L_u = {format_metres(L_u)} m")
             words = (f"Lateral stability ({STABILITY_CLAUSE['sawn']}.1): d/b = {ratio:.2f} ≤ {rule[1].value:.1f}, the "
                      f"limit with {rule[1].label.split(', ', 1)[1]}; the member has {given}, so K_L = 1.0.")
-            return 1.0, [], edge + words
+            return 1.0, [], edge + words, (rule[1],)
         if L_u == 0:
             given = member.values.get("restraint") if not negative or member.restraint == "both-edges" else None
             given = given or "decking"
@@ -212,9 +211,8 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
             raise DesignError(m.mark, f"d/b = {ratio:.2f} exceeds {limit:g}, the most the depth-to-width rule "
                               f"allows with {words}", STABILITY_CLAUSE["sawn"], _restraint_hint(given))
     k_le = m.data.bending_effective_length("simple-udl" if line_loads else "other")
-    m.used.append(k_le)
-    slender = lateral_slenderness(K_Le=k_le.value, L_u=L_u, d=s.d, b=s.b, E_05=m.f["E05"],
-                                  K_SE=m.K_S["K_SE"], K_T=m.K_T, F_b=F_b)
+    given = inputs(K_Le=k_le, L_u=L_u, d=s.d, b=s.b, E_05=m.f["E05"], K_SE=m.K_S["K_SE"], K_T=m.K_T, F_b=F_b)
+    slender = lateral_slenderness(**given.values)
     C_B, C_K = slender["C_B"], slender["C_K"]
     if C_B > CB_MAX:
         raise DesignError(m.mark, f"slenderness C_B = {C_B:.1f} exceeds {CB_MAX:g}",
@@ -227,28 +225,28 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
     steps = [Step(lateral_slenderness, slender, f"{edge}Lateral stability, laterally unsupported length "
                   f"L_u = {format_metres(L_u)} m ({'uniform load on a simple span' if line_loads else 'any loading'}){held}")]
     if C_B <= CB_STOCKY:
-        return 1.0, steps, f"C_B = {C_B:.2f} ≤ {CB_STOCKY:g}, so K_L = 1.0."
+        return 1.0, steps, f"C_B = {C_B:.2f} ≤ {CB_STOCKY:g}, so K_L = 1.0.", given.used
     if C_B <= C_K:
         values = lateral_intermediate(C_B=C_B, C_K=C_K)
         steps.append(Step(lateral_intermediate, values, f"{CB_STOCKY:g} < C_B = {C_B:.2f} ≤ C_K = {C_K:.2f}"))
     else:
-        values = lateral_slender(C_B=C_B, E_05=m.f["E05"], K_SE=m.K_S["K_SE"], K_T=m.K_T, F_b=F_b)
+        values = lateral_slender(C_B=C_B, E_05=given.values["E_05"], K_SE=given.values["K_SE"], K_T=m.K_T, F_b=F_b)
         steps.append(Step(lateral_slender, values, f"C_K = {C_K:.2f} < C_B = {C_B:.2f} ≤ {CB_MAX:g}"))
-    return values["K_L"], steps, ""
+    return values["K_L"], steps, "", given.used
 
 
-def check_bending(m, forces, line_loads: bool):
+def check_bending(m: Context, forces, line_loads: bool) -> CheckResult:
     """Factored bending moment resistance M_r against M_f (N·mm) under one combination."""
     case, M_f = forces.case, forces.M_f
     negative = M_f < 0
     s = m.section
-    if m.glulam:
-        f_b = m.f["f_b_neg" if negative else "f_b_pos"]
-    else:
-        f_b = m.f["f_b"]
-    strength = bending_strength(f_b=f_b, K_D=case.K_D, K_H=m.K_H, K_Sb=m.K_S["K_Sb"], K_T=m.K_T)
+    f_b = m.f["f_b_neg" if negative else "f_b_pos"] if m.glulam else m.f["f_b"]
+    given = inputs(f_b=f_b, K_D=case.K_D, K_H=m.K_H, K_Sb=m.K_S["K_Sb"], K_T=m.K_T)
+    strength = bending_strength(**given.values)
     F_b = strength["F_b"]
-    K_L, lateral_steps, words = lateral_stability(m, F_b, negative, line_loads, getattr(forces, "L_u", None))
+    K_L, lateral_steps, words, lateral_used = lateral_stability(m, F_b, negative, line_loads,
+                                                                getattr(forces, "L_u", None))
+    used = [*given.used, *lateral_used]
     steps: list[Step] = []
     if "moment" in forces.steps:
         steps.append(Step(*forces.steps["moment"], "Factored moment at midspan"))
@@ -259,17 +257,20 @@ def check_bending(m, forces, line_loads: bool):
     if m.glulam:
         b_lam = m.data.glulam_widest_board(s.b)
         k_x = replace(m.data.glulam_factor("K_X_straight"), symbol="K_X")
-        m.used += [b_lam, k_x]
         size = glulam_size_factor(b_lam=b_lam.value, d=s.d, L=m.length)
         steps.append(Step(glulam_size_factor, size, "Size factor, b_lam the widest single board, L the span "
                           "between points of zero moment"))
-        values = glulam_bending(phi=m.phi["bending"], F_b=F_b, S_x=s.S_x, K_X=k_x.value, K_Zbg=size["K_Zbg"], K_L=K_L)
+        final = inputs(phi=m.phi["bending"], F_b=F_b, S_x=s.S_x, K_X=k_x, K_Zbg=size["K_Zbg"], K_L=K_L)
+        used += [b_lam, k_x, *final.used]  # in the order read: the unverified list keeps first sight
+        values = glulam_bending(**final.values)
         clause = GLULAM_CLAUSE
     else:
-        kzb, _ = sawn_size_factors(m)
-        values = sawn_bending(phi=m.phi["bending"], F_b=F_b, S_x=s.S_x, K_Zb=kzb.value, K_L=K_L)
+        kzb, kzv = sawn_size_factors(m)
+        final = inputs(phi=m.phi["bending"], F_b=F_b, S_x=s.S_x, K_Zb=kzb, K_L=K_L)
+        used += [kzb, kzv, *final.used]  # K_Zv is read with K_Zb (the same table cell)
+        values = sawn_bending(**final.values)
         ply = f"Size factor for one ply, {s.ply_b:g} × {s.d:g} mm" if s.plies > 1 else f"Size factor for {s.ply_b:g} × {s.d:g} mm"
         words = f"{words} {ply}: K_Zb = {format_number(kzb.value)}.".strip()
         clause = SAWN_CLAUSE
     steps.append(Step(glulam_bending if m.glulam else sawn_bending, values, words))
-    return result("bending", case, M_f, values["M_r"], "N*mm", clause, tuple(steps), "M_f", "M_r")
+    return result("bending", case, M_f, values["M_r"], "N*mm", clause, tuple(steps), "M_f", "M_r", used=tuple(used))

@@ -21,7 +21,8 @@ from math import pi
 
 from ..calc import calc
 from ..errors import DesignError
-from . import Step, result
+from . import CheckResult, Step, result
+from .context import Context, inputs
 
 BEAM_COLUMN_CLAUSE = "O86-14 6.5.10"
 GLULAM_BEAM_COLUMN_CLAUSE = "O86-14 7.5.12"
@@ -53,13 +54,14 @@ def tension_bending(T_f, T_r, M_f, M_r, d):
     return locals()
 
 
-def check_beam_column(m, case, P_f: float, P_r: float, M_f: float, M_r: float):
+def check_beam_column(m: Context, case, P_f: float, P_r: float, M_f: float, M_r: float) -> CheckResult:
     """The interaction of axial compression P_f (N) and moment M_f (N·mm) under one case."""
     clause = GLULAM_BEAM_COLUMN_CLAUSE if m.glulam else BEAM_COLUMN_CLAUSE
     if m.L_x <= 0:
         raise DesignError(m.mark, "Lx = 0 (braced about the strong axis) leaves no Euler load about the bending axis",
                           clause, "Give Lx, the unbraced length about x")
-    euler = euler_load(E_05=m.f["E05"], K_SE=m.K_S["K_SE"], K_T=m.K_T, I_x=m.section.I_x, K_e=m.K_e, L_x=m.L_x)
+    given = inputs(E_05=m.f["E05"], K_SE=m.K_S["K_SE"], K_T=m.K_T, I_x=m.section.I_x, K_e=m.K_e, L_x=m.L_x)
+    euler = euler_load(**given.values)
     if P_f >= euler["P_E"]:
         raise DesignError(m.mark, f"P_f = {P_f / 1000:.1f} kN reaches the Euler load P_E = {euler['P_E'] / 1000:.1f} kN "
                           f"about the x axis under {case.label}: the member buckles and cannot carry the moment",
@@ -67,10 +69,10 @@ def check_beam_column(m, case, P_f: float, P_r: float, M_f: float, M_r: float):
     values = beam_column(P_f=P_f, P_r=P_r, M_f=abs(M_f), M_r=M_r, P_E=euler["P_E"])
     steps = (Step(euler_load, euler, "Euler buckling load about the bending axis (x)"),
              Step(beam_column, values, "Interaction, with the moment amplifier A_m = 1/(1 − P_f/P_E)"))
-    return result("interaction", case, values["I_c"], 1.0, "", clause, steps, "I_c", "1")
+    return result("interaction", case, values["I_c"], 1.0, "", clause, steps, "I_c", "1", used=given.used)
 
 
-def check_tension_bending(m, case, T_f: float, T_r: float, M_f: float, M_r: float):
+def check_tension_bending(m: Context, case, T_f: float, T_r: float, M_f: float, M_r: float) -> CheckResult:
     """The interaction of axial tension T_f (N) and moment M_f (N·mm) under one case."""
     clause = GLULAM_TENSION_BENDING_CLAUSE if m.glulam else TENSION_BENDING_CLAUSE
     values = tension_bending(T_f=T_f, T_r=T_r, M_f=abs(M_f), M_r=M_r, d=m.section.d)

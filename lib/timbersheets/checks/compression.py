@@ -11,7 +11,8 @@ from __future__ import annotations
 
 from ..calc import calc
 from ..errors import DesignError
-from . import Step, result
+from . import CheckResult, Step, result
+from .context import Context, Inputs, inputs
 
 SAWN_CLAUSE = "O86-14 6.5.6"
 GLULAM_CLAUSE = "O86-14 7.5.8"
@@ -71,13 +72,14 @@ def glulam_compression_y(F_c, K_Zcg, K_e, L_y, b, E_05, K_SE, K_T, phi, A):
     return locals()
 
 
-def compression_resistance(m, K_D: float) -> tuple[float, tuple[Step, ...]]:
-    """P_r = min(P_rx, P_ry) in N under load-duration factor K_D, with its steps.
+def compression_resistance(m: Context, K_D: float) -> tuple[float, tuple[Step, ...], Inputs]:
+    """P_r = min(P_rx, P_ry) in N under load-duration factor K_D, with its steps and the data it read.
 
     Raises DesignError when the slenderness C_c about either axis exceeds 50.
     """
-    common = dict(f_c=m.f["f_c"], K_D=K_D, K_H=m.K_H_for("compression"), K_Sc=m.K_S["K_Sc"], K_T=m.K_T, K_e=m.K_e,
-                  E_05=m.f["E05"], K_SE=m.K_S["K_SE"], phi=m.phi["compression"], A=m.section.A)
+    given = inputs(f_c=m.f["f_c"], K_D=K_D, K_H=m.K_H_for("compression"), K_Sc=m.K_S["K_Sc"], K_T=m.K_T,
+                   K_e=m.K_e, E_05=m.f["E05"], K_SE=m.K_S["K_SE"], phi=m.phi["compression"], A=m.section.A)
+    common = dict(given.values)
     steps = []
     if m.glulam:  # F_c and the volume size factor are the same about both axes: shown once
         s = m.section
@@ -91,7 +93,7 @@ def compression_resistance(m, K_D: float) -> tuple[float, tuple[Step, ...]]:
     else:
         axes = ((sawn_compression_x, dict(L_x=m.L_x, d=m.section.d), "C_cx"),
                 (sawn_compression_y, dict(L_y=m.L_y, b=m.section.b), "C_cy"))
-    for (calc_, geometry, slender), axis in zip(axes, ("x", "y")):
+    for (calc_, geometry, slender), axis in zip(axes, ("x", "y"), strict=True):
         if min(v for k, v in geometry.items() if k.startswith("L_")) <= 0:
             continue  # braced about this axis over its whole length: no buckling about it
         values = calc_(**geometry, **common)
@@ -106,11 +108,12 @@ def compression_resistance(m, K_D: float) -> tuple[float, tuple[Step, ...]]:
     if not any(r is not None for r in resistances):
         raise DesignError(m.mark, "is braced about both axes (Lx = Ly = 0); give the unbraced length of at least one")
     P_r = min(r for r in resistances if r is not None)
-    return P_r, tuple(steps)
+    return P_r, tuple(steps), given
 
 
-def check_compression(m, case, P_f: float):
+def check_compression(m: Context, case, P_f: float) -> CheckResult:
     """Factored compressive resistance against P_f (N) under one load case."""
-    P_r, steps = compression_resistance(m, case.K_D)
+    P_r, steps, given = compression_resistance(m, case.K_D)
     clause = GLULAM_CLAUSE if m.glulam else SAWN_CLAUSE
-    return result("compression", case, P_f, P_r, "N", clause, steps, "P_f", "P_r")
+    return result("compression", case, P_f, P_r, "N", clause, steps, "P_f", "P_r", used=given.used,
+                  notes=given.notes)

@@ -15,18 +15,20 @@ from dataclasses import replace
 from ..analysis import SLS_CLAUSE, sls_deflection
 from ..calc import format_number
 from ..units import to_display
-from . import Step, result
+from . import CheckResult, Step, result
+from .context import Context, inputs
 
 NAMES = {"deflection-live": ("live", "defl_L"), "deflection-total": ("total", "defl_total")}
 
 
-def check_deflection(m, case, n_lim: float | None = None):
-    """Deflection under one SLS combination `case` (:class:`~timbersheets.analysis.ServiceCase`)."""
+def check_deflection(m: Context, case, n_lim: float | None = None) -> CheckResult:
+    """Deflection under one SLS combination `case` (:class:`~timbersheets.analysis.ServiceCase`); the result
+    carries the combination's load factors and the stiffness data it read."""
     kind, column = NAMES[case.check]
     n_lim = n_lim if n_lim is not None else m.member.values[column]
-    m.used += list(case.datums)
-    values = sls_deflection(w_s=case.w_s, L=m.length, E=m.f["E"], K_SE=m.K_S["K_SE"], K_T=m.K_T, I_x=m.section.I_x,
-                            n_lim=n_lim)
+    given = inputs(w_s=case.w_s, L=m.length, E=m.f["E"], K_SE=m.K_S["K_SE"], K_T=m.K_T, I_x=m.section.I_x,
+                   n_lim=n_lim)
+    values = sls_deflection(**given.values)
     parts = " + ".join(f"{f:.1f}·{format_number(to_display(m.member.values[f'w_{t}'], 'N/mm')[0], 'kN/m')}"
                       for t, f in case.factors.items())
     total = format_number(to_display(case.w_s, "N/mm")[0], "kN/m")
@@ -34,5 +36,5 @@ def check_deflection(m, case, n_lim: float | None = None):
              f"limit L/{n_lim:g} (schedule column {column})")
     steps = (Step(sls_deflection, values, words),)
     out = result(case.check, case, values["Delta"], values["Delta_lim"], "mm", SLS_CLAUSE, steps,
-                 r"\Delta", r"\Delta_lim")
+                 r"\Delta", r"\Delta_lim", used=(*case.datums, *given.used))
     return replace(out, leave_out=("Delta_lim",), with_kd=False)

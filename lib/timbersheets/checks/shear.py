@@ -20,7 +20,8 @@ from dataclasses import replace
 
 from ..calc import calc, format_metres, format_number
 from ..errors import DesignError
-from . import Step, result
+from . import CheckResult, Step, result
+from .context import Context, Inputs, inputs
 from .bending import sawn_size_factors
 
 SAWN_CLAUSE = "O86-14 6.5.5"
@@ -58,31 +59,32 @@ def _demand_step(forces, line_loads: bool) -> list[Step]:
                  "the span, V_fd, which is the shear checked (on the safe side of d from the support face)")]
 
 
-def check_shear(m, forces, line_loads: bool):
+def check_shear(m: Context, forces, line_loads: bool) -> CheckResult:
     """Factored shear resistance against the factored shear of one combination."""
     case = forces.case
-    common = dict(f_v=m.f["f_v"], K_D=case.K_D, K_H=m.K_H, K_Sv=m.K_S["K_Sv"], K_T=m.K_T, phi=m.phi["shear"],
-                  A_n=m.A_n)
+    common = inputs(f_v=m.f["f_v"], K_D=case.K_D, K_H=m.K_H, K_Sv=m.K_S["K_Sv"], K_T=m.K_T, phi=m.phi["shear"],
+                    A_n=m.A_n)
     given = "" if line_loads else "Shear V_f from the frame model, used as given (no reduction at d). "
     if getattr(forces, "where", ""):
         given = (f"Largest factored shear at or beyond d from the supports, from the beam model ({forces.where}). ")
     if not m.glulam:
-        _, kzv = sawn_size_factors(m)
-        values = sawn_shear(K_Zv=kzv.value, **common)
+        kzb, kzv = sawn_size_factors(m)
+        values = sawn_shear(K_Zv=kzv.value, **common.values)
         ply = "for one ply, " if m.section.plies > 1 else "for "
         steps = _demand_step(forces, line_loads) + [
             Step(sawn_shear, values, f"{given}Size factor {ply}{m.section.ply_b:g} × {m.section.d:g} mm: "
                  f"K_Zv = {format_number(kzv.value)}")]
         return result("shear", case, forces.V_fd, values["V_r"], "N", SAWN_CLAUSE, tuple(steps), "V_fd" if line_loads
-                      else "V_f", "V_r")
+                      else "V_f", "V_r", used=(*common.used, kzb, kzv))
     return _glulam_shear(m, forces, line_loads, common, given)
 
 
-def _glulam_shear(m, forces, line_loads: bool, common: dict, given: str):
+def _glulam_shear(m: Context, forces, line_loads: bool, read: Inputs, given: str) -> CheckResult:
     case, s = forces.case, m.section
+    common = read.values
     volume = s.A * m.length * 1e-9  # mm³ → m³
     z_max = replace(m.data.glulam_factor("shear_method_a_volume_max"), symbol="Z_max")
-    m.used.append(z_max)
+    used = [*read.used, z_max]
     options = []  # (utilization, demand, resistance, symbols, steps)
     words = (f"Z = b d L = {format_metres(s.b)} × {format_metres(s.d)} × {format_metres(m.length)} m "
              f"= {volume:.3f} m³")
@@ -93,7 +95,7 @@ def _glulam_shear(m, forces, line_loads: bool, common: dict, given: str):
                                                                                     "V_r"), steps))
     if line_loads:
         c_v = replace(m.data.glulam_factor("C_V_simple_span_udl"), symbol="C_V")
-        m.used.append(c_v)
+        used.append(c_v)
         load = glulam_shear_load(phi=common["phi"], F_v=area["F_v"], A_g=s.A, K_N=NO_NOTCH, C_V=c_v.value, Z=volume)
         steps = [Step(*forces.steps["total"], "Method (b): total factored load on the span"),
                  Step(glulam_shear_load, load, f"{words}; C_V for a simple span under uniform load")]
@@ -112,4 +114,4 @@ def _glulam_shear(m, forces, line_loads: bool, common: dict, given: str):
             "Method (b) only: method (a) applies to members under the volume limit."
     steps = _demand_step(forces, line_loads) + [step for o in options for step in o[4]]
     steps[0] = replace(steps[0], caption=f"{given}{choice} {steps[0].caption}".strip())
-    return result("shear", case, best[1], best[2], "N", GLULAM_CLAUSE, tuple(steps), *best[3])
+    return result("shear", case, best[1], best[2], "N", GLULAM_CLAUSE, tuple(steps), *best[3], used=tuple(used))

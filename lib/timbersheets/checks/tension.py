@@ -7,7 +7,8 @@ is known to have revised a clause, the sheet lists it (edition.py).
 from __future__ import annotations
 
 from ..calc import calc
-from . import Step, result
+from . import CheckResult, Step, result
+from .context import Context, inputs
 
 SAWN_CLAUSE = "O86-14 6.5.9"
 GLULAM_CLAUSE = "O86-14 7.5.11"
@@ -33,20 +34,21 @@ def glulam_tension(f_tn, f_tg, K_D, K_H, K_St, K_T, phi, A_n, A_g):
     return locals()
 
 
-def check_tension(m, case, T_f: float):
+def check_tension(m: Context, case, T_f: float) -> CheckResult:
     """Factored tensile resistance T_r against T_f (N) under one load case.
 
-    `m` is the member context (:class:`timbersheets.design.Context`): strengths,
-    service factors and section. Sawn: T_r = φ F_t A_n K_Zt. Glulam: the lesser
-    of φ F_tn A_n (net section) and φ F_tg A_g (gross section).
+    Sawn: T_r = φ F_t A_n K_Zt. Glulam: the lesser of φ F_tn A_n (net section)
+    and φ F_tg A_g (gross section). The result carries every Datum read.
     """
     common = dict(K_D=case.K_D, K_H=m.K_H_for("tension"), K_St=m.K_S["K_St"], K_T=m.K_T, phi=m.phi["tension"],
                   A_n=m.A_n)
     if m.glulam:
-        values = glulam_tension(f_tn=m.f["f_tn"], f_tg=m.f["f_tg"], A_g=m.section.A, **common)
+        given = inputs(**common, f_tn=m.f["f_tn"], f_tg=m.f["f_tg"], A_g=m.section.A)
         calc_, clause = glulam_tension, GLULAM_CLAUSE
     else:
-        values = sawn_tension(f_t=m.f["f_t"], K_Zt=m.K_Zt, **common)
+        given = inputs(**common, f_t=m.f["f_t"], K_Zt=m.tension_size_factor)
         calc_, clause = sawn_tension, SAWN_CLAUSE
+    values = calc_(**given.values)
     steps = (Step(calc_, values),)
-    return result("tension", case, T_f, values["T_r"], "N", clause, steps, "T_f", "T_r")
+    return result("tension", case, T_f, values["T_r"], "N", clause, steps, "T_f", "T_r", used=given.used,
+                  notes=given.notes)
