@@ -6,8 +6,9 @@ the columns it requires or refuses, what a blank restraint column means, whether
 built-up plies are allowed, the sheet sections it shows and its template. The
 schedule's allowed `type` values are this registry's keys.
 
-Adding a member type means adding one record here and its checks (and, if no
-existing design routine fits, a routine in ``design.ROUTINES``).
+Adding a member type means adding one record here and its checks (and, if the
+driver's composition of axial, bending and interaction checks does not fit, the
+rule in ``driver.run_checks``).
 """
 
 from __future__ import annotations
@@ -24,7 +25,9 @@ from types import MappingProxyType
 #: serviceability: the SLS combinations used for deflection.
 SHEET_SECTIONS = ("span", "length", "net-area", "forces", "diagram", "serviceability")
 
-#: Design routines a record may name (the functions are in ``design.ROUTINES``).
+#: How a type is analysed: "axial" (force along its length only), "bending" (a beam: a simple span, the
+#: frame model's forces or a beam model) or "combined" (axial force with bending on a simple span). The one
+#: design driver (``driver.run_checks``) runs every type; which checks it makes follows `axial` and `bends`.
 ROUTINE_NAMES = ("axial", "bending", "combined")
 
 
@@ -69,6 +72,9 @@ _LENGTHS = MappingProxyType({"Lx": "length", "Ly": "length"})
 _BEAM_ONLY = ("spans", "overhang_left", "overhang_right", "trib",
               *(f"{p}_{t}" for p in ("q", "point", "part") for t in "DLSWE"))
 _DEFLECTIONS = ("deflection-live", "deflection-total")
+#: A member with axial force and bending is checked for deflection under its gravity line loads, so its sheet
+#: shows the SLS combinations and the diagram those checks come from, as a bending member's does.
+_COMBINED_SECTIONS = ("span", "length", "diagram", "serviceability")
 
 
 @lru_cache(maxsize=1)
@@ -88,10 +94,10 @@ def member_types() -> dict[str, MemberType]:
         MemberType("beam-column", "beam-column (axial compression with bending)", "combined.ipynb", "combined",
                    axial="compression", bends=True, checks=("compression", "bending", "shear", "interaction",
                                                             "bearing", *_DEFLECTIONS),
-                   plies=False, sections=("span", "length"), requires=edge, blank=_LENGTHS, refuses=_BEAM_ONLY),
+                   plies=False, sections=_COMBINED_SECTIONS, requires=edge, blank=_LENGTHS, refuses=_BEAM_ONLY),
         MemberType("tension-bending", "tension member with bending", "combined.ipynb", "combined",
                    axial="tension", bends=True, checks=("tension", "bending", "shear", "interaction", *_DEFLECTIONS),
-                   plies=True, sections=("span", "length"), requires=edge, blank=_LENGTHS, refuses=_BEAM_ONLY),
+                   plies=True, sections=_COMBINED_SECTIONS, requires=edge, blank=_LENGTHS, refuses=_BEAM_ONLY),
     ]
     return {t.name: t for t in types}
 
