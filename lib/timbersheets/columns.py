@@ -167,3 +167,19 @@ def _columns() -> tuple[Column, ...]:
 
 COLUMNS = {c.name: c for c in _columns()}
 REQUIRED = tuple(c.name for c in COLUMNS.values() if c.required)
+
+#: The Python type of a validated cell by column kind, as `schedule.Member` declares its fields
+#: (quantities in compute units; a size is (b, d) in mm or "auto"; points (P, x), parts (w, a, b)).
+KIND_TYPES = {
+    "text": "str", "choice": "str", "quantity": "float", "number": "float", "count": "int",
+    "size": "tuple[float, float] | str", "spans": "tuple[float, ...]",
+    "points": "tuple[tuple[float, float], ...]", "parts": "tuple[tuple[float, float, float], ...]",
+    "carries": "tuple[Carry, ...]",
+}
+
+
+def field_type(col: Column) -> str:
+    """The type `schedule.Member` declares for `col`: its kind's type, or None allowed when a blank
+    cell leaves no value (no default, not required)."""
+    base = KIND_TYPES[col.kind]
+    return f"{base} | None" if col.default is None and not col.required else base

@@ -101,7 +101,7 @@ def resolve(member, carries_designs: dict, file: str = "schedule.csv") -> object
         # at the precision the notebook receives them (params), so both designs see the same loads
         carried = {t: round(v / 1000, 6) * 1000 for t, v in reactions[n].items()}
         loads.append(CarriedLoad(c.mark, n, c.at, carried, c.reaction is None))
-    return replace(member, values={**member.values, "carried": tuple(loads)})
+    return replace(member, carried=tuple(loads))
 
 
 def source_reactions(design, beam_reactions) -> dict[int, dict[str, float]]:

@@ -13,7 +13,7 @@ Compute units: kg/mm³, N/kg, N/mm³, mm², N/mm, N.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 
 from .calc import calc
 from .data import DataSet, Datum
@@ -71,9 +71,8 @@ def with_own_weight(member, weight: OwnWeight | None):
     """A copy of `member` whose dead load includes `weight` (the schedule's member is left as it is)."""
     if weight is None:
         return member
-    values = dict(member.values)
-    values[f"{weight.effect}_D"] = values[f"{weight.effect}_D"] + weight.value
-    return replace(member, values=values, warnings=list(member.warnings))
+    name = f"{weight.effect}_D"
+    return member.with_values({name: member.values[name] + weight.value})
 
 
 def gives_line_loads(member, weight: OwnWeight | None) -> bool:

@@ -13,11 +13,14 @@ import hashlib
 import json
 import math
 import re
-from dataclasses import dataclass, field
+from collections.abc import Mapping
+from dataclasses import dataclass, field, replace
 from pathlib import Path
-from typing import Any
+from types import MappingProxyType
+from typing import TYPE_CHECKING, Any
 
 from . import beamloads
+from .beamloads import Carry  # noqa: F401 (a field type of Member)
 from .columns import COLUMNS, LOAD_NAMES, LOAD_TYPES, REQUIRED, Column  # noqa: F401 (read from here too)
 from .csvtext import cell_problem, clean, physical_lines, split_records
 from .errors import JobError, ParameterError, ScheduleError
@@ -28,6 +31,9 @@ from .membertypes import member_type, member_types
 from .rowrules import bearing_errors, lateral_support_errors
 from .sections import Section, parse_size, sawn_category
 from .units import UnitParseError, convert, example, parse_quantity
+
+if TYPE_CHECKING:
+    from .loadpath import CarriedLoad
 
 EXTRA = "\x00extra"  # key marking a row with cells beyond the header (their column numbers)
 BAD = "\x00bad:"  # key prefix marking a cell the file holds no usable value for (the problem)
@@ -47,22 +53,114 @@ _PARAMS = {
 }
 
 
-@dataclass
+@dataclass(frozen=True)
 class Member:
-    """A validated schedule row. Quantities are floats in compute units (N, mm)."""
+    """A validated schedule row: one typed field per column of the column table (`columns.COLUMNS`, in its
+    order; `tests/test_schedule_member.py` keeps them equal), then where the row sits and what the reader
+    knows about it. Quantities are floats in compute units (N, mm, MPa).
+
+    `values` gives the columns by name (read-only), for code that picks a column by a computed name
+    such as ``f"w_{t}"``. A member is never changed: :meth:`with_values` returns a changed copy.
+    """
 
     mark: str
+    type: str
+    material: str
+    species: str
+    grade: str
+    size: tuple[float, float] | str
+    plies: int
+    service: str
+    K_T: float
+    K_H: float
+    length: float | None
+    Ke: float
+    Lx: float | None
+    Ly: float | None
+    Lu: float | None
+    Lu_bottom: float | None
+    restraint: str | None
+    bears_on: str | None
+    bearing_width: float | None
+    net_area: float
+    bearing: float | None
+    P_D: float
+    P_L: float
+    P_S: float
+    P_W: float
+    P_E: float
+    w_D: float
+    w_L: float
+    w_S: float
+    w_W: float
+    w_E: float
+    M_D: float
+    M_L: float
+    M_S: float
+    M_W: float
+    M_E: float
+    V_D: float
+    V_L: float
+    V_S: float
+    V_W: float
+    V_E: float
+    spans: tuple[float, ...] | None
+    overhang_left: float
+    overhang_right: float
+    trib: float | None
+    q_D: float
+    q_L: float
+    q_S: float
+    q_W: float
+    q_E: float
+    point_D: tuple[tuple[float, float], ...]
+    point_L: tuple[tuple[float, float], ...]
+    point_S: tuple[tuple[float, float], ...]
+    point_W: tuple[tuple[float, float], ...]
+    point_E: tuple[tuple[float, float], ...]
+    part_D: tuple[tuple[float, float, float], ...]
+    part_L: tuple[tuple[float, float, float], ...]
+    part_S: tuple[tuple[float, float, float], ...]
+    part_W: tuple[tuple[float, float, float], ...]
+    part_E: tuple[tuple[float, float, float], ...]
+    carries: tuple[Carry, ...]
+    defl_L: float
+    defl_total: float
+    K_D: float | None
+    live_use: str
+    self_weight: str
+    wind_sense: str
+    width: float | None
+    max_depth: float | None
+    prefer: str | None
+    note: str
     row: int
-    values: dict[str, Any]
     given: frozenset[str]  # columns the row gave (not defaulted)
-    warnings: list[str] = field(default_factory=list)
-    entered: dict[str, str] = field(default_factory=dict)  # quantity cells written in another unit, as written
+    carried: tuple[CarriedLoad, ...] = ()  # set by the load path: reactions of the members this one carries
+    warnings: list[str] = field(default_factory=list, compare=False)
+    entered: dict[str, str] = field(default_factory=dict, compare=False)  # quantity cells in another unit, as written
 
-    def __getattr__(self, name: str) -> Any:
-        try:
-            return self.__dict__["values"][name]
-        except KeyError:
-            raise AttributeError(name) from None
+    @classmethod
+    def of(cls, mark: str, row: int, values: Mapping[str, Any], given: frozenset[str],
+           warnings: list[str] | None = None, entered: dict[str, str] | None = None) -> "Member":
+        """A member from its cells by column name (every column of the table; `carried` optional)."""
+        cells = {name: values[name] for name in COLUMNS if name != "mark"}
+        return cls(mark=mark, **cells, row=row, given=frozenset(given), carried=tuple(values.get("carried", ())),
+                   warnings=list(warnings or []), entered=dict(entered or {}))
+
+    @property
+    def values(self) -> Mapping[str, Any]:
+        """Every column's value by name, and `carried` (read-only; built once)."""
+        cache = self.__dict__.get("_values")
+        if cache is None:
+            cache = {name: getattr(self, name) for name in COLUMNS}
+            cache["carried"] = self.carried
+            object.__setattr__(self, "_values", cache)  # a cache of frozen fields, not a change of them
+        return MappingProxyType(cache)
+
+    def with_values(self, changes: Mapping[str, Any]) -> "Member":
+        """A copy with the columns (or `carried`) in `changes` replaced, and its own list of warnings."""
+        return replace(self, **changes, warnings=list(self.warnings))
 
     @property
     def section(self) -> Section:
@@ -122,8 +220,8 @@ class Member:
         from .loadpath import CarriedLoad
 
         values["carried"] = tuple(CarriedLoad.from_params(c) for c in params["carried"])
-        return cls(params["mark"], int(params["row"]), values, frozenset(params.get("given", ())),
-                   entered=dict(params.get("entered", {})))
+        return cls.of(params["mark"], int(params["row"]), values, frozenset(params.get("given", ())),
+                      entered=dict(params.get("entered", {})))
 
     @property
     def inputs_hash(self) -> str:
@@ -310,7 +408,7 @@ def load_schedule(path: Path, data=None) -> Schedule:
         if errors:
             rejected.append(RowError(mark or f"row-{number}", number, errors))
         else:
-            member = Member(mark, number, values, frozenset(given), entered=_entered(cells, given))
+            member = Member.of(mark, number, values, frozenset(given), entered=_entered(cells, given))
             member.warnings.extend(_row_warnings(name, number, member))
             members.append(member)
     return Schedule(path, members, rejected, warnings)

@@ -59,7 +59,7 @@ def scaled(member: Member, scales: dict[str, float]) -> Member:
             values[f"{effect}_{load}"] = values[f"{effect}_{load}"] * factor
         values[f"point_{load}"] = tuple((p * factor, x) for p, x in values[f"point_{load}"])
         values[f"part_{load}"] = tuple((w * factor, a, b) for w, a, b in values[f"part_{load}"])
-    return Member(member.mark, member.row, values, member.given, list(member.warnings))
+    return Member.of(member.mark, member.row, values, member.given, list(member.warnings))
 
 
 def as_sized(member: Member, design: MemberDesign) -> Member:
@@ -68,7 +68,7 @@ def as_sized(member: Member, design: MemberDesign) -> Member:
         return member
     section = design.context.section
     values = {**member.values, "size": (section.ply_b, section.d), "plies": section.plies}
-    return Member(member.mark, member.row, values, member.given, list(member.warnings))
+    return Member.of(member.mark, member.row, values, member.given, list(member.warnings))
 
 
 def what_if(folder: Path, scales: dict[str, float], resize: bool = False) -> list[WhatIf]:
