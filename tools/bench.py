@@ -164,7 +164,7 @@ def sizing_times(job: Path) -> list[str]:
         took = time.perf_counter() - start
         worst = max(worst, took)
         cases = apply_combinations(effects_of(m), data, [], m.K_D)
-        m.values["width"] = m.values["max_depth"] = None  # the whole catalogue, no constraint
+        m = m.with_values({"width": None, "max_depth": None})  # the whole catalogue, no constraint
         sections = catalogue(m, data)
         start = time.perf_counter()
         for section in sections:
@@ -187,13 +187,12 @@ def beam_times(repeat: int = 5) -> list[str]:
     """
     sys.path.insert(0, str(REPO / "lib"))
     from timbersheets import beamdesign, beammodel
-    from timbersheets.data import DataSet
-    from timbersheets.design import design_all, design_member
-    from timbersheets.schedule import load_schedule
+    from timbersheets.design import design_member
+    from timbersheets.job import load_job
 
-    data = DataSet()
-    schedule = load_schedule(DEMO / "schedule.csv", data)
-    designs = design_all(schedule.entries, data)  # resolves carried loads; imports PyCBA once
+    job = load_job(DEMO)
+    data = job.data
+    designs = job.designs  # resolves carried loads; imports PyCBA once
     models = {d.mark: d for d in designs if d.member is not None and beamdesign.is_model(d.member)}
 
     def best(action) -> float:
@@ -221,7 +220,7 @@ def beam_times(repeat: int = 5) -> list[str]:
     lines.append(f"  beam model: slowest analysis {worst * 1000:.0f} ms a member   target <= 50 ms: "
                  f"{'met' if worst <= 0.05 else 'NOT met'}")
     joist = models["FJ-1"].member
-    auto = type(joist)(joist.mark, joist.row, {**joist.values, "size": "auto"}, joist.given)
+    auto = joist.with_values({"size": "auto"})
     outcomes = []
     took = best(lambda: outcomes.append(design_member(auto, data)))
     sizing = outcomes[-1].sizing

@@ -140,7 +140,7 @@ class MemberDesign:
             return []
         seen: dict[tuple[str, str, str], Datum] = {}
         read: set[int] = set()
-        for used in self.data_used:  # the same Datum is recorded each time a check reads it
+        for used in self.data_used:  # the same Datum is carried by every result that reads it
             if id(used) in read:
                 continue
             read.add(id(used))
