@@ -196,3 +196,16 @@ def test_a_beam_column_without_line_loads_says_deflection_is_not_checked(tmp_pat
     assert d.errors == [] and not any(c.check.startswith("deflection") for c in d.checks)
     service = Sheet(d, data, CODES).serviceability_section().markdown
     assert "Deflection is not checked" in service
+
+
+def test_a_limited_system_factor_travels_with_the_results_that_used_it(tmp_path, data):
+    # O86-14 Table 6.4.4 (memory, data/system_factors.csv): compression takes K_H at most 1.1, so a post
+    # scheduled with K_H = 1.3 is checked with 1.1; each compression result carries the limit it used and
+    # the remark, and the sheet lists the remark once.
+    checked, _, _ = spied(tmp_path, data, ROWS["sawn-compression"])
+    compression = [r for r in checked.results if r.check == "compression"]
+    limit = data.system_factor_limit("compression")
+    assert compression and all(limit in r.used for r in compression)
+    assert all(r.factors["K_H"] == pytest.approx(1.1) for r in compression)
+    assert all(any("compression takes K_H = 1.1" in n for n in r.notes) for r in compression)
+    assert sum("compression takes K_H = 1.1" in n for n in checked.notes) == 1
