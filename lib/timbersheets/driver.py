@@ -133,27 +133,36 @@ def _refuse_missing(ctx: Context, kind: MemberType, checked: Checked) -> None:
         raise DesignError(ctx.mark, "carries no axial force", "", "Give the axial loads P_D … P_E")
 
 
-def run_checks(ctx: Context, cases: list[LoadCase], kind: MemberType) -> Checked:
-    """Every check of member type `kind` under each of `cases` (ULS) and each SLS combination."""
+def _made(ctx: Context, cases: list[LoadCase], kind: MemberType, order: tuple[str, ...]
+          ) -> tuple[list[CheckResult | NotChecked], tuple[str, ...]]:
+    """The checks of a member on a simple span (or along its length) in the order made, and the notes
+    that precede them (a tension member's reversal)."""
     notes: tuple[str, ...] = ()
+    if kind.axial:
+        _refuse_plies(ctx, kind)
+    if kind.axial == "tension" and not kind.bends:
+        cases, notes = tension_only(cases)
+    elif kind.axial:
+        refuse_reversal(ctx, cases, kind.axial)
+    mode = loading_mode(ctx.member) if kind.bends else ""
+    made = [c for case in cases for c in _combination(ctx, case, kind, mode)]
+    _refuse_missing(ctx, kind, collect(made, order))
+    if kind.axial == "compression":
+        made += [check_support_bearing(ctx, case, case.factored["P"]) for case in cases
+                 if case.factored["P"] > EPS]
+    if kind.bends and gives_line_loads(ctx.member, ctx.own_weight):
+        made += deflections(ctx)
+    return made, notes
+
+
+def run_checks(ctx: Context, cases: list[LoadCase], kind: MemberType) -> Checked:
+    """Every check of member type `kind` under each of `cases` (ULS) and each SLS combination, with the
+    Datums they read and their notes (the sheet's deflection note on lateral loads last)."""
     order = tuple(n for n in (kind.axial, "bending", "shear", "interaction", "bearing") if n)  # sheet order
     if kind.bends and kind.axial is None and is_model(ctx.member):
-        made: list[CheckResult | NotChecked] = list(design_model(ctx, cases))
+        made, notes = list(design_model(ctx, cases)), ()
     else:
-        if kind.axial:
-            _refuse_plies(ctx, kind)
-        if kind.axial == "tension" and not kind.bends:
-            cases, notes = tension_only(cases)
-        elif kind.axial:
-            refuse_reversal(ctx, cases, kind.axial)
-        mode = loading_mode(ctx.member) if kind.bends else ""
-        made = [c for case in cases for c in _combination(ctx, case, kind, mode)]
-        _refuse_missing(ctx, kind, collect(made, order))
-        if kind.axial == "compression":
-            made += [check_support_bearing(ctx, case, case.factored["P"]) for case in cases
-                     if case.factored["P"] > EPS]
-        if kind.bends and gives_line_loads(ctx.member, ctx.own_weight):
-            made += deflections(ctx)
+        made, notes = _made(ctx, cases, kind, order)
     strength = collect([m for m in made if not _serviceability(m)], order, notes)
     service = collect([m for m in made if _serviceability(m)])
     lateral = lateral_deflection_note(ctx.member) if kind.bends else ()
