@@ -31,7 +31,6 @@ from .sections import Section, service_category
 from .sizing import Sizing, size
 
 SERVICE_PROPERTIES = ("K_Sb", "K_Sv", "K_Sc", "K_Scp", "K_St", "K_SE")
-EPS = 1e-9
 
 
 def effects_of(member: Member) -> Effects:
