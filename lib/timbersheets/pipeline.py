@@ -80,6 +80,20 @@ def check_parameters(template: Path, parameters: dict[str, Any]) -> None:
 
 
 KERNEL_ARGS = ["--IPKernelApp.log_level=ERROR"]
+
+# Between members: what `%reset -f` does (IPython's `reset`: namespaces, output cache, history),
+# without its two full garbage collections, 0.2 s a member: a third of a sheet's execution.
+# The modules stay imported; a member's cells define everything they use.
+CLEAR_NAMESPACE = """\
+def _clear_namespace():
+    import gc
+    collect, gc.collect = gc.collect, lambda *args, **kwargs: 0
+    try:
+        get_ipython().reset(new_session=False)
+    finally:
+        gc.collect = collect
+_clear_namespace()
+"""
 ENGINE = "timbersheets"
 
 
@@ -112,7 +126,7 @@ class _Kernel:
 
             atexit.register(cls.shutdown)
         else:
-            reply = cls.kc.execute_interactive("get_ipython().run_line_magic('reset', '-f')", timeout=60,
+            reply = cls.kc.execute_interactive(CLEAR_NAMESPACE, timeout=60, store_history=False,
                                                output_hook=lambda msg: None)
             if reply["content"].get("status") != "ok":
                 cls.shutdown()
