@@ -24,7 +24,7 @@ from .membertypes import member_types
 from .fileio import copy_atomic, remove_stale_parts, write_atomic
 from .lifetime import pid_alive
 from .keep import Carried, carry_package, carry_sheets, package_key, write_package_key
-from .pipeline import templates_dir
+from .pipeline import start_kernel, templates_dir
 from .job import load_job
 from .project import Project
 from .fileio import write_csv
@@ -229,6 +229,8 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     """
     opts = opts or RunOptions(**kw)
     started = time.monotonic()
+    if opts.sheets:
+        start_kernel()  # it boots and imports in its own process while the members are designed
     job = load_job(folder)
     project, schedule, data = job.project, job.schedule, job.data
     schedule.warnings += load_review_file(project.folder).problems

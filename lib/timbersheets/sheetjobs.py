@@ -22,8 +22,10 @@ import math
 import multiprocessing
 import os
 import time
+import queue
 import traceback
-from concurrent.futures import ProcessPoolExecutor, as_completed
+from collections import deque
+from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass, field
 from functools import cached_property
 from pathlib import Path
@@ -33,7 +35,7 @@ from .batch import Body, Stamp, fixed_fields, stamp_sheets, stamped_fields, type
 from .constants import RESULT_MIME
 from .fileio import copy_atomic
 from .lifetime import die_with_parent
-from .pipeline import execute, file_hash, library_fingerprint, templates_dir, to_html
+from .pipeline import execute, file_hash, library_fingerprint, start_kernel, templates_dir, to_html
 
 BATCH = 20  # members per xelatex run at most: the ~0.7 s of preamble and fonts spread over 20 sheets
 STAMP_LAYOUTS = ("stamp.tex.j2", "stampfields.tex.j2")  # a stamped sheet's key covers both
@@ -190,6 +192,12 @@ def run_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, flo
     return list(outcomes.values()), times
 
 
+def _start_worker() -> None:
+    """A pool worker: dies with its parent, and boots its kernel before its first batch arrives."""
+    die_with_parent()
+    start_kernel()
+
+
 def _safe_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, float]]:
     try:
         return run_batch(tasks)
@@ -248,21 +256,63 @@ def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool,
             _take_notebook(task, outcome)
             outcomes[task.mark] = outcome
             step(task.mark)
-    groups = batches(work, jobs)
-    if jobs == 1 or len(groups) <= 1:
-        for group in groups:
-            collect(_safe_batch(group))
+    pending = deque(batches(work, jobs))
+    total = len(pending)
+    if jobs == 1 or total <= 1:
+        while pending:
+            collect(_safe_batch(pending.popleft()))
     else:
-        context = multiprocessing.get_context("spawn")
-        with ProcessPoolExecutor(max_workers=min(jobs, len(groups)), mp_context=context,
-                                 initializer=die_with_parent) as pool:
-            for future in as_completed([pool.submit(_safe_batch, g) for g in groups]):
-                collect(future.result())
+        _share_batches(pending, min(jobs - 1, total - 1), collect)
     bar.close()
     started = time.monotonic()
     _finish(tasks, outcomes)
     times["stamp"] = time.monotonic() - started
     return {t.mark: outcomes[t.mark] for t in tasks}
+
+
+def _share_batches(pending: deque, workers: int, collect) -> None:
+    """Run the batches on `workers` pool processes and in this one, each taking the next when free.
+
+    This process is one of the workers: its kernel was started while it designed the
+    members, and the pool's processes start theirs as they spawn. A pool process is handed
+    its next batch the moment it finishes one (from the future's callback)."""
+    total = len(pending)
+    done: queue.Queue = queue.Queue()
+
+    def feed(pool) -> None:
+        try:
+            batch = pending.popleft()
+        except IndexError:
+            return
+        try:
+            future = pool.submit(_safe_batch, batch)
+        except Exception as exc:  # noqa: BLE001 - a broken pool: the batch's members get the error
+            done.put((batch, exc))
+            return
+        future.add_done_callback(lambda f: (done.put((batch, f)), feed(pool)))
+
+    context = multiprocessing.get_context("spawn")
+    with ProcessPoolExecutor(max_workers=workers, mp_context=context, initializer=_start_worker) as pool:
+        for _ in range(workers):
+            feed(pool)
+        collected = 0
+        while True:
+            try:
+                batch = pending.popleft()
+            except IndexError:
+                break
+            collect(_safe_batch(batch))
+            collected += 1
+        while collected < total:
+            batch, future = done.get()
+            try:
+                if isinstance(future, Exception):
+                    raise future
+                collect(future.result())
+            except Exception as exc:  # noqa: BLE001 - a worker that died takes only its batch down
+                trace = traceback.format_exc()
+                collect(([SheetOutcome(t.mark, error=f"{type(exc).__name__}: {exc}", trace=trace) for t in batch], {}))
+            collected += 1
 
 
 def _finish(tasks: list[SheetTask], outcomes: dict[str, SheetOutcome]) -> None:
