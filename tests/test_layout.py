@@ -179,7 +179,9 @@ def test_relative_and_absolute_imports_resolve_to_modules(toy):
     assert graph[f"{PACKAGE}.a"] == {f"{PACKAGE}.sub", f"{PACKAGE}.sub.c"}  # the package runs first
 
 
-def test_floor_of_takes_the_longest_entry():
-    assert floor_of(f"{PACKAGE}.checks.bending") == "engineering"
-    assert floor_of(PACKAGE) == "base"
+def test_floor_of_takes_the_longest_entry(monkeypatch):
+    monkeypatch.setitem(globals(), "FLOORS", {"top": ("a.b",), "low": ("", "a")})
+    assert floor_of(f"{PACKAGE}.a.b.c") == "top"  # inside a.b, the longer entry
+    assert floor_of(f"{PACKAGE}.a.x") == "low"
+    assert floor_of(PACKAGE) == "low"
     assert floor_of(f"{PACKAGE}.no_such_module") is None
