@@ -14,6 +14,7 @@ from hypothesis import strategies as st
 
 from conftest import design_row, write_schedule
 from timbersheets.checks.combined import beam_column, euler_load
+from timbersheets.design import design_member
 from timbersheets.sizing import design_sized
 from timbersheets.membertypes import member_types
 from timbersheets.schedule import load_schedule
@@ -181,6 +182,17 @@ def test_a_member_nothing_satisfies_says_so(tmp_path, data):
     assert d.status == "fail" and d.sizing.chosen is None
     assert any("no standard section in the catalogue passes" in w and "reaches utilization" in w for w in d.warnings)
     assert d.sizing.best is not None and d.sizing.best.utilization > 1
+
+
+def test_the_design_alone_does_not_size_an_auto_member(tmp_path, data):
+    """The sizing calls the design, never the other way: without the sizer an auto member is an error
+    that says how to size it, and through design_sized the same member gets the section the search chose."""
+    member, _ = sized(tmp_path, **AUTO["purlin"])
+    alone = design_member(member, data)
+    assert alone.status == "error" and alone.sizing is None and not alone.checks
+    assert "size = auto" in alone.errors[0] and "design_sized" in alone.errors[0]
+    sized_design = design_sized(member, data)
+    assert sized_design.status == "pass" and sized_design.size == sized_design.sizing.chosen.label
 
 
 STUD_AUTO = dict(material="sawn", species="S-P-F", grade="No.1/No.2", size="auto", K_H="1.1", length="3.0",
