@@ -286,8 +286,9 @@ Sizer = Callable[[Member, DataSet, MemberType, "MemberDesign"], Section]
 def design_member(member: Member, data: DataSet, sizer: Sizer | None = None) -> MemberDesign:
     """Design one validated member. Engineering limits become errors, not crashes.
 
-    A member whose size is auto needs `sizer`: the run designs through :func:`timbersheets.sizing.design_sized`,
-    which passes it (the sizing calls the design, never the other way)."""
+    A member whose size is auto needs `sizer`: the run designs through
+    :func:`timbersheets.sizing.design_sized`, which passes it (the sizing calls the design, never the
+    other way)."""
     outcome = MemberDesign(member.mark, member.row, member, warnings=list(member.warnings))
     kind = member_type(member.type)
     if kind is None:
