@@ -14,7 +14,7 @@ from .checks.bending import bottom_edge_words
 from .errors import TimbersheetsError
 from .ownweight import gives_line_loads
 from .membertypes import member_type
-from .sheets import Block, heading, para, q, table
+from .blocks import Block, heading, para, q, table
 from .tex import Cell, Table, escape
 from .units import to_display
 
