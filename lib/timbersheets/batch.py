@@ -128,9 +128,28 @@ def _typeset_batch(bodies: list[Body], times: dict[str, float]) -> dict[str, int
     return pages
 
 
-def stamp_sheets(stamps: list[Stamp]) -> dict[str, int | ConversionError]:
-    """Lay each sheet's title-block stamp onto its body; per mark its page count, or the error."""
-    return _one_by_one(stamps, _stamp_batch, lambda s: s.mark, "title block")
+STAMP_SHARE = 40  # sheets per xelatex run of stamps at least, before the stamps are shared among runs
+
+
+def stamp_sheets(stamps: list[Stamp], runs: int = 1) -> dict[str, int | ConversionError]:
+    """Lay each sheet's title-block stamp onto its body; per mark its page count, or the error.
+
+    A new revision re-stamps every sheet: up to `runs` xelatex runs at once (one per CPU the
+    run may use), each with an equal share of the pages."""
+    runs = max(1, min(runs, len(stamps) // STAMP_SHARE))
+    if runs == 1:
+        return _one_by_one(stamps, _stamp_batch, lambda s: s.mark, "title block")
+    from concurrent.futures import ThreadPoolExecutor
+
+    shares: list[list[Stamp]] = [[] for _ in range(runs)]
+    for stamp in sorted(stamps, key=lambda s: -s.pages):  # the most pages to the share with fewest
+        min(shares, key=lambda share: sum(s.pages for s in share)).append(stamp)
+    out: dict[str, int | ConversionError] = {}
+    with ThreadPoolExecutor(max_workers=runs) as pool:  # xelatex and qpdf do the work, outside the GIL
+        for done in pool.map(lambda share: _one_by_one(share, _stamp_batch, lambda s: s.mark, "title block"),
+                             shares):
+            out.update(done)
+    return out
 
 
 @lru_cache(maxsize=1)

@@ -265,7 +265,7 @@ def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool,
         _share_batches(pending, min(jobs - 1, total - 1), collect)
     bar.close()
     started = time.monotonic()
-    _finish(tasks, outcomes)
+    _finish(tasks, outcomes, jobs)
     times["stamp"] = time.monotonic() - started
     return {t.mark: outcomes[t.mark] for t in tasks}
 
@@ -315,7 +315,7 @@ def _share_batches(pending: deque, workers: int, collect) -> None:
             collected += 1
 
 
-def _finish(tasks: list[SheetTask], outcomes: dict[str, SheetOutcome]) -> None:
+def _finish(tasks: list[SheetTask], outcomes: dict[str, SheetOutcome], jobs: int = 1) -> None:
     """Stamp, in one run, every PDF sheet whose stamped version is not cached; put every sheet in place."""
     pdf = [t for t in tasks if t.sheet is not None and t.fmt == "pdf" and t.cached_body.exists()]
     stale = [t for t in pdf if not outcomes[t.mark].stamped
@@ -323,7 +323,7 @@ def _finish(tasks: list[SheetTask], outcomes: dict[str, SheetOutcome]) -> None:
     stamps = [Stamp(t.mark, t.cached_body, _read_pages(t.cached_body), stamped_fields(t.titleblock),
                     t.cached_sheet) for t in stale]
     made = {s.mark: s.pdf for s in stamps}
-    for mark, result in stamp_sheets(stamps).items() if stamps else ():
+    for mark, result in stamp_sheets(stamps, jobs).items() if stamps else ():
         if isinstance(result, Exception):
             outcomes[mark].fail(str(result))
         else:
