@@ -63,7 +63,7 @@ def test_a_started_kernel_runs_the_first_member(tmp_path):
     warm-up left no name behind."""
     pipeline._Kernel.shutdown()
     pipeline.start_kernel(tmp_path)
-    assert pipeline._Kernel.warming is not None
+    assert pipeline._Kernel.starting is not None  # launched in the background: start returns at once
     first = notebook(tmp_path / "first.ipynb", "import json\nprint(json.dumps(sorted(n for n in globals() "
                                                "if n in ('timbersheets', 'handcalcs', 'matplotlib'))))")
     assert pipeline.execute(first, tmp_path / "a.ipynb", {"mark": "A-1"}, tmp_path) is None
