@@ -14,7 +14,6 @@ is from memory.
 
 from __future__ import annotations
 
-from ..analysis import SPAN_CLAUSE
 from ..calc import calc, format_number
 from . import Step, result
 
@@ -24,12 +23,6 @@ END_BEARING_K_B = 1.0  # K_B does not apply at the end of a member (bearing < 75
 
 _UNITS = {"f_cp": "MPa", "K_D": "", "K_Scp": "", "K_T": "", "F_cp": "MPa", "phi": "", "b": "mm", "l_b": "mm",
           "A_b": "mm**2", "K_B": "", "Q_r": "N"}
-
-
-@calc(units={"w_f": "N/mm", "L": "mm", "Q_f": "N"}, clause=SPAN_CLAUSE)
-def udl_reaction(w_f, L):
-    Q_f = w_f * L / 2
-    return locals()
 
 
 @calc(units={**_UNITS, "K_Zcp": ""}, clause=SAWN_CLAUSE)
@@ -89,8 +82,7 @@ def check_bearing(m, forces, line_loads: bool):
                  f"and 1.0 is on the safe side at interior supports{words.partition('from the end')[2]}")
         steps = [Step(calc_, values, words)]
     else:
-        steps = [Step(udl_reaction, udl_reaction(w_f=forces.w_f, L=m.length), "Factored reaction at each support"),
-                 Step(calc_, values, words)]
+        steps = [Step(*forces.steps["reaction"], "Factored reaction at each support"), Step(calc_, values, words)]
     return result("bearing", case, forces.R_f, values["Q_r"], "N", clause, tuple(steps), "Q_f", "Q_r")
 
 
