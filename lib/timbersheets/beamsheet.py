@@ -151,7 +151,9 @@ def forces_block(design) -> Block:
 
 def force_equations(forces) -> Block:
     """The equations member_forces evaluated for every row of the forces table, as symbols (their Calcs)."""
-    return math_block("\n".join(calc_.formula() for name, (calc_, _) in forces.steps.items() if name != "total"))
+    shown = [calc_ for name, (calc_, _) in forces.steps.items() if name != "total"]
+    rows = "\n\\\\\n".join(c.formula_lines() for c in shown)
+    return math_block(f"$$\n\\begin{{aligned}}\n{rows}\n\\end{{aligned}}\n$$")
 
 
 def serviceability_block(design, data) -> Block:

@@ -102,10 +102,13 @@ class Calc:
         source = "\n".join(ast.unparse(s) for s in chosen)
         return latex(source, {}, "symbolic", dict(global_config._config), 3, False)
 
+    def formula_lines(self, *names: str) -> str:
+        """The rows of :meth:`formula`'s aligned block (``M_{f} &= …``), to join with other Calcs' rows."""
+        return self.formula(*names).split("\\begin{aligned}", 1)[1].split("\\end{aligned}", 1)[0].strip()
+
     def inline(self, name: str) -> str:
         """The equation of `name` as symbols, for running text (no $ signs): e.g. ``E_{S} = E \\cdot …``."""
-        body = self.formula(name).split("\\begin{aligned}", 1)[1].split("\\end{aligned}", 1)[0]
-        return body.replace("&=", "=").replace("\\;", "").strip()
+        return self.formula_lines(name).replace("&=", "=").replace("\\;", "").strip()
 
     def latex_lines(self, values: Mapping[str, float], units: Mapping[str, str] | None = None) -> str:
         """Like :meth:`latex`, one display block per statement."""
