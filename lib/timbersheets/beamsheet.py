@@ -142,8 +142,9 @@ def forces_block(design) -> Block:
     each = reactions_by_type(ctx.member)[1]
     if each:
         parts = ", ".join(f"{t} {format_number(to_display(v, 'N')[0], 'kN')}" for t, v in each.items())
-        out += para(f"Specified reactions $R_1 = R_2$, ${udl_reaction.inline('Q_f')}$ with the specified load $w$ "
-                    f"of each type: {escape(parts)} kN (what a member that carries this one takes).",
+        out += para(f"Specified reactions $R_1 = R_2$ by load type, from ${udl_reaction.inline('Q_f')}$ with the "
+                    f"specified load $w$ of the type for $w_f$: {escape(parts)} kN (what a member that carries this "
+                    "one takes).",
                     f"Specified reactions R1 = R2 = w L / 2 by load type: {parts} kN (what a member that carries "
                     "this one takes).")
     return out
