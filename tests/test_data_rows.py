@@ -19,7 +19,7 @@ import pytest
 import timbersheets.data as data_module
 from timbersheets import columns, edition
 from timbersheets.data import BUILTIN_FILES, TABLES, DataSet, informative
-from timbersheets.design import design_all
+from timbersheets.loadpath import design_all
 from timbersheets.schedule import load_schedule
 
 from conftest import DEMO, write_schedule
@@ -118,7 +118,7 @@ def reads(tmp_path_factory, monkeypatch_module):
     for path in (DEMO / "schedule.csv",
                  write_schedule(tmp_path_factory.mktemp("rows"), synthetic_rows(data))):
         schedule = load_schedule(path, data)
-        designs += design_all(schedule.members + schedule.rejected, data, path.name)
+        designs += design_all(schedule.entries, data, path.name)
     return reads, designs
 
 

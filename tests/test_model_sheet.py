@@ -6,7 +6,7 @@ from __future__ import annotations
 from importlib.metadata import version
 
 from conftest import write_schedule
-from timbersheets.design import design_all
+from timbersheets.loadpath import design_all
 from timbersheets.schedule import load_schedule
 from timbersheets.sheets import Sheet
 

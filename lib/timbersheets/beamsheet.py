@@ -15,7 +15,7 @@ from .checks.bending import bottom_edge_words
 from .errors import TimbersheetsError
 from .ownweight import gives_line_loads
 from .membertypes import member_type
-from .sheets import Block, heading, math_block, para, q, table
+from .blocks import Block, heading, math_block, para, q, table
 from .tex import Cell, Table, escape
 from .units import to_display
 

@@ -86,6 +86,8 @@ class Calc:
         from handcalcs import global_config
         from handcalcs.handcalcs import latex
 
+        _remember_parsed_lines()
+
         shown: dict[str, Any] = {name: Shown(r"\pi") for name in ("pi",)}
         for name, value in values.items():
             shown[name] = Shown(format_value(value, declared.get(name, ""), precision))
@@ -113,6 +115,40 @@ class Calc:
     def latex_lines(self, values: Mapping[str, float], units: Mapping[str, str] | None = None) -> str:
         """Like :meth:`latex`, one display block per statement."""
         return "\n".join(self.latex(values, units=units, source=ast.unparse(s)) for s in self.statements)
+
+
+_parses_remembered = False
+
+
+def _remember_parsed_lines() -> None:
+    """Parse each source line once per process in handcalcs, not on every rendering.
+
+    handcalcs' ``expr_parser(line)`` builds its pyparsing grammar anew on every call and is
+    called several times per line: about 60 % of a sheet's execution. A line's parse depends
+    only on its text (the values are substituted later), and our equations are the same few
+    hundred lines on every sheet, so the parse is kept by line and a deep copy handed out (the
+    callers consume the deques they get). ``tests/test_render.py`` checks that the rendering
+    is the same with and without it.
+    """
+    import copy
+
+    from handcalcs import handcalcs
+
+    global _parses_remembered
+    if _parses_remembered:
+        return
+    _parses_remembered = True
+    parse = handcalcs.expr_parser
+    parsed: dict[str, Any] = {}
+
+    def expr_parser(line: str):
+        if line not in parsed:
+            parsed[line] = parse(line)
+        return copy.deepcopy(parsed[line])
+
+    expr_parser.remembers_lines = True  # type: ignore[attr-defined]
+    expr_parser.original = parse  # type: ignore[attr-defined]
+    handcalcs.expr_parser = expr_parser
 
 
 def calc(units: Mapping[str, str], clause: str = "") -> Callable[[Callable[..., dict]], Calc]:

@@ -11,7 +11,7 @@ from .beamdesign import geometry_of, loads_of, model_deflection, model_of, react
 from .beammodel import PATTERNED, library
 from .beampattern import Combined
 from .calc import format_metres, format_number
-from .sheets import Block, heading, para, q, table
+from .blocks import Block, heading, para, q, table
 from .tex import Cell, Table, escape
 
 KIND_WORDS = {"M+": "largest positive moment", "M-": "most negative moment", "V": "largest shear beyond d",
