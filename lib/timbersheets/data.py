@@ -41,7 +41,18 @@ BUILTIN_FILES = (
     "bearing_size_factors.csv",
     "system_factors.csv",
     "densities.csv",
+    "clause_values.csv",
 )
+
+#: The `use` column's marker for a row no code path reads: it documents the standard (a table the schedule
+#: takes a value from instead, a size offered on special order). Tables without informative rows have no
+#: `use` column; a blank `use` means the row is read.
+INFORMATIVE = "informative"
+
+
+def informative(row: Mapping[str, str]) -> bool:
+    """Whether a data row is marked as documentation only (its `use` column)."""
+    return (row.get("use") or "").strip() == INFORMATIVE
 
 
 class Recorded(Mapping[str, float]):
@@ -224,6 +235,19 @@ class DataSet:
         rows = [r for r in file.rows if r["applies_to"] == applies_to]
         row = max(rows, key=lambda r: float(r["value"]))
         return self._datum(file, row, f"K_H at most {float(row['value']):g} for {applies_to}", symbol="K_H")
+
+    def glulam_system_factor(self) -> Datum:
+        """K_H of glulam members (the schedule may not give another)."""
+        return self._find("system_factors.csv", "K_H glulam", case="glulam", applies_to="all")
+
+    def clause_value(self, name: str, applies_to: str = "all") -> Datum:
+        """A value the standard states in a clause rather than a table: a limit (C_c_max, C_B_max,
+        net_area_min) or the value of a factor where it does not apply (K_B_end); `applies_to` sawn,
+        glulam or all."""
+        symbol = {"C_c_max": "C_c,max", "C_B_max": "C_B,max", "K_B_end": "K_B", "net_area_min": "A_n/A_g"}.get(name, name)
+        words = {"K_B_end": "at end bearings", "net_area_min": "least"}.get(name, "")
+        label = " ".join(w for w in (symbol, applies_to if applies_to != "all" else "", words) if w)
+        return replace(self._find("clause_values.csv", label, name=name, applies_to=applies_to), symbol=symbol)
 
     def resistance_factor(self, action: str) -> Datum:
         return self._find("resistance_factors.csv", f"phi {action}", "phi", action=action)

@@ -42,6 +42,7 @@ TABLES = {
     "bending_effective_length.csv": TableSpec(("case",), ("factor",)),
     "system_factors.csv": TableSpec(("case", "applies_to"), ("value",)),
     "densities.csv": TableSpec(("material", "species", "service"), ("density",)),
+    "clause_values.csv": TableSpec(("name", "applies_to"), ("value",)),
 }
 
 

@@ -361,9 +361,10 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str], data)
                                       ", ".join(grades)))
         elif grade:
             v["grade"] = grade
-        if v["K_H"] != 1.0:
+        glulam_k_h = data.glulam_system_factor().value
+        if v["K_H"] != glulam_k_h:
             errs.append(ScheduleError(file, row, "K_H", f"{v['K_H']:g}", "is a system factor for sawn lumber; "
-                                      "glulam takes K_H = 1.0", "1.0 (or blank) for glulam"))
+                                      f"glulam takes K_H = {glulam_k_h:.1f}", f"{glulam_k_h:.1f} (or blank) for glulam"))
         if v["plies"] != 1:
             errs.append(ScheduleError(file, row, "plies", str(v["plies"]), "applies to built-up sawn members only", "1 for glulam"))
     else:
@@ -375,13 +376,14 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str], data)
             v["grade"] = grade
     if v["size"] != "auto":
         errs += _size_checks(file, row, v, data)
+    least = data.clause_value("net_area_min").value
     if v["net_area"] is not None and v["net_area"] > 1.0:
         errs.append(ScheduleError(file, row, "net_area", f"{v['net_area']:g}", "is a ratio A_n/A_g and cannot exceed 1",
-                                  "a ratio from 0.75 to 1.0"))
-    elif v["net_area"] is not None and v["net_area"] < 0.75:
+                                  f"a ratio from {least:g} to 1.0"))
+    elif v["net_area"] is not None and v["net_area"] < least:
         errs.append(ScheduleError(file, row, "net_area", f"{v['net_area']:g}",
-                                  "leaves less than 75 % of the gross area; O86 does not allow designing on it",
-                                  "a ratio from 0.75 to 1.0; reduce the holes or notches"))
+                                  f"leaves less than {least * 100:g} % of the gross area; O86 does not allow designing on it",
+                                  f"a ratio from {least:g} to 1.0; reduce the holes or notches"))
     beam_errors = beamloads.row_errors(file, row, v, given)
     if beam_errors:
         return errs + beam_errors
