@@ -93,3 +93,21 @@ def test_rendered_numbers(tmp_path, data):
     assert r"5.5\ \mathrm{MPa}" in latex  # f_t substituted
     assert r"4522\ \mathrm{mm}^{2}" in latex  # A_n = 0.85 · 5320; integer digits are kept
     assert r"29.1\ \mathrm{kN}" in latex  # T_r converted to kN, 0.1 kN
+
+
+def test_remembered_line_parses_render_the_same():
+    """Parsing each source line once per process (calc._remember_parsed_lines) changes nothing on
+    the sheet: every calc, rendered twice with different values, gives handcalcs' own output."""
+    from handcalcs import handcalcs
+
+    c_first = [c.latex(sample_inputs(c)) for c in CALCS]  # the remembered parser is in place now
+    remembered = handcalcs.expr_parser
+    assert remembered.remembers_lines
+    try:
+        handcalcs.expr_parser = remembered.original
+        own = [c.latex(sample_inputs(c)) for c in CALCS]
+        twice = [c.latex({k: v * 2 for k, v in sample_inputs(c).items()}) for c in CALCS]
+    finally:
+        handcalcs.expr_parser = remembered
+    assert c_first == own
+    assert [c.latex({k: v * 2 for k, v in sample_inputs(c).items()}) for c in CALCS] == twice

@@ -86,15 +86,69 @@ class Calc:
         from handcalcs import global_config
         from handcalcs.handcalcs import latex
 
+        _remember_parsed_lines()
+
         shown: dict[str, Any] = {name: Shown(r"\pi") for name in ("pi",)}
         for name, value in values.items():
             shown[name] = Shown(format_value(value, declared.get(name, ""), precision))
         config = dict(global_config._config)
         return latex(source if source is not None else self.source, shown, "", config, precision, False)
 
+    def formula(self, *names: str) -> str:
+        """The equations of `names` (all when none) as symbols only, one display block: the same source
+        the values are computed from, for a sheet that states the equations before tabulating them."""
+        from handcalcs import global_config
+        from handcalcs.handcalcs import latex
+
+        chosen = [s for s in self.statements if not names or s.targets[0].id in names]  # type: ignore[union-attr]
+        source = "\n".join(ast.unparse(s) for s in chosen)
+        return latex(source, {}, "symbolic", dict(global_config._config), 3, False)
+
+    def formula_lines(self, *names: str) -> str:
+        """The rows of :meth:`formula`'s aligned block (``M_{f} &= …``), to join with other Calcs' rows."""
+        return self.formula(*names).split("\\begin{aligned}", 1)[1].split("\\end{aligned}", 1)[0].strip()
+
+    def inline(self, name: str) -> str:
+        """The equation of `name` as symbols, for running text (no $ signs): e.g. ``E_{S} = E \\cdot …``."""
+        return self.formula_lines(name).replace("&=", "=").replace("\\;", "").strip()
+
     def latex_lines(self, values: Mapping[str, float], units: Mapping[str, str] | None = None) -> str:
         """Like :meth:`latex`, one display block per statement."""
         return "\n".join(self.latex(values, units=units, source=ast.unparse(s)) for s in self.statements)
+
+
+_parses_remembered = False
+
+
+def _remember_parsed_lines() -> None:
+    """Parse each source line once per process in handcalcs, not on every rendering.
+
+    handcalcs' ``expr_parser(line)`` builds its pyparsing grammar anew on every call and is
+    called several times per line: about 60 % of a sheet's execution. A line's parse depends
+    only on its text (the values are substituted later), and our equations are the same few
+    hundred lines on every sheet, so the parse is kept by line and a deep copy handed out (the
+    callers consume the deques they get). ``tests/test_render.py`` checks that the rendering
+    is the same with and without it.
+    """
+    import copy
+
+    from handcalcs import handcalcs
+
+    global _parses_remembered
+    if _parses_remembered:
+        return
+    _parses_remembered = True
+    parse = handcalcs.expr_parser
+    parsed: dict[str, Any] = {}
+
+    def expr_parser(line: str):
+        if line not in parsed:
+            parsed[line] = parse(line)
+        return copy.deepcopy(parsed[line])
+
+    expr_parser.remembers_lines = True  # type: ignore[attr-defined]
+    expr_parser.original = parse  # type: ignore[attr-defined]
+    handcalcs.expr_parser = expr_parser
 
 
 def calc(units: Mapping[str, str], clause: str = "") -> Callable[[Callable[..., dict]], Calc]:

@@ -15,7 +15,7 @@ from dataclasses import dataclass, field
 from functools import cached_property
 
 from ..calc import Calc
-from ..data import Datum
+from ..datum import Datum
 from ..units import to_display
 
 

@@ -1,7 +1,7 @@
 """Compression parallel to grain with column stability (CSA O86-14 6.5.6 sawn,
 7.5.8 glulam), about the strong (x) and weak (y) axis.
 
-C_c = K_e L / d in the direction of buckling, at most 50; K_C from the
+C_c = K_e L / d in the direction of buckling, at most C_c,max (data/clause_values.csv); K_C from the
 slenderness; the lower P_r of the two axes governs. Clause numbers follow the
 O86-14 numbering (memory, unverified). The size factors K_Zc (sawn) and K_Zcg
 (glulam, on member volume) are the O86-14 forms (memory, unverified).
@@ -16,7 +16,6 @@ from .context import Context, Inputs, inputs
 
 SAWN_CLAUSE = "O86-14 6.5.6"
 GLULAM_CLAUSE = "O86-14 7.5.8"
-CC_MAX = 50.0
 
 _SAWN = {"f_c": "MPa", "K_D": "", "K_H": "", "K_Sc": "", "K_T": "", "F_c": "MPa", "K_e": "",
          "E_05": "MPa", "K_SE": "", "phi": "", "A": "mm**2"}
@@ -75,7 +74,7 @@ def glulam_compression_y(F_c, K_Zcg, K_e, L_y, b, E_05, K_SE, K_T, phi, A):
 def compression_resistance(m: Context, K_D: float) -> tuple[float, tuple[Step, ...], Inputs]:
     """P_r = min(P_rx, P_ry) in N under load-duration factor K_D, with its steps and the data it read.
 
-    Raises DesignError when the slenderness C_c about either axis exceeds 50.
+    Raises DesignError when the slenderness C_c about either axis exceeds C_c,max (clause_values.csv).
     """
     given = inputs(f_c=m.f["f_c"], K_D=K_D, K_H=m.K_H_for("compression"), K_Sc=m.K_S["K_Sc"], K_T=m.K_T,
                    K_e=m.K_e, E_05=m.f["E05"], K_SE=m.K_S["K_SE"], phi=m.phi["compression"], A=m.section.A)
@@ -93,13 +92,16 @@ def compression_resistance(m: Context, K_D: float) -> tuple[float, tuple[Step, .
     else:
         axes = ((sawn_compression_x, dict(L_x=m.L_x, d=m.section.d), "C_cx"),
                 (sawn_compression_y, dict(L_y=m.L_y, b=m.section.b), "C_cy"))
+    limits = []  # the slenderness limit, read once per axis checked
     for (calc_, geometry, slender), axis in zip(axes, ("x", "y"), strict=True):
         if min(v for k, v in geometry.items() if k.startswith("L_")) <= 0:
             continue  # braced about this axis over its whole length: no buckling about it
         values = calc_(**geometry, **common)
-        if values[slender] > CC_MAX:
+        limit = m.data.clause_value("C_c_max", m.member.material)
+        limits.append(limit)
+        if values[slender] > limit.value:
             raise DesignError(m.mark, f"slenderness C_c = {values[slender]:.1f} about the {axis} axis exceeds "
-                              f"{CC_MAX:g}", GLULAM_CLAUSE if m.glulam else SAWN_CLAUSE,
+                              f"{limit.value:g}", GLULAM_CLAUSE if m.glulam else SAWN_CLAUSE,
                               "Brace the member or choose a larger section")
         caption = ("buckling about the strong axis x (across d)" if axis == "x"
                    else "buckling about the weak axis y (across b)")
@@ -108,7 +110,7 @@ def compression_resistance(m: Context, K_D: float) -> tuple[float, tuple[Step, .
     if not any(r is not None for r in resistances):
         raise DesignError(m.mark, "is braced about both axes (Lx = Ly = 0); give the unbraced length of at least one")
     P_r = min(r for r in resistances if r is not None)
-    return P_r, tuple(steps), given
+    return P_r, tuple(steps), Inputs(given.values, (*given.used, *limits), given.notes)
 
 
 def check_compression(m: Context, case, P_f: float) -> CheckResult:

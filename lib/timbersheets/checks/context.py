@@ -15,12 +15,13 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
-from ..data import DataSet, Datum
+from ..data import DataSet
+from ..datum import Datum
 
 if TYPE_CHECKING:  # types only: the context is built by the design, which imports the checks
     from ..materials import Strengths
     from ..ownweight import OwnWeight
-    from ..schedule import Member
+    from ..member import Member
     from ..sections import Section
 
 
