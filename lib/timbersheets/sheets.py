@@ -22,7 +22,7 @@ from .loads import EFFECT_UNITS, EFFECTS, KD_SYMBOLS, LOAD_TYPES, kd_permanent
 from .membertypes import MemberType, member_type
 from .schedule import Member
 from .symbols import ACTION_WORDS, meaning, symbol_latex, symbol_unit
-from .tex import Cell, Table, escape, md_escape
+from .tex import Cell, Table, displays_noindent, escape, md_escape
 from .units import to_display
 
 LOAD_NAMES = {"D": "Dead", "L": "Live (use and occupancy)", "S": "Snow (with rain)", "W": "Wind", "E": "Earthquake"}
@@ -37,7 +37,7 @@ class Block:
     markdown: str
 
     def _repr_latex_(self) -> str:
-        return self.latex
+        return displays_noindent(self.latex)  # no empty line above a display that starts a paragraph
 
     def _repr_markdown_(self) -> str:
         return self.markdown
@@ -323,7 +323,7 @@ class Sheet:
                      "(lib/timbersheets/data/README.md lists each) and await checking against a licensed copy of "
                      "the standard.")
         return heading("Material and modification factors") + intro + table(
-            Table(["Symbol", "Value", "Meaning", "Source", "Data status"], rows, "lrXXl"))
+            Table(["Symbol", "Value", "Meaning", "Source", "Data status"], rows, "lrWNl"))
 
     # 5 -------------------------------------------------------------------------
     def checks_section(self) -> Block:
@@ -400,7 +400,7 @@ class Sheet:
             lines = [f"Governing check: {ACTION_WORDS.get(gov.check, gov.check).lower()}",
                      f"Combination: {gov.combination}",
                      f"Utilization: {round_utilization(gov.utilization):.3f}"]
-        body = "\\\\\n".join(escape(x) for x in lines)
+        body = "\\quad\n".join(f"\\mbox{{{escape(x)}}}" for x in lines)  # on one line under the verdict if they fit
         return out + Block(
             f"\\begin{{verdictbox}}\n{{\\Large {verdict}}}\\\\[2pt]\n{body}\n\\end{{verdictbox}}\n",
             f"> **{verdict}**  \n> " + "  \n> ".join(md_escape(x) for x in lines) + "\n")
@@ -410,13 +410,11 @@ class Sheet:
         listing = ""
         md = ""
         if warnings:
-            from .cautions import unverified_items
+            from .cautions import unverified_listing
 
-            entries = unverified_items(self.design.data_used)
-            items = "".join(f"\\item {latex}\n" for latex, _ in entries)
-            listing = ("\\par\\smallskip Data values used here that are not yet verified against the standard:\n"
-                       f"\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n")
-            md = "\n\nUnverified data values used:\n" + "".join(f"- {text}\n" for _, text in entries)
+            described = frozenset(d.symbol for d in self.design.data_used if d.symbol != "K_D" and not
+                                  d.label.startswith(("NBC combination", "SLS combination")))  # in the factor table
+            listing, md = unverified_listing(self.design.data_used, described)
         source, extra, extra_md = self._data_note()
         listing, md = extra + listing, extra_md + md
         codes = (f" Designed to CSA O86:{escape(self.codes.get('o86', '2019'))[-2:]} with loads combined per "
