@@ -108,6 +108,7 @@ def unverified_listing(used: list[Datum], described: frozenset[str] = frozenset(
     entries = unverified_items(used, described)
     if not entries:
         return "", ""
-    latex = "; ".join(item for item, _ in entries)
+    # "NBC 2020", "Table 7.3" kept on one line: a run-in line never starts with a bare number
+    latex = re.sub(r"\b(NBC|Table|Cl\.) (?=\d)", r"\1~", "; ".join(item for item, _ in entries))
     return (f"\\par\\smallskip {escape(LISTING_HEAD)}{latex}.\n",
             "\n\n" + md_escape(LISTING_HEAD) + "\n" + "".join(f"- {text}\n" for _, text in entries))

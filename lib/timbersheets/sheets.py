@@ -418,7 +418,7 @@ class Sheet:
         source, extra, extra_md = self._data_note()
         listing, md = extra + listing, extra_md + md
         codes = (f" Designed to CSA O86:{escape(self.codes.get('o86', '2019'))[-2:]} with loads combined per "
-                 f"NBC {escape(self.codes.get('nbc', '2020'))} Part 4.")
+                 f"NBC~{escape(self.codes.get('nbc', '2020'))} Part~4.")
         clauses = (" The methods, clause numbers and tables used here follow CSA O86-14 (each data value names "
                    "its edition); where O86:19 is known to have revised one of them, it is listed below.")
         notes = ""

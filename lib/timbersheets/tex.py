@@ -137,6 +137,8 @@ def as_cell(value: object) -> Cell:
     return value if isinstance(value, Cell) else Cell.text(value)
 
 
+#: Rows from which a table without wrapping columns may break across pages; shorter ones stay whole.
+BREAKABLE_ROWS = 8
 _WRAPPING = {"X": ">{\\raggedright\\arraybackslash}X",
              "W": ">{\\hsize=1.3\\hsize\\raggedright\\arraybackslash}X",
              "N": ">{\\hsize=0.7\\hsize\\raggedright\\arraybackslash}X"}
@@ -155,18 +157,22 @@ class Table:
     units: list[object] | None = None
 
     def latex(self) -> str:
+        """A tabular (tabularx with wrapping columns). A table without wrapping columns and of
+        BREAKABLE_ROWS rows or more is ``\\tsbreakable``: it breaks across pages, its header
+        repeated, so it fills the page it starts on instead of leaving the rest empty."""
         align = self.align or "l" * len(self.header)
         spec = "".join(_WRAPPING[a] if a in _WRAPPING else a for a in align)
         env = "tabularx" if any(a in _WRAPPING for a in align) else "tabular"
-        width = "{\\linewidth}" if env == "tabularx" else ""
-        lines = [f"\\begin{{{env}}}{width}{{{spec}}}", r"\toprule"]
-        lines.append(" & ".join(as_cell(h).latex for h in self.header) + r" \\")
+        head = [" & ".join(as_cell(h).latex for h in self.header) + r" \\"]
         if self.units:
-            lines.append(" & ".join(f"\\footnotesize {as_cell(u).latex}" for u in self.units) + r" \\")
-        lines.append(r"\midrule")
-        for row in self.rows:
-            lines.append(" & ".join(as_cell(c).latex for c in row) + r" \\")
-        lines += [r"\bottomrule", f"\\end{{{env}}}"]
+            head.append(" & ".join(f"\\footnotesize {as_cell(u).latex}" for u in self.units) + r" \\")
+        body = [" & ".join(as_cell(c).latex for c in row) + r" \\" for row in self.rows]
+        if env == "tabular" and len(self.rows) >= BREAKABLE_ROWS:
+            return ("\\par\n\\tsbreakable{" + spec + "}{\n" + "\n".join(head) + "}{\n" + "\n".join(body)
+                    + "}\n\\par\n")
+        width = "{\\linewidth}" if env == "tabularx" else ""
+        lines = [f"\\begin{{{env}}}{width}{{{spec}}}", r"\toprule", *head, r"\midrule", *body,
+                 r"\bottomrule", f"\\end{{{env}}}"]
         return "\\par\\noindent\n" + "\n".join(lines) + "\n\\par\n"
 
     def markdown(self) -> str:
