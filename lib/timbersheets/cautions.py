@@ -108,7 +108,8 @@ def unverified_listing(used: list[Datum], described: frozenset[str] = frozenset(
     entries = unverified_items(used, described)
     if not entries:
         return "", ""
-    # "NBC 2020", "Table 7.3" kept on one line: a run-in line never starts with a bare number
+    # "NBC 2020", "Table 7.3", "O86-14" kept on one line: a run-in line never starts with a bare number
     latex = re.sub(r"\b(NBC|Table|Cl\.) (?=\d)", r"\1~", "; ".join(item for item, _ in entries))
+    latex = re.sub(r"\b([A-Z]+\d+-\d+)\b", r"\\mbox{\1}", latex)
     return (f"\\par\\smallskip {escape(LISTING_HEAD)}{latex}.\n",
             "\n\n" + md_escape(LISTING_HEAD) + "\n" + "".join(f"- {text}\n" for _, text in entries))

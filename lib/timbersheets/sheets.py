@@ -269,15 +269,17 @@ class Sheet:
             intro += para(escape(senses), senses)
         out = heading("Load combinations") + intro + table(
             Table(header, rows, "rl" + "r" * len(effects) + "rX", units))
-        for case in d.cases:
-            if case.kd_values:
-                unit = EFFECT_UNITS[case.kd_effect]
-                latex = kd_permanent.latex(case.kd_values, units={"X_lt": unit, "X_st": unit})
-                words = "; ".join(f"${symbol_latex(k)}$ is {v}" for k, v in KD_SYMBOLS.items())
-                out += para(f"For {escape(case.label)} the long-term (dead) part exceeds the standard-term part, "
-                            f"so (CSA O86-14 5.3.2.3, on ${case.kd_effect}$; {words}; O86's own letters for "
-                            "these are those of the schedule's live and snow load columns, hence new names):")
-                out += math_block(latex)
+        reduced = [case for case in d.cases if case.kd_values]
+        if reduced:  # the rule once, then each combination's K_D (a few lines each, not a paragraph)
+            words = "; ".join(f"${symbol_latex(k)}$ is {v}" for k, v in KD_SYMBOLS.items())
+            out += para("Where the long-term (dead) part exceeds the standard-term part, $K_D$ follows CSA O86-14 "
+                        f"5.3.2.3 ({words}; O86's own letters for these are those of the schedule's live and snow "
+                        "load columns, hence new names).")
+        for case in reduced:
+            unit = EFFECT_UNITS[case.kd_effect]
+            latex = kd_permanent.latex(case.kd_values, units={"X_lt": unit, "X_st": unit})
+            out += para(f"For {escape(case.label)}, on ${case.kd_effect}$:")
+            out += math_block(latex)
         if self.kind.shows("forces"):
             from .beamsheet import forces_block
 
