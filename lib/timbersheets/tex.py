@@ -137,7 +137,7 @@ def as_cell(value: object) -> Cell:
     return value if isinstance(value, Cell) else Cell.text(value)
 
 
-#: Rows from which a table without wrapping columns may break across pages; shorter ones stay whole.
+#: Rows from which a table with at most one wrapping column may break across pages; shorter ones stay whole.
 BREAKABLE_ROWS = 8
 _WRAPPING = {"X": ">{\\raggedright\\arraybackslash}X",
              "W": ">{\\hsize=1.3\\hsize\\raggedright\\arraybackslash}X",
@@ -157,8 +157,8 @@ class Table:
     units: list[object] | None = None
 
     def latex(self) -> str:
-        """A tabular (tabularx with wrapping columns). A table without wrapping columns and of
-        BREAKABLE_ROWS rows or more is ``\\tsbreakable``: it breaks across pages, its header
+        """A tabular (tabularx with wrapping columns). A table of BREAKABLE_ROWS rows or more with
+        at most one wrapping column (X) is ``\\tsbreakable``: it breaks across pages, its header
         repeated, so it fills the page it starts on instead of leaving the rest empty."""
         align = self.align or "l" * len(self.header)
         spec = "".join(_WRAPPING[a] if a in _WRAPPING else a for a in align)
@@ -167,8 +167,9 @@ class Table:
         if self.units:
             head.append(" & ".join(f"\\footnotesize {as_cell(u).latex}" for u in self.units) + r" \\")
         body = [" & ".join(as_cell(c).latex for c in row) + r" \\" for row in self.rows]
-        if env == "tabular" and len(self.rows) >= BREAKABLE_ROWS:
-            return ("\\par\n\\tsbreakable{" + spec + "}{\n" + "\n".join(head) + "}{\n" + "\n".join(body)
+        wrapping = [a for a in align if a in _WRAPPING]
+        if len(self.rows) >= BREAKABLE_ROWS and wrapping in ([], ["X"]):  # \tsbreakable sizes one X column
+            return ("\\par\n\\tsbreakable{" + align + "}{\n" + "\n".join(head) + "}{\n" + "\n".join(body)
                     + "}\n\\par\n")
         width = "{\\linewidth}" if env == "tabularx" else ""
         lines = [f"\\begin{{{env}}}{width}{{{spec}}}", r"\toprule", *head, r"\midrule", *body,
