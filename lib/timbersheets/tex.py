@@ -137,7 +137,7 @@ def as_cell(value: object) -> Cell:
     return value if isinstance(value, Cell) else Cell.text(value)
 
 
-#: Rows from which a table with at most one wrapping column may break across pages; shorter ones stay whole.
+#: Rows from which a long table may break across pages (see Table.latex); shorter ones stay whole.
 BREAKABLE_ROWS = 8
 _WRAPPING = {"X": ">{\\raggedright\\arraybackslash}X",
              "W": ">{\\hsize=1.3\\hsize\\raggedright\\arraybackslash}X",
@@ -158,8 +158,8 @@ class Table:
 
     def latex(self) -> str:
         """A tabular (tabularx with wrapping columns). A table of BREAKABLE_ROWS rows or more with
-        at most one wrapping column (X) is ``\\tsbreakable``: it breaks across pages, its header
-        repeated, so it fills the page it starts on instead of leaving the rest empty."""
+        no wrapping column, one X, or a W and an N is ``\\tsbreakable``: it breaks across pages,
+        its header repeated, so it fills the page it starts on instead of leaving the rest empty."""
         align = self.align or "l" * len(self.header)
         spec = "".join(_WRAPPING[a] if a in _WRAPPING else a for a in align)
         env = "tabularx" if any(a in _WRAPPING for a in align) else "tabular"
@@ -168,7 +168,7 @@ class Table:
             head.append(" & ".join(f"\\footnotesize {as_cell(u).latex}" for u in self.units) + r" \\")
         body = [" & ".join(as_cell(c).latex for c in row) + r" \\" for row in self.rows]
         wrapping = [a for a in align if a in _WRAPPING]
-        if len(self.rows) >= BREAKABLE_ROWS and wrapping in ([], ["X"]):  # \tsbreakable sizes one X column
+        if len(self.rows) >= BREAKABLE_ROWS and wrapping in ([], ["X"], ["W", "N"]):  # what \tsbreakable sizes
             return ("\\par\n\\tsbreakable{" + align + "}{\n" + "\n".join(head) + "}{\n" + "\n".join(body)
                     + "}\n\\par\n")
         width = "{\\linewidth}" if env == "tabularx" else ""
