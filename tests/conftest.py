@@ -11,7 +11,7 @@ from pathlib import Path
 import pytest
 
 from timbersheets.data import DataSet
-from timbersheets.design import design_member
+from timbersheets.sizing import design_sized
 from timbersheets.schedule import load_schedule
 
 REPO = Path(__file__).resolve().parent.parent
@@ -81,4 +81,4 @@ def design_row(tmp_path: Path, data: DataSet, **cells: str):
     """Validate one row through the real schedule reader and design it."""
     schedule = load_schedule(write_schedule(tmp_path, [member_row(**cells)]))
     assert not schedule.rejected, [str(e) for r in schedule.rejected for e in r.errors]
-    return design_member(schedule.members[0], data)
+    return design_sized(schedule.members[0], data)

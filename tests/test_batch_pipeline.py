@@ -92,12 +92,13 @@ def test_a_review_restamps_every_sheet_and_typesets_no_body(batch_job):
     assert again.converted == [] and again.stamped == []  # the stamped sheets come from the cache
 
 
-def test_a_new_revision_with_one_change_typesets_one_body_and_restamps_all(batch_job):
+def test_a_new_revision_with_one_change_typesets_one_body_and_restamps_all(batch_job, monkeypatch):
     job, out, _ = batch_job
     rows = [dict(r) for r in ROWS]
     rows[1]["P_L"] = "9"
     write_job(job, rows, revision="B")
-    second = run_job(job, RunOptions(out=out, progress=False, jobs=1))
+    monkeypatch.setattr("timbersheets.batch.STAMP_SHARE", 1)  # the re-stamping shared by two xelatex runs
+    second = run_job(job, RunOptions(out=out, progress=False, jobs=2))
     assert second.executed == ["BA-2"] and second.converted == ["BA-2"]
     assert sorted(second.stamped) == ["BA-1", "BA-2", "BA-3", "BA-4"]
     for mark in ("BA-1", "BA-2", "BA-3", "BA-4"):
@@ -136,6 +137,37 @@ def test_a_sheet_that_cannot_be_typeset_leaves_the_batch_standing(tmp_path, monk
                for e in next(d for d in report.designs if d.mark == "TEX-1").errors)
     for mark in ("OK-1", "OK-2"):
         assert "1 of " in title_block(report.outdir / "sheets" / f"{mark}.pdf", 1)
+
+
+def test_a_notebook_that_fails_leaves_the_other_sheets_standing_on_two_workers(tmp_path, monkeypatch):
+    """Two workers (a pool process and the run's own), two batches; one member's notebook raises.
+    Its batch's other sheets, and the other batch, are made and numbered; the failed member keeps
+    its notebook with the error marked, and its sheet says it is incomplete."""
+    import nbformat
+
+    from timbersheets.pipeline import templates_dir
+
+    templates = tmp_path / "templates"
+    shutil.copytree(templates_dir(), templates)
+    nb = nbformat.read(templates / "axial.ipynb", 4)
+    nb.cells.insert(5, nbformat.v4.new_code_cell('if member["mark"] == "ERR-1":\n    raise RuntimeError("stopped here")'))
+    nbformat.write(nb, templates / "axial.ipynb")
+    monkeypatch.setenv("TIMBERSHEETS_TEMPLATES", str(templates))
+    marks = ["OK-1", "ERR-1", "OK-2", "OK-3"]
+    job = write_job(tmp_path / "nb", [member_row(m) for m in marks])
+    report = run_job(job, RunOptions(out=tmp_path / "out", progress=False, jobs=2))
+    assert sorted(report.executed) == sorted(marks)
+    failed = next(d for d in report.designs if d.mark == "ERR-1")
+    assert any("RuntimeError: stopped here" in e for e in failed.errors)
+    kept = nbformat.read(report.outdir / "notebooks" / "ERR-1.ipynb", 4)
+    assert any(o.get("output_type") == "error" for c in kept.cells if c.cell_type == "code" for o in c.outputs)
+    for mark in ("OK-1", "OK-2", "OK-3"):
+        sheet = report.outdir / "sheets" / f"{mark}.pdf"
+        total = len(PdfReader(str(sheet)).pages)
+        assert all(f"{k} of {total}" in title_block(sheet, k) for k in range(1, total + 1)), mark
+    text = subprocess.run(["pdftotext", str(report.outdir / "sheets" / "ERR-1.pdf"), "-"], capture_output=True,
+                          text=True, check=True).stdout
+    assert "EXECUTION ERROR" in text and "RuntimeError: stopped here" in text
 
 
 def words(pdf: Path, page: int) -> list[tuple[str, float, float, float, float]]:

@@ -15,6 +15,7 @@ from hypothesis import strategies as st
 from conftest import design_row, write_schedule
 from timbersheets.checks.combined import beam_column, euler_load
 from timbersheets.design import design_member
+from timbersheets.sizing import design_sized
 from timbersheets.membertypes import member_types
 from timbersheets.schedule import load_schedule
 from timbersheets.sizing import catalogue
@@ -142,7 +143,7 @@ def sized(tmp_path, **cells):
 @pytest.mark.parametrize("kind", list(AUTO))
 def test_sizing_picks_the_lightest_passing_section(tmp_path, data, kind):
     member, _ = sized(tmp_path, **AUTO[kind])
-    d = design_member(member, data)
+    d = design_sized(member, data)
     assert d.status == "pass" and d.sizing.chosen is not None
     chosen = d.sizing.chosen.section
     assert d.size == chosen.label and d.governing.utilization <= 1.0
@@ -153,7 +154,7 @@ def test_sizing_picks_the_lightest_passing_section(tmp_path, data, kind):
     cells = dict(AUTO[kind], size=f"{previous.ply_b:g}x{previous.d:g}")
     if previous.plies > 1:
         cells["plies"] = str(previous.plies)
-    explicit = design_member(sized(tmp_path, **cells)[0], data)
+    explicit = design_sized(sized(tmp_path, **cells)[0], data)
     assert explicit.size == previous.label and explicit.status != "pass", previous.label
     # runners-up are all at least as heavy, and all pass
     assert all(r.section.A >= chosen.A and r.passes for r in d.sizing.runners_up)
@@ -162,25 +163,36 @@ def test_sizing_picks_the_lightest_passing_section(tmp_path, data, kind):
 
 def test_sizing_respects_width_and_depth_constraints(tmp_path, data):
     member, _ = sized(tmp_path, **dict(AUTO["beam"], width="175", max_depth="380"))
-    d = design_member(member, data)
+    d = design_sized(member, data)
     s = d.context.section
     assert s.b == 175 and s.d <= 380
     assert all(c.section.b == 175 and c.section.d <= 380 for c in d.sizing.runners_up)
 
 
 def test_sizing_prefer_deep_among_near_equal_weights(tmp_path, data):
-    plain = design_member(sized(tmp_path, **AUTO["column"])[0], data)
-    deep = design_member(sized(tmp_path, **dict(AUTO["column"], prefer="deep"))[0], data)
+    plain = design_sized(sized(tmp_path, **AUTO["column"])[0], data)
+    deep = design_sized(sized(tmp_path, **dict(AUTO["column"], prefer="deep"))[0], data)
     assert deep.context.section.d >= plain.context.section.d
     assert deep.context.section.A <= plain.context.section.A * 1.10 + 1e-9
 
 
 def test_a_member_nothing_satisfies_says_so(tmp_path, data):
     member, _ = sized(tmp_path, **dict(AUTO["purlin"], w_S="40", max_depth="140"))
-    d = design_member(member, data)
+    d = design_sized(member, data)
     assert d.status == "fail" and d.sizing.chosen is None
     assert any("no standard section in the catalogue passes" in w and "reaches utilization" in w for w in d.warnings)
     assert d.sizing.best is not None and d.sizing.best.utilization > 1
+
+
+def test_the_design_alone_does_not_size_an_auto_member(tmp_path, data):
+    """The sizing calls the design, never the other way: without the sizer an auto member is an error
+    that says how to size it, and through design_sized the same member gets the section the search chose."""
+    member, _ = sized(tmp_path, **AUTO["purlin"])
+    alone = design_member(member, data)
+    assert alone.status == "error" and alone.sizing is None and not alone.checks
+    assert "size = auto" in alone.errors[0] and "design_sized" in alone.errors[0]
+    sized_design = design_sized(member, data)
+    assert sized_design.status == "pass" and sized_design.size == sized_design.sizing.chosen.label
 
 
 STUD_AUTO = dict(material="sawn", species="S-P-F", grade="No.1/No.2", size="auto", K_H="1.1", length="3.0",

@@ -12,7 +12,7 @@ import pytest
 
 from conftest import DEMO, write_job
 from timbersheets.data import DataSet
-from timbersheets.design import design_member
+from timbersheets.sizing import design_sized
 from timbersheets.htmlsheet import Converter, sheet_html
 from timbersheets.project import load_project
 from timbersheets.runner import RunOptions, run_job, titleblock
@@ -40,7 +40,7 @@ def demo_notebook(mark: str):
     """The notebook a run writes, built in-process from the same sheet functions (no papermill)."""
     member = {m.mark: m for m in load_schedule(DEMO / "schedule.csv").members}[mark]
     data = DataSet()
-    design = design_member(member, data)
+    design = design_sized(member, data)
     sheet = Sheet(design, data, {"nbc": "2020", "o86": "2019"})
     nb = nbformat.v4.new_notebook()
     for name in SECTIONS:

@@ -94,13 +94,13 @@ def test_outputs_follow_the_umask_and_copies_keep_their_mode(tmp_path):
 def test_sizing_search_is_bounded_by_the_standard_catalogue(tmp_path, data):
     """A max_depth beyond any glulam does not grow the search: it ends at the standard depth."""
     from conftest import write_schedule
-    from timbersheets.design import design_member
+    from timbersheets.sizing import design_sized
     from timbersheets.schedule import load_schedule
 
     row = member_row("S-1", type="bending", material="glulam", species="D.Fir-L", grade="24f-E", size="auto",
                      length="6", Ly="", P_D="", w_D="2", w_L="3", Lu="0")
-    free = design_member(load_schedule(write_schedule(tmp_path, [row])).members[0], data)
-    deep = design_member(load_schedule(write_schedule(tmp_path, [{**row, "max_depth": "2500"}])).members[0], data)
+    free = design_sized(load_schedule(write_schedule(tmp_path, [row])).members[0], data)
+    deep = design_sized(load_schedule(write_schedule(tmp_path, [{**row, "max_depth": "2500"}])).members[0], data)
     assert deep.sizing.searched == free.sizing.searched
     huge = load_schedule(write_schedule(tmp_path, [{**row, "max_depth": "1e308"}]))
     assert "column 'max_depth'" in str(huge.rejected[0].errors[0])

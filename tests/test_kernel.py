@@ -7,13 +7,13 @@ Real papermill and a real kernel; the notebooks are written here.
 """
 
 import json
+import subprocess
+import sys
 
 import nbformat
 import pytest
 
 from timbersheets import pipeline
-
-pytestmark = pytest.mark.pipeline
 
 
 def notebook(path, *cells):
@@ -32,6 +32,7 @@ def printed(path):
     return "".join(o.get("text", "") for c in nb.cells if c.cell_type == "code" for o in c.outputs)
 
 
+@pytest.mark.pipeline
 def test_nothing_carries_over_between_members(tmp_path):
     first = notebook(tmp_path / "first.ipynb", "import os\nleftover = mark\nprint(os.getpid())")
     second = notebook(tmp_path / "second.ipynb",
@@ -47,3 +48,24 @@ def test_nothing_carries_over_between_members(tmp_path):
     assert pipeline.execute(notebook(tmp_path / "third.ipynb", "print(len(Out), len(In) < 4)"),
                             tmp_path / "c.ipynb", {"mark": "C-1"}, tmp_path) is None
     assert printed(tmp_path / "c.ipynb").split()[0] == "0"
+
+
+def test_the_warm_up_imports_what_exists():
+    """The imports a kernel runs when it starts (pipeline.WARM_UP) name modules that exist: a renamed
+    module would otherwise only cost every run its head start, silently."""
+    done = subprocess.run([sys.executable, "-c", pipeline.WARM_UP], capture_output=True, text=True)
+    assert done.returncode == 0, done.stderr
+
+
+@pytest.mark.pipeline
+def test_a_started_kernel_runs_the_first_member(tmp_path):
+    """A kernel started ahead (runner: while the members are designed) runs the first member; its
+    warm-up left no name behind."""
+    pipeline._Kernel.shutdown()
+    pipeline.start_kernel(tmp_path)
+    assert pipeline._Kernel.starting is not None  # launched in the background: start returns at once
+    first = notebook(tmp_path / "first.ipynb", "import json\nprint(json.dumps(sorted(n for n in globals() "
+                                               "if n in ('timbersheets', 'handcalcs', 'matplotlib'))))")
+    assert pipeline.execute(first, tmp_path / "a.ipynb", {"mark": "A-1"}, tmp_path) is None
+    assert pipeline._Kernel.warming is None
+    assert json.loads(printed(tmp_path / "a.ipynb").split("\n")[0]) == []

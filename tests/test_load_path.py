@@ -8,7 +8,7 @@ import json
 import pytest
 
 from conftest import write_job, write_schedule
-from timbersheets.design import design_all
+from timbersheets.loadpath import design_all
 from timbersheets.revisions import diff, format_diff
 from timbersheets.runner import run_job
 from timbersheets.schedule import load_schedule

@@ -8,7 +8,7 @@ from pathlib import Path
 import pytest
 
 from conftest import member_row, write_schedule
-from timbersheets.design import design_member
+from timbersheets.sizing import design_sized
 from timbersheets.membertypes import MemberType, member_types
 from timbersheets.schedule import load_schedule
 from timbersheets.sheets import Sheet
@@ -44,7 +44,7 @@ def test_a_toy_type_is_validated_by_its_record(tmp_path, with_strut):
 
 def test_a_toy_type_is_designed_and_rendered(tmp_path, data, with_strut):
     members, _ = rows(tmp_path, dict(type="strut", Ly="1.5"), dict(type="compression", Ly="1.5"))
-    strut, post = design_member(members["S-0"], data), design_member(members["S-1"], data)
+    strut, post = design_sized(members["S-0"], data), design_sized(members["S-1"], data)
     assert strut.errors == [] and strut.checks
     # same routine and same sense as the compression type, so the same check results
     assert [c.check for c in strut.checks] == ["compression"] * len(strut.checks)
@@ -62,7 +62,7 @@ def test_every_type_runs_only_the_checks_its_record_names(data):
     demo = load_schedule(REPO / "calcsheets" / "kestrel-cove-boathouse" / "schedule.csv")
     seen: dict[str, set[str]] = {}
     for m in demo.members:
-        d = design_member(m, data)
+        d = design_sized(m, data)
         seen.setdefault(m.type, set()).update(c.check for c in d.checks)
     assert set(seen) == set(member_types()), "the demo job has a member of every type"
     for name, checks in seen.items():

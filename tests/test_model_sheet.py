@@ -6,7 +6,7 @@ from __future__ import annotations
 from importlib.metadata import version
 
 from conftest import write_schedule
-from timbersheets.design import design_all
+from timbersheets.loadpath import design_all
 from timbersheets.schedule import load_schedule
 from timbersheets.sheets import Sheet
 
@@ -48,5 +48,8 @@ def test_simple_span_sheet_gives_the_reactions_a_carrier_takes(tmp_path, data):
     # hand calculation: R = wL/2: D 1.2 × 6 / 2 = 3.6 kN, S 3.0 × 6 / 2 = 9.0 kN
     sheet = sheet_for(tmp_path, data, "RB-1")
     forces = sheet.combinations_section().latex
-    assert "w\\_f L^2/8" in forces or "w_f L^2/8" in forces  # the closed form stays
-    assert "R1 = R2 = w L / 2 by load type: D 3.6, S 9.0 kN" in forces
+    # the closed forms are the design's own Calcs, rendered as symbols: M_f = w_f L²/8, Q_f = w_f L/2
+    assert r"M_{f} &= w_{f} \cdot \frac{ \left( L \right) ^{ 2 } }{ 8 }" in forces
+    assert r"Q_{f} &= w_{f} \cdot \frac{ L }{ 2 }" in forces
+    assert "for $w_f$: D 3.6, S 9.0 kN" in forces
+    assert "R1 = R2 = w L / 2 by load type: D 3.6, S 9.0 kN" in sheet.combinations_section().markdown

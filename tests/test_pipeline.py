@@ -208,7 +208,7 @@ def test_templates_run_top_to_bottom_with_their_defaults(tmp_path):
     import papermill
 
     from timbersheets.data import DataSet
-    from timbersheets.design import design_member
+    from timbersheets.sizing import design_sized
     from timbersheets.membertypes import member_types
     from timbersheets.pipeline import templates_dir
     from timbersheets.results import member_json
@@ -221,7 +221,7 @@ def test_templates_run_top_to_bottom_with_their_defaults(tmp_path):
         papermill.execute_notebook(str(templates_dir() / name), str(out), progress_bar=False, cwd=str(DEMO))
         record, error = read_record(out)
         assert error is None, (name, error)
-        expected = member_json(design_member(demo[record["mark"]], DataSet()))
+        expected = member_json(design_sized(demo[record["mark"]], DataSet()))
         assert record["utilization"] == expected["utilization"] and record["checks"] == expected["checks"]
 
 

@@ -10,7 +10,7 @@ import pytest
 
 from conftest import DEMO, write_schedule
 from timbersheets.data import DataSet
-from timbersheets.design import design_member
+from timbersheets.sizing import design_sized
 from timbersheets.schedule import COLUMNS, load_schedule
 from timbersheets.sheets import Sheet
 
@@ -24,7 +24,7 @@ def demo_members():
 
 def sheet_of(member) -> Sheet:
     data = DataSet()
-    return Sheet(design_member(member, data), data, CODES)
+    return Sheet(design_sized(member, data), data, CODES)
 
 
 def prose(latex: str) -> str:
@@ -116,7 +116,7 @@ def test_prefer_square_still_lists_runners_up(tmp_path):
     # C-5 (Spruce-Pine 12c-E glulam column, prefer = square) at 10 kN dead: before, the squarest
     # section within 10 % of the lightest left no runner-up; the lighter sections passed over are
     # alternatives a checker wants to see (common practice: show the options the choice rejected).
-    design = design_member(demo_variant(tmp_path, "C-5", P_D="10"), DataSet())
+    design = design_sized(demo_variant(tmp_path, "C-5", P_D="10"), DataSet())
     sizing = design.sizing
     assert sizing.chosen is not None and len(sizing.runners_up) >= 3
     assert all(c.passes for c in sizing.runners_up)

@@ -188,7 +188,8 @@ def beam_times(repeat: int = 5) -> list[str]:
     sys.path.insert(0, str(REPO / "lib"))
     from timbersheets import beamdesign, beammodel
     from timbersheets.data import DataSet
-    from timbersheets.design import design_all, design_member
+    from timbersheets.loadpath import design_all
+    from timbersheets.sizing import design_sized
     from timbersheets.schedule import load_schedule
 
     data = DataSet()
@@ -214,7 +215,7 @@ def beam_times(repeat: int = 5) -> list[str]:
     lines, worst = [], 0.0
     for mark, d in models.items():
         took = best(lambda: analyse(d))
-        whole = best(lambda: design_member(d.member, data))
+        whole = best(lambda: design_sized(d.member, data))
         worst = max(worst, took)
         lines.append(f"    {mark:<10} analysis {took * 1000:6.1f} ms ({len(beamdesign.geometry_of(d.member).regions)} "
                      f"regions, {len(d.cases)} combinations); with every check {whole * 1000:6.1f} ms")
@@ -223,7 +224,7 @@ def beam_times(repeat: int = 5) -> list[str]:
     joist = models["FJ-1"].member
     auto = type(joist)(joist.mark, joist.row, {**joist.values, "size": "auto"}, joist.given)
     outcomes = []
-    took = best(lambda: outcomes.append(design_member(auto, data)))
+    took = best(lambda: outcomes.append(design_sized(auto, data)))
     sizing = outcomes[-1].sizing
     chosen = sizing.chosen.label if sizing and sizing.chosen else "none"
     lines.append(f"  continuous joist FJ-1 sized in {took:.2f} s ({sizing.searched} tried, chose {chosen})   "

@@ -45,6 +45,19 @@ def udl_shear(w_f, L, d):
     return locals()
 
 
+@calc(units={"w_f": "N/mm", "L": "mm", "Q_f": "N"}, clause=SPAN_CLAUSE)
+def udl_reaction(w_f, L):
+    Q_f = w_f * L / 2
+    return locals()
+
+
+@calc(units={"w_f": "N/mm", "L": "mm", "x": "mm", "V_x": "N", "M_x": "N*mm"}, clause=SPAN_CLAUSE)
+def udl_section_forces(w_f, L, x):
+    V_x = w_f * (L / 2 - x)
+    M_x = w_f * x * (L - x) / 2
+    return locals()
+
+
 @calc(units={"w_f": "N/mm", "L": "mm", "W_f": "N"}, clause=SPAN_CLAUSE)
 def udl_total_load(w_f, L):
     W_f = w_f * L
@@ -107,8 +120,35 @@ def member_forces(member, d: float, case: LoadCase, mode: str) -> Forces:
     moment = udl_moment(w_f=w_f, L=L)
     shear = udl_shear(w_f=w_f, L=L, d=d)
     total = udl_total_load(w_f=w_f, L=L)
-    steps = {"moment": (udl_moment, moment), "shear": (udl_shear, shear), "total": (udl_total_load, total)}
-    return Forces(case, moment["M_f"], shear["V_f"], shear["V_fd"], shear["V_f"], total["W_f"], w_f, steps)
+    reaction = udl_reaction(w_f=w_f, L=L)
+    steps = {"moment": (udl_moment, moment), "shear": (udl_shear, shear), "reaction": (udl_reaction, reaction),
+             "total": (udl_total_load, total)}
+    return Forces(case, moment["M_f"], shear["V_f"], shear["V_fd"], reaction["Q_f"], total["W_f"], w_f, steps)
+
+
+@dataclass(frozen=True)
+class SpanDiagram:
+    """V(x) and M(x) of a simple span under uniform load at evenly spaced stations, with the values the
+    checks use (mm, N, N·mm)."""
+
+    x: tuple[float, ...]
+    V: tuple[float, ...]
+    M: tuple[float, ...]
+    d: float  # where V_fd is taken
+    V_f: float
+    V_fd: float
+    M_f: float
+
+
+def span_diagram(w_f: float, L: float, d: float, stations: int = 41) -> SpanDiagram:
+    """The shear and moment along a simple span (`w_f` N/mm, `L` and `d` mm), from the same Calcs as the
+    checks: V(x), M(x) from :func:`udl_section_forces`, V_f and V_fd from :func:`udl_shear`, M_f from
+    :func:`udl_moment`."""
+    xs = tuple(L * i / (stations - 1) for i in range(stations))
+    at = [udl_section_forces(w_f=w_f, L=L, x=x) for x in xs]
+    shear, moment = udl_shear(w_f=w_f, L=L, d=d), udl_moment(w_f=w_f, L=L)
+    return SpanDiagram(xs, tuple(v["V_x"] for v in at), tuple(v["M_x"] for v in at), d, shear["V_f"],
+                       shear["V_fd"], moment["M_f"])
 
 
 @dataclass(frozen=True)
@@ -124,17 +164,27 @@ class ServiceCase:
 
     @property
     def label(self) -> str:
-        return " + ".join(f"{f:.1f}{t}" for t, f in self.factors.items())
+        return " + ".join(f"{f:.1f}{t}" for t, f in self.factors.items())  # as combination_label
+
+
+def sls_combinations(data) -> dict[str, list[tuple[str, Datum]]]:
+    """The SLS combinations of data/sls_combinations.csv: (load type, factor) rows by check, in file order."""
+    by_check: dict[str, list[tuple[str, Datum]]] = {}
+    for check, load, datum in data.sls_factors():
+        by_check.setdefault(check, []).append((load, datum))
+    return by_check
+
+
+def combination_label(rows: list[tuple[str, Datum]]) -> str:
+    """'1.0D + 1.0L': how a sheet writes a combination of factored load types."""
+    return " + ".join(f"{d.value:.1f}{t}" for t, d in rows)
 
 
 def service_cases_for(member, data, present: list[str]) -> list[ServiceCase]:
     """The SLS combinations of :func:`service_cases` for a beam model carrying the load types `present`;
     `w_s` is not used (the model gives the deflection)."""
     out = []
-    by_check: dict[str, list[tuple[str, Datum]]] = {}
-    for check, load, datum in data.sls_factors():
-        by_check.setdefault(check, []).append((load, datum))
-    for check, rows in by_check.items():
+    for check, rows in sls_combinations(data).items():
         used = [(t, d) for t, d in rows if t in present]
         if not used or (check == "deflection-live" and all(t == "D" for t, _ in used)):
             continue
@@ -151,10 +201,7 @@ def service_cases(member, data) -> list[ServiceCase]:
     value (memory (team), conservative against the NBC 2020 SLS companion factors).
     """
     out = []
-    by_check: dict[str, list[tuple[str, Datum]]] = {}
-    for check, load, datum in data.sls_factors():
-        by_check.setdefault(check, []).append((load, datum))
-    for check, rows in by_check.items():
+    for check, rows in sls_combinations(data).items():
         used = [(t, d) for t, d in rows if member.values[f"w_{t}"]]
         if not used or (check == "deflection-live" and all(t == "D" for t, _ in used)):
             continue  # the member carries none of this combination's loads

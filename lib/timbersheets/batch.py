@@ -49,6 +49,8 @@ class Body:
     notebook: Path
     titleblock: dict[str, str]  # fixed fields only
     pdf: Path  # where the body goes (the cache)
+    stamp: dict[str, str] | None = None  # stamped fields: the stamped sheet is made in the same run
+    sheet: Path | None = None  # where the stamped sheet goes (the cache), with `stamp`
 
 
 @dataclass
@@ -81,6 +83,9 @@ def _one_by_one(items: list[T], run: Callable[[list[T]], dict[str, int]], mark: 
 def typeset_bodies(bodies: list[Body], times: dict[str, float]) -> dict[str, int | ConversionError]:
     """Typeset the bodies in one xelatex run and split them; per mark its page count, or the error.
 
+    A body with `stamp` fields gets its stamp pages typeset in the same run, after the
+    last body (TeX knows each member's page count by then), and its stamped sheet saved
+    to `sheet`: a cold run needs no second TeX run for the title blocks.
     Seconds spent are added to `times` under "typeset" and "split"."""
     return _one_by_one(bodies, partial(_typeset_batch, times=times), lambda b: b.mark, "sheet")
 
@@ -96,7 +101,10 @@ def _typeset_batch(bodies: list[Body], times: dict[str, float]) -> dict[str, int
         preamble = preamble or head
         parts.append(rest[rest.index(BEGIN):rest.index(END)])
         files.update(outputs)
-    source = preamble + "\\begin{document}\n" + "\n".join(parts) + "\\end{document}\n"
+    stamps = [_stamp_fields().render(s=b.stamp, pages=f"\\tsmemberpages{{{i}}}")
+              for i, b in enumerate(bodies, start=1) if b.stamp is not None]
+    stamping = "\\tsstamptrue\n" + "\n".join(stamps) if stamps else ""
+    source = preamble + "\\begin{document}\n" + "\n".join(parts) + stamping + "\\end{document}\n"
     with tempfile.TemporaryDirectory(prefix="ts-tex-") as tmp:
         done = typeset(source, Path(tmp), "sheets", "sheets", files)
         split = time.monotonic()
@@ -112,25 +120,66 @@ def _typeset_batch(bodies: list[Body], times: dict[str, float]) -> dict[str, int
                     _save(sheet, body.pdf)
                 pages[body.mark] = end - start
                 start = end
+            for body in bodies:  # the stamp pages follow the last body, in the same order
+                if body.stamp is not None:
+                    _lay_stamp(body.pdf, batch.pages[start:start + pages[body.mark]], body.sheet)
+                    start += pages[body.mark]
     times["split"] = times.get("split", 0.0) + time.monotonic() - split
     return pages
 
 
-def stamp_sheets(stamps: list[Stamp]) -> dict[str, int | ConversionError]:
-    """Lay each sheet's title-block stamp onto its body; per mark its page count, or the error."""
-    return _one_by_one(stamps, _stamp_batch, lambda s: s.mark, "title block")
+STAMP_SHARE = 40  # sheets per xelatex run of stamps at least, before the stamps are shared among runs
+
+
+def stamp_sheets(stamps: list[Stamp], runs: int = 1) -> dict[str, int | ConversionError]:
+    """Lay each sheet's title-block stamp onto its body; per mark its page count, or the error.
+
+    A new revision re-stamps every sheet: up to `runs` xelatex runs at once (one per CPU the
+    run may use), each with an equal share of the pages."""
+    runs = max(1, min(runs, len(stamps) // STAMP_SHARE))
+    if runs == 1:
+        return _one_by_one(stamps, _stamp_batch, lambda s: s.mark, "title block")
+    from concurrent.futures import ThreadPoolExecutor
+
+    shares: list[list[Stamp]] = [[] for _ in range(runs)]
+    for stamp in sorted(stamps, key=lambda s: -s.pages):  # the most pages to the share with fewest
+        min(shares, key=lambda share: sum(s.pages for s in share)).append(stamp)
+    out: dict[str, int | ConversionError] = {}
+    with ThreadPoolExecutor(max_workers=runs) as pool:  # xelatex and qpdf do the work, outside the GIL
+        for done in pool.map(lambda share: _one_by_one(share, _stamp_batch, lambda s: s.mark, "title block"),
+                             shares):
+            out.update(done)
+    return out
 
 
 @lru_cache(maxsize=1)
-def _stamp_template():
+def _environment():
+    """The stamp layouts' Jinja environment: ((( ))) values, as in the nbconvert sheet template."""
     import jinja2
 
-    env = jinja2.Environment(
+    return jinja2.Environment(
         loader=jinja2.FileSystemLoader(str(templates_dir() / "latex" / "sheet")),
         block_start_string="((*", block_end_string="*))", variable_start_string="(((",
         variable_end_string=")))", comment_start_string="((=", comment_end_string="=))",
         autoescape=False, undefined=jinja2.StrictUndefined, keep_trailing_newline=True)
-    return env.get_template("stamp.tex.j2")
+
+
+def _stamp_template():
+    return _environment().get_template("stamp.tex.j2")
+
+
+def _stamp_fields():
+    return _environment().get_template("stampfields.tex.j2")
+
+
+def _lay_stamp(body: Path, layer_pages, target: Path) -> None:
+    """Lay stamp pages (one per body page, in order) onto the body PDF; save as `target`."""
+    import pikepdf
+
+    with pikepdf.open(body) as sheet:
+        for page, stamp in zip(sheet.pages, layer_pages, strict=True):
+            page.add_overlay(stamp)
+        _save(sheet, target)
 
 
 def _stamp_batch(stamps: list[Stamp]) -> dict[str, int]:
@@ -142,10 +191,7 @@ def _stamp_batch(stamps: list[Stamp]) -> dict[str, int]:
         with pikepdf.open(done.pdf) as layer:
             start = 0
             for s in stamps:
-                with pikepdf.open(s.body) as sheet:
-                    for k, page in enumerate(sheet.pages):
-                        page.add_overlay(layer.pages[start + k])
-                    _save(sheet, s.pdf)
+                _lay_stamp(s.body, layer.pages[start:start + s.pages], s.pdf)
                 start += s.pages
     return {s.mark: s.pages for s in stamps}
 

@@ -20,6 +20,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field, replace
 from functools import lru_cache
 
+from .analysis import SLS_CLAUSE, udl_reaction
 from .beammodel import Geometry
 from .beampattern import BeamModel
 from .calc import calc
@@ -27,8 +28,6 @@ from .errors import DesignError
 from .loads import LOAD_TYPES
 from .membertypes import member_type
 
-#: Deflection under specified loads (CSA O86-14 5.4.2; memory, unverified clause number).
-SLS_CLAUSE = "O86-14 5.4.2"
 MODEL_CLAUSE = "beam model (PyCBA)"
 
 
@@ -186,7 +185,8 @@ def reactions_by_type(member) -> dict[int, dict[str, float]]:
     downward reaction over the arrangements (for a simple span, the full load).
     """
     if not is_model(member):  # simple span under uniform load: R = wL/2 at each end
-        half = {t: member.values[f"w_{t}"] * member.length / 2 for t in LOAD_TYPES if member.values[f"w_{t}"]}
+        half = {t: udl_reaction(w_f=member.values[f"w_{t}"], L=member.length)["Q_f"] for t in LOAD_TYPES
+                if member.values[f"w_{t}"]}
         return {1: dict(half), 2: dict(half)}
     model = model_of(member)
     out: dict[int, dict[str, float]] = {}

@@ -17,24 +17,11 @@ ValueError with the words a schedule error shows.
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass
 
+from .member import Carry
 from .units import UnitParseError, convert, parse_quantity
 
 _CARRY = re.compile(r"^(?P<mark>[A-Za-z0-9_-]+(?:\.[A-Za-z0-9_-]+)*?)(?:\.R(?P<n>\d+))?(?:@(?P<at>.+))?$")
-
-
-@dataclass(frozen=True)
-class Carry:
-    """One entry of `carries`: which reaction of which member, and where it lands (mm, or None)."""
-
-    mark: str
-    reaction: int | None  # 1-based support number; None = the largest reaction
-    at: float | None
-
-    @property
-    def label(self) -> str:
-        return f"{self.mark}.R{self.reaction}" if self.reaction else f"{self.mark} (largest reaction)"
 
 
 def _quantity(text: str, unit: str, compute: str, what: str) -> float:
@@ -111,32 +98,6 @@ def parse_carries(text: str) -> tuple[Carry, ...]:
     return tuple(out)
 
 
-# ------------------------------------------------------------------ params (JSON primitives, entry units)
-def points_params(points) -> list[dict]:
-    return [{"value": round(p / 1000, 9), "at": round(x / 1000, 9)} for p, x in points]
-
-
-def points_from_params(raw) -> tuple[tuple[float, float], ...]:
-    return tuple((float(e["value"]) * 1000, float(e["at"]) * 1000) for e in raw)
-
-
-def parts_params(parts) -> list[dict]:
-    return [{"value": round(w, 9), "from": round(a / 1000, 9), "to": round(b / 1000, 9)} for w, a, b in parts]
-
-
-def parts_from_params(raw) -> tuple[tuple[float, float, float], ...]:
-    return tuple((float(e["value"]), float(e["from"]) * 1000, float(e["to"]) * 1000) for e in raw)
-
-
-def carries_params(carries) -> list[dict]:
-    return [{"mark": c.mark, "reaction": c.reaction, "at": None if c.at is None else round(c.at / 1000, 9)}
-            for c in carries]
-
-
-def carries_from_params(raw) -> tuple[Carry, ...]:
-    return tuple(Carry(e["mark"], e["reaction"], None if e["at"] is None else float(e["at"]) * 1000) for e in raw)
-
-
 ALLOWED = {
     "spans": "span lengths in m separated by '+', each greater than 0, e.g. 4.2+4.2",
     "points": "value@position entries separated by ';', kN at m from the member's left end, e.g. 12@2.4; 8 kN@4.8 m",
@@ -151,7 +112,7 @@ def row_errors(file: str, row: int, v: dict, given: set[str]) -> list:
     """Cross-cell rules of the beam columns; sets v["length"] from `spans` when only spans are given."""
     from .errors import ScheduleError
     from .membertypes import member_type
-    from .schedule import LOAD_TYPES
+    from .columns import LOAD_TYPES
 
     def err(column, value, problem, allowed=""):
         return ScheduleError(file, row, column, value, problem, allowed)

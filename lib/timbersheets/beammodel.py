@@ -18,9 +18,12 @@ Compute units: N, mm, N/mm, N·mm; model deflections in N·mm³ (divide by E I).
 
 from __future__ import annotations
 
+import hashlib
+import os
 from dataclasses import dataclass
 from functools import lru_cache
 from importlib.metadata import version
+from pathlib import Path
 
 import numpy as np
 
@@ -121,8 +124,60 @@ def stations(geometry: Geometry, loads: tuple[Load, ...], extra: tuple[float, ..
     return {i: np.array(sorted(v)) for i, v in points.items()}
 
 
+STORE_ENV = "TIMBERSHEETS_BEAM_STORE"  # a folder of stored analyses, set by the run for itself and its kernels
+
+
+def _stored_path(geometry: Geometry, loads: tuple[Load, ...], extra: tuple[float, ...]):
+    """Where the analysis of exactly these inputs is kept, or None when no store is set.
+
+    PyCBA and the SciPy and matplotlib it imports take about 2 s to import, once in every
+    process (the run and each worker's kernel). The analysis is deterministic, so a run keeps
+    each one under the hash of its inputs, the package version and NPTS; a rerun, and the
+    kernels that render the sheets, read it instead of importing PyCBA."""
+    folder = os.environ.get(STORE_ENV)
+    if not folder:
+        return None
+    key = repr((geometry, loads, extra, NPTS, _version())).encode()
+    return Path(folder) / f"{hashlib.sha256(key).hexdigest()}.npz"
+
+
+@lru_cache(maxsize=1)
+def _version() -> str:
+    return version("pycba")
+
+
+def _read_stored(path) -> Response | None:
+    try:
+        with np.load(path) as kept:
+            return Response(*(np.array(kept[name], float) for name in ("x", "M", "V", "D", "R")))
+    except (OSError, KeyError, ValueError):
+        return None  # not there, or unreadable: analysed again
+
+
+def _keep(path, response: Response) -> None:
+    """Store an analysis: a temporary name, then a rename (a lost entry is only analysed again)."""
+    try:
+        path.parent.mkdir(parents=True, exist_ok=True)
+        staged = path.with_name(f".{path.stem}.{os.getpid()}.part.npz")
+        np.savez(staged, x=response.x, M=response.M, V=response.V, D=response.D, R=response.R)
+        os.replace(staged, path)
+    except OSError:
+        pass  # a store that cannot be written costs only the time of analysing again
+
+
 def analyse(geometry: Geometry, loads: tuple[Load, ...], extra: tuple[float, ...] = ()) -> Response:
-    """PyCBA analysis of `loads` on the beam with EI = 1."""
+    """PyCBA analysis of `loads` on the beam with EI = 1 (read from the run's store when kept there)."""
+    path = _stored_path(geometry, loads, extra)
+    kept = _read_stored(path) if path is not None else None
+    if kept is not None:
+        return kept
+    response = _analyse(geometry, loads, extra)
+    if path is not None:
+        _keep(path, response)
+    return response
+
+
+def _analyse(geometry: Geometry, loads: tuple[Load, ...], extra: tuple[float, ...]) -> Response:
     import pycba
 
     lengths = [b - a for _, a, b in geometry.regions]

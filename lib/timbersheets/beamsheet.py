@@ -7,14 +7,15 @@ analysis functions the design used.
 
 from __future__ import annotations
 
-from .analysis import loading_mode, member_forces, service_cases
+from .analysis import (combination_label, loading_mode, member_forces, service_cases, sls_combinations, sls_deflection,
+                       span_diagram, udl_reaction)
 from .beamdesign import is_model, reactions_by_type
 from .calc import format_metres, format_number, format_value
 from .checks.bending import bottom_edge_words
 from .errors import TimbersheetsError
 from .ownweight import gives_line_loads
 from .membertypes import member_type
-from .sheets import Block, heading, para, q, table
+from .blocks import Block, heading, math_block, para, q, table
 from .tex import Cell, Table, escape
 from .units import to_display
 
@@ -123,11 +124,12 @@ def forces_block(design) -> Block:
                           "(the table above) and used as given; the reaction at a support is taken as the shear.")
     forces = [member_forces(m, ctx.section.d, case, "line") for case in design.cases]
     out += para(f"Simply supported span $L = {format_value(m.length, 'mm')}$ under the uniform factored load "
-                "$w_f$: $M_f = w_f L^2/8$ at midspan; $V_f = Q_f = w_f L/2$ at the supports; "
-                "$V_{fd} = w_f (L/2 - d)$ at distance $d$ from the end of the span, the shear the check uses "
-                "(on the safe side of measuring $d$ from the face of the support).",
-                "Simply supported span under the uniform factored load w_f: M_f = w_f L²/8, V_f = Q_f = w_f L/2, "
-                "V_fd = w_f (L/2 − d).")
+                "$w_f$: the moment $M_f$ at midspan, the shear $V_f$ and the reaction $Q_f$ at the supports, and "
+                "the shear $V_{fd}$ at distance $d$ from the end of the span, the one the check uses (on the safe "
+                "side of measuring $d$ from the face of the support):",
+                "Simply supported span under the uniform factored load w_f: M_f at midspan, V_f and Q_f at the "
+                "supports, V_fd at d from the end of the span.")
+    out += force_equations(forces[0]) if forces else Block("", "")
     header = ["Combination", Cell.math("w_f"), Cell.math("M_f"), Cell.math("V_f"), Cell.math("V_{fd}"),
               Cell.math("Q_f")]
     units = ["", "kN/m", "kN·m", "kN", "kN", "kN"]
@@ -140,9 +142,19 @@ def forces_block(design) -> Block:
     each = reactions_by_type(ctx.member)[1]
     if each:
         parts = ", ".join(f"{t} {format_number(to_display(v, 'N')[0], 'kN')}" for t, v in each.items())
-        out += para(escape(f"Specified reactions R1 = R2 = w L / 2 by load type: {parts} kN (what a member that "
-                           "carries this one takes)."))
+        out += para(f"Specified reactions $R_1 = R_2$ by load type, from ${udl_reaction.inline('Q_f')}$ with the "
+                    f"specified load $w$ of the type for $w_f$: {escape(parts)} kN (what a member that carries this "
+                    "one takes).",
+                    f"Specified reactions R1 = R2 = w L / 2 by load type: {parts} kN (what a member that carries "
+                    "this one takes).")
     return out
+
+
+def force_equations(forces) -> Block:
+    """The equations member_forces evaluated for every row of the forces table, as symbols (their Calcs)."""
+    shown = [calc_ for name, (calc_, _) in forces.steps.items() if name != "total"]
+    rows = "\n\\\\\n".join(c.formula_lines() for c in shown)
+    return math_block(f"$$\n\\begin{{aligned}}\n{rows}\n\\end{{aligned}}\n$$")
 
 
 def serviceability_block(design, data) -> Block:
@@ -164,10 +176,8 @@ def serviceability_block(design, data) -> Block:
     if not cases:
         return out + para("Deflection is not checked: the member carries no dead, live or snow load, and wind and "
                           "earthquake are not included in the serviceability combinations.")
-    intro = ("Deflection under specified (unfactored) loads, with $E_S = E\\,K_{SE}\\,K_T$ and no $K_D$: live "
-             "$1.0L + 1.0S$ and total $1.0D + 1.0L + 1.0S$, each with only the loads this member carries. "
-             "Live $1.0L$ and total $1.0D + 1.0L$ follow a published worked example (L. A. Fernandez, 2024; "
-             "NBC 2015 basis). Snow is taken at its full specified value, the roof's live load: a conservative "
+    intro = (f"Deflection under specified (unfactored) loads, with ${sls_deflection.inline('E_S')}$ and no $K_D$: "
+             f"{sls_words(data)}. Snow is taken at its full specified value, the roof's live load: a conservative "
              "choice against the NBC 2020 SLS companion factors, recorded as unverified. Wind and earthquake are "
              "not gravity loads on the span and are left out.")
     if mode == "forces":
@@ -181,6 +191,19 @@ def serviceability_block(design, data) -> Block:
     return out + para(intro) + table(Table(["Deflection", "Combination", Cell.math("w_s"), "Limit",
                                                            "Data status"], rows, "llrrl",
                                                           ["", "", "kN/m", "", ""]))
+
+
+def sls_words(data) -> str:
+    """The SLS combinations as the data rows give them, and which of them a published example follows."""
+    by_check = {check.removeprefix("deflection-"): rows for check, rows in sls_combinations(data).items()}
+    every = " and ".join(f"{name} ${combination_label(rows)}$" for name, rows in by_check.items())
+    sourced = " and ".join(f"{name} ${combination_label([r for r in rows if r[1].verified])}$"
+                           for name, rows in by_check.items() if any(d.verified for _, d in rows))
+    words = f"{every}, each with only the loads this member carries"
+    if sourced:  # the sourced rows come from S1 (data README)
+        words += (f". {sourced[0].upper()}{sourced[1:]} follow a published worked example (L. A. Fernandez, 2024; "
+                  "NBC 2015 basis)")
+    return words
 
 
 def diagram(design) -> list[object]:
@@ -201,7 +224,7 @@ def diagram(design) -> list[object]:
         return []
     case = next(c for c in design.cases if c.label == gov.combination)
     w_f = to_display(case.factored["w"], "N/mm")[0]
-    png = shear_moment_png(w_f, m.length / 1000, ctx.section.d / 1000)
+    png = shear_moment_png(span_diagram(case.factored["w"], m.length, ctx.section.d))
     caption = para(f"Shear and moment under the governing combination {escape(case.label)}, "
                    f"$w_f = {format_number(w_f, 'kN/m')}$~kN/m ($V_{{fd}}$ at $d = {format_value(ctx.section.d, 'mm')}$).",
                    f"Shear and moment under {case.label}.")

@@ -94,6 +94,24 @@ class Calc:
         config = dict(global_config._config)
         return latex(source if source is not None else self.source, shown, "", config, precision, False)
 
+    def formula(self, *names: str) -> str:
+        """The equations of `names` (all when none) as symbols only, one display block: the same source
+        the values are computed from, for a sheet that states the equations before tabulating them."""
+        from handcalcs import global_config
+        from handcalcs.handcalcs import latex
+
+        chosen = [s for s in self.statements if not names or s.targets[0].id in names]  # type: ignore[union-attr]
+        source = "\n".join(ast.unparse(s) for s in chosen)
+        return latex(source, {}, "symbolic", dict(global_config._config), 3, False)
+
+    def formula_lines(self, *names: str) -> str:
+        """The rows of :meth:`formula`'s aligned block (``M_{f} &= …``), to join with other Calcs' rows."""
+        return self.formula(*names).split("\\begin{aligned}", 1)[1].split("\\end{aligned}", 1)[0].strip()
+
+    def inline(self, name: str) -> str:
+        """The equation of `name` as symbols, for running text (no $ signs): e.g. ``E_{S} = E \\cdot …``."""
+        return self.formula_lines(name).replace("&=", "=").replace("\\;", "").strip()
+
     def latex_lines(self, values: Mapping[str, float], units: Mapping[str, str] | None = None) -> str:
         """Like :meth:`latex`, one display block per statement."""
         return "\n".join(self.latex(values, units=units, source=ast.unparse(s)) for s in self.statements)

@@ -41,6 +41,14 @@ class Column:
     blank: str = ""  # what a blank cell means, where that is not simply `default`
 
 
+def _largest_system_factor() -> float:
+    """The largest K_H the data tables give for bending or shear (O86 Table 6.4.4, Case 2)."""
+    from .data import default_data
+
+    data = default_data()
+    return max(data.system_factor_limit(action).value for action in ("bending", "shear"))
+
+
 def _columns() -> tuple[Column, ...]:
     """The columns and their physical bounds, in entry units (a value outside is a row error).
 
@@ -68,8 +76,8 @@ def _columns() -> tuple[Column, ...]:
         # K_T reduces strength for incised or fire-retardant-treated wood, never raises it (O86 5.4.3)
         Column("K_T", "number", default=1.0, minimum=0.5, maximum=1.0,
                meaning="treatment factor"),
-        # O86 5.4.4: system factors from 1.0 to 1.4 (Case 2 for bending and shear)
-        Column("K_H", "number", default=1.0, minimum=1.0, maximum=1.4,
+        # O86 5.4.4: system factors from 1.0 to the largest tabled for bending and shear (system_factors.csv)
+        Column("K_H", "number", default=1.0, minimum=1.0, maximum=_largest_system_factor(),
                meaning="system factor (load sharing), sawn lumber only"),
         # common practice: longer than 60 m is no single timber member; shorter than 0.1 m is no member
         Column("length", "quantity", "m", "mm", minimum=0.1, maximum=60,

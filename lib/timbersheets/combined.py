@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from .analysis import loading_mode, member_forces, service_cases
 from .checks import CheckResult, result
+from .checks.bearing import check_support_bearing
 from .checks.bending import check_bending
 from .checks.combined import check_beam_column, check_tension_bending
 from .checks.compression import GLULAM_CLAUSE, SAWN_CLAUSE, compression_resistance
@@ -59,6 +60,12 @@ def deflections(ctx) -> list[CheckResult]:
     return out
 
 
+def support_bearings(ctx, cases: list[LoadCase]) -> list[CheckResult]:
+    """Bearing of a column's end on the timber it bears on, per combination that compresses it."""
+    out = [check_support_bearing(ctx, case, case.factored["P"]) for case in cases if case.factored["P"] > EPS]
+    return [c for c in out if c is not None]
+
+
 def design_combined(ctx, cases: list[LoadCase], kind) -> list[CheckResult]:
     """Checks of a member with axial force (in the sense of the type `kind`) and bending."""
     sense = kind.axial
@@ -93,8 +100,6 @@ def design_combined(ctx, cases: list[LoadCase], kind) -> list[CheckResult]:
             groups["interaction"].append(check(ctx, case, axial, axial_r, forces.M_f, moment_r))
     out = [c for name in (sense, "bending", "shear", "interaction") for c in groups[name]]
     if sense == "compression":
-        from .design import support_bearings
-
         out += support_bearings(ctx, cases)
     if not groups[sense] or not groups["bending"]:
         missing = "axial force (P_D … P_E)" if not groups[sense] else "bending (w_* or M_*)"

@@ -11,25 +11,25 @@ import math
 import traceback
 from collections.abc import Callable
 from dataclasses import dataclass, field
+from typing import Any
 
 from .analysis import loading_mode, member_forces
 from .beamdesign import design_model, geometry_of, is_model, total_loads
 from .checks import CheckResult
-from .checks.bearing import check_bearing, check_support_bearing
+from .checks.bearing import check_bearing
 from .checks.bending import check_bending
 from .checks.compression import check_compression
 from .checks.shear import check_shear
 from .checks.tension import check_tension
-from .combined import deflections, design_combined, refuse_reversal, tension_only
+from .combined import deflections, design_combined, refuse_reversal, support_bearings, tension_only
 from .data import DataSet, Datum, Recorded
 from .errors import DesignError, TimbersheetsError
 from .loads import EFFECTS, LOAD_TYPES, Effects, LoadCase, apply_combinations
 from .materials import Strengths, strengths
 from .ownweight import OwnWeight, gives_line_loads, own_weight, with_own_weight
 from .membertypes import MemberType, member_type, member_types
-from .schedule import Member, RowError
+from .member import Member, RowError
 from .sections import Section, service_category
-from .sizing import Sizing, size
 
 SERVICE_PROPERTIES = ("K_Sb", "K_Sv", "K_Sc", "K_Scp", "K_St", "K_SE")
 EPS = 1e-9
@@ -175,12 +175,6 @@ def _axial(ctx: Context, cases: list[LoadCase], kind: MemberType) -> list[CheckR
     return out
 
 
-def support_bearings(ctx: Context, cases: list[LoadCase]) -> list[CheckResult]:
-    """Bearing of a column's end on the timber it bears on, per combination that compresses it."""
-    out = [check_support_bearing(ctx, case, case.factored["P"]) for case in cases if case.factored["P"] > EPS]
-    return [c for c in out if c is not None]
-
-
 def _bending(ctx: Context, cases: list[LoadCase], kind: MemberType) -> list[CheckResult]:
     """Design function for a bending member on a simple span: strength per ULS
     combination (bending, shear, bearing), then deflection per SLS combination."""
@@ -231,7 +225,7 @@ class MemberDesign:
     errors: list[str] = field(default_factory=list)
     warnings: list[str] = field(default_factory=list)
     data_used: list[Datum] = field(default_factory=list)
-    sizing: Sizing | None = None
+    sizing: Any = None  # sizing.Sizing, the search's outcome when the size was auto (sizing sits above design)
     trace: str = field(default="", repr=False)  # traceback of an internal error, for run.log
 
     @property
@@ -285,8 +279,16 @@ class MemberDesign:
         return ""
 
 
-def design_member(member: Member, data: DataSet) -> MemberDesign:
-    """Design one validated member. Engineering limits become errors, not crashes."""
+#: Chooses the section of a member whose size is auto (sizing.sized_section), recording the search in the outcome.
+Sizer = Callable[[Member, DataSet, MemberType, "MemberDesign"], Section]
+
+
+def design_member(member: Member, data: DataSet, sizer: Sizer | None = None) -> MemberDesign:
+    """Design one validated member. Engineering limits become errors, not crashes.
+
+    A member whose size is auto needs `sizer`: the run designs through
+    :func:`timbersheets.sizing.design_sized`, which passes it (the sizing calls the design, never the
+    other way)."""
     outcome = MemberDesign(member.mark, member.row, member, warnings=list(member.warnings))
     kind = member_type(member.type)
     if kind is None:
@@ -296,7 +298,10 @@ def design_member(member: Member, data: DataSet) -> MemberDesign:
     try:
         section = None
         if member.size == "auto":
-            section = _sized_section(member, data, kind, outcome)
+            if sizer is None:
+                raise DesignError(member.mark, "has size = auto, and this call sizes nothing", "",
+                                  "Design it through timbersheets.sizing.design_sized")
+            section = sizer(member, data, kind, outcome)
         ctx = build_context(member, data, section)
         cases = load_cases(ctx.member, data, ctx.used)
         outcome.context, outcome.cases = ctx, cases
@@ -332,31 +337,6 @@ def refuse_non_finite(member: Member, checks: list[CheckResult], used: list[Datu
                           f"({cause})", fix="Check the inputs and the data values named")
 
 
-def _sized_section(member: Member, data: DataSet, kind: MemberType, outcome: MemberDesign) -> Section:
-    """The section the search chose; when none passes, the best one found (the member then fails)."""
-    outcome.sizing = size(member, data, design_function(kind))
-    chosen = outcome.sizing.chosen
-    if chosen is not None:
-        return chosen.section
-    best = outcome.sizing.best
-    if best is None or best.utilization == float("inf"):
-        raise DesignError(member.mark, f"no standard section can carry the loads ({outcome.sizing.searched} "
-                          "searched)", "", "Change the grade, the loads or the constraints")
-    outcome.warnings.append(f"no standard section in the catalogue passes ({outcome.sizing.searched} searched"
-                            f"{'; ' + outcome.sizing.constraints if outcome.sizing.constraints else ''}); the best, "
-                            f"{best.label}, reaches utilization {best.utilization:.3f} ({best.governing})")
-    return best.section
-
-
 def rejected(entry: RowError) -> MemberDesign:
     """The outcome of a row that failed validation."""
     return MemberDesign(entry.mark, entry.row, None, errors=[str(e) for e in entry.errors], warnings=entry.warnings)
-
-
-def design_all(entries: list[Member | RowError], data: DataSet, file: str = "schedule.csv") -> list[MemberDesign]:
-    """Every entry designed, each member after the members it carries (:mod:`loadpath`); `file` is the
-    schedule's name, for the load path's row errors."""
-    from .loadpath import design_in_order
-
-    return design_in_order(entries, data, file)
-

@@ -7,26 +7,30 @@ figure is drawn without pyplot, so nothing global (backend, state) changes.
 from __future__ import annotations
 
 import io
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from .analysis import SpanDiagram
 
 WIDTH_IN, HEIGHT_IN, DPI = 5.2, 1.75, 200  # 132 mm wide: 0.8 of the sheet's 165 mm line
 STYLE = {"font.family": "serif", "font.serif": ["Latin Modern Roman", "DejaVu Serif"], "font.size": 7.5,
          "mathtext.fontset": "cm", "axes.linewidth": 0.6, "xtick.major.width": 0.6, "ytick.major.width": 0.6}
 
 
-def shear_moment_png(w_f: float, span: float, d: float) -> bytes:
-    """PNG of V(x) and M(x) for a simple span under uniform load.
+def shear_moment_png(span: SpanDiagram) -> bytes:
+    """PNG of V(x) and M(x) of a simple span under uniform load, drawn in kN, kN·m and m.
 
-    `w_f` in kN/m, `span` and `d` in m. Marks V_f at the supports, V_fd at d,
-    and M_f at midspan.
+    `span` holds the values :func:`timbersheets.analysis.span_diagram` computed with the checks' Calcs:
+    no formula is repeated here. Marks V_f at the supports, V_fd at d, and M_f at midspan.
     """
     from matplotlib import rc_context
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
 
-    n = 41
-    xs = [span * i / (n - 1) for i in range(n)]
-    shear = [w_f * (span / 2 - x) for x in xs]
-    moment = [w_f * x * (span - x) / 2 for x in xs]
+    xs = [x / 1000 for x in span.x]
+    shear = [v / 1000 for v in span.V]
+    moment = [m_ / 1e6 for m_ in span.M]
+    length, d = span.x[-1] / 1000, span.d / 1000
     with rc_context(STYLE):
         fig = Figure(figsize=(WIDTH_IN, HEIGHT_IN), dpi=DPI)
         FigureCanvasAgg(fig)
@@ -35,25 +39,25 @@ def shear_moment_png(w_f: float, span: float, d: float) -> bytes:
             ax.fill_between(xs, ys, 0, color="0.85", linewidth=0)
             ax.plot(xs, ys, color="black", linewidth=0.9)
             ax.axhline(0, color="black", linewidth=0.6)
-            ax.set_xlim(0, span)
+            ax.set_xlim(0, length)
             ax.set_xlabel("$x$ (m)", labelpad=1)
             ax.set_title(f"{name} ({unit})", fontsize=7.5, pad=3)
             ax.spines[["top", "right"]].set_visible(False)
             ax.tick_params(length=2, pad=1.5)
-        v0, vd = shear[0], w_f * max(span / 2 - d, 0.0)
+        v0, vd = span.V_f / 1000, span.V_fd / 1000
         up = 1 if v0 >= 0 else -1  # uplift draws the diagram the other way up
         reach = abs(v0) or 1.0  # no load: an empty diagram, not a degenerate axis
         ax_v.set_ylim(-1.35 * reach, 1.35 * reach)
         ax_v.plot([d], [vd], marker="o", markersize=2.5, color="black")
         ax_v.annotate(f"$V_f = {v0:.1f}$", (0, v0), xytext=(5, 2 * up), textcoords="offset points",
                       va="bottom" if up > 0 else "top")
-        ax_v.annotate(f"$V_{{fd}} = {vd:.1f}$", (d, vd), xytext=(0.08 * span, -0.5 * v0), textcoords="data",
+        ax_v.annotate(f"$V_{{fd}} = {vd:.1f}$", (d, vd), xytext=(0.08 * length, -0.5 * v0), textcoords="data",
                       va="center", arrowprops={"arrowstyle": "-", "linewidth": 0.5, "color": "black",
                                                "shrinkA": 1, "shrinkB": 2.5})
-        ax_v.annotate(f"${-v0:.1f}$", (span, -v0), xytext=(-6, 0), textcoords="offset points", ha="right",
+        ax_v.annotate(f"${shear[-1]:.1f}$", (length, shear[-1]), xytext=(-6, 0), textcoords="offset points", ha="right",
                       va="center")
-        peak = w_f * span**2 / 8
-        ax_m.annotate(f"$M_f = {peak:.1f}$", (span / 2, peak), xytext=(0, -10 if peak >= 0 else 10),
+        peak = span.M_f / 1e6
+        ax_m.annotate(f"$M_f = {peak:.1f}$", (length / 2, peak), xytext=(0, -10 if peak >= 0 else 10),
                       textcoords="offset points", ha="center", va="top" if peak >= 0 else "bottom")
         lo, hi = sorted((0.0, peak)) if peak else (-1.0, 1.0)
         ax_m.set_ylim(lo * 1.08, hi * 1.08)

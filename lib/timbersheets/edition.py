@@ -12,6 +12,8 @@ import csv
 from importlib import resources
 
 EDITION = "O86-14"
+#: The code editions a job may name in project.toml [codes]; the first is the default.
+SUPPORTED_CODES = {"nbc": ("2020",), "o86": ("2019",)}
 
 
 def revisions() -> list[dict[str, str]]:

@@ -33,9 +33,9 @@ import re
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 
-from .data import TABLES, VERIFIED_STATUSES, DataFile, Datum, TableSpec, _table
+from .datum import TABLES, VERIFIED_STATUSES, DataFile, Datum, TableSpec, _table
+from .edition import SUPPORTED_CODES
 from .errors import DataError, DataRowError, JobError
-from .project import SUPPORTED_CODES
 
 FIRM_STATUSES = ("to-verify", "verified", "sourced", "memory-unverified")
 HEADER = ("data", "key", "column", "value", "unit", "edition", "table", "source", "status", "verified_by",

@@ -11,7 +11,8 @@ from functools import cached_property
 from pathlib import Path
 
 from .data import DataSet
-from .design import MemberDesign, design_all
+from .design import MemberDesign
+from .loadpath import design_all
 from .project import Project, load_project
 from .schedule import Member, Schedule, load_schedule
 

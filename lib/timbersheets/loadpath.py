@@ -13,36 +13,11 @@ and the review's stale test) changes when they change.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field, replace
+from dataclasses import replace
 
 from .errors import ScheduleError
 from .loads import LOAD_TYPES
-
-
-@dataclass(frozen=True)
-class CarriedLoad:
-    """A reaction of `source` at its support `reaction`, landing at `at` (mm from the left end; None on a
-    column), by load type in N."""
-
-    source: str
-    reaction: int
-    at: float | None
-    loads: dict[str, float] = field(default_factory=dict)
-    largest: bool = False  # the entry named the member without .Rn: its largest reaction was taken
-
-    def params(self) -> dict:
-        return {"from": self.source, "reaction": self.reaction, "largest": self.largest,
-                "at": None if self.at is None else round(self.at / 1000, 9),
-                "loads": {t: round(self.loads.get(t, 0.0) / 1000, 6) for t in LOAD_TYPES}}
-
-    @classmethod
-    def from_params(cls, raw: dict) -> "CarriedLoad":
-        return cls(raw["from"], int(raw["reaction"]), None if raw["at"] is None else float(raw["at"]) * 1000,
-                   {t: float(v) * 1000 for t, v in raw["loads"].items()}, bool(raw["largest"]))
-
-    @property
-    def label(self) -> str:
-        return f"{self.source}.R{self.reaction}"
+from .member import CarriedLoad, Member, RowError  # noqa: F401 (CarriedLoad read from here too)
 
 
 def order(members: list, file: str) -> tuple[list, dict[str, list[ScheduleError]]]:
@@ -128,9 +103,9 @@ def source_reactions(design, beam_reactions) -> dict[int, dict[str, float]]:
 
 def design_in_order(entries: list, data, file: str = "schedule.csv") -> list:
     """Design every member after what it carries; the outcomes in schedule order."""
-    from .design import MemberDesign, design_member, rejected
+    from .design import MemberDesign, rejected
     from .errors import TimbersheetsError
-    from .schedule import Member, RowError
+    from .sizing import design_sized
 
     members = [e for e in entries if isinstance(e, Member)]
     ordered, errors = order(members, file)
@@ -150,6 +125,11 @@ def design_in_order(entries: list, data, file: str = "schedule.csv") -> list:
         except TimbersheetsError as exc:
             designs[m.mark] = MemberDesign(m.mark, m.row, None, errors=[str(exc)], warnings=list(m.warnings))
             continue
-        designs[m.mark] = design_member(resolved, data)
+        designs[m.mark] = design_sized(resolved, data)
     return [designs[e.mark] if isinstance(e, Member) else rejected(e) for e in entries]
 
+
+def design_all(entries: list, data, file: str = "schedule.csv") -> list:
+    """Every entry designed, each member after the members it carries; `file` is the schedule's name, for
+    the load path's row errors."""
+    return design_in_order(entries, data, file)

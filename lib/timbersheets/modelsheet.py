@@ -6,11 +6,12 @@ Every number comes from the same model the design used (:func:`beamdesign.model_
 
 from __future__ import annotations
 
-from .beamdesign import geometry_of, loads_of, model_of, reactions_by_type
+from .analysis import combination_label, sls_combinations
+from .beamdesign import geometry_of, loads_of, model_deflection, model_of, reactions_by_type
 from .beammodel import PATTERNED, library
 from .beampattern import Combined
 from .calc import format_metres, format_number
-from .sheets import Block, heading, para, q, table
+from .blocks import Block, heading, para, q, table
 from .tex import Cell, Table, escape
 
 KIND_WORDS = {"M+": "largest positive moment", "M-": "most negative moment", "V": "largest shear beyond d",
@@ -157,7 +158,9 @@ def serviceability_block(design, data) -> Block:
     words = ("Deflection of each span and of each overhang tip from the same model, under specified loads with "
              "live and snow placed to make each deflection largest (either sense). Limit: the span over n; at an "
              "overhang tip, twice the overhang over n.")
-    stiffness = r" $E_S = E\,K_{SE}\,K_T$, no $K_D$. "
-    combos = "Live 1.0L (+ 1.0S), total 1.0D + 1.0L + 1.0S, each with only the loads this member carries."
+    stiffness = f" ${model_deflection.inline('E_S')}$, no $K_D$. "
+    combos = ", ".join(f"{check.removeprefix('deflection-')} {combination_label(rows)}"
+                       for check, rows in sls_combinations(data).items())
+    combos = f"{combos[0].upper()}{combos[1:]}, each with only the loads this member carries."
     return out + para(escape(words) + stiffness + escape(combos)) + table(Table(["Deflection", "Combination", "Limit", "Data status"], rows,
                                                    "llrl"))

@@ -16,6 +16,7 @@ import os
 import re
 from functools import lru_cache
 import tempfile
+from concurrent.futures import ThreadPoolExecutor
 from pathlib import Path
 from typing import Any
 
@@ -225,8 +226,12 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
         copy_atomic(cached, target)
         (outdir / FRONT_HINT).write_text(str(front_pages))
         return target
-    with tempfile.TemporaryDirectory(prefix="ts-pkg-") as tmp:
+    with tempfile.TemporaryDirectory(prefix="ts-pkg-") as tmp, ThreadPoolExecutor(max_workers=1) as ahead:
         work = Path(tmp)
+        sheet_pages = sum(r["pages"] for r in rows)
+        # the page stamps for the guessed front-matter length are typeset beside the front matter
+        guessed = front_pages
+        stamps = ahead.submit(_stamps, project, guessed + 1, guessed + sheet_pages, work, cache) if sheet_pages else None
         for attempt in range(4):  # the front matter's length sets the page numbers it prints
             if attempt:
                 tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
@@ -244,7 +249,10 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
             for src in sources:
                 package.pages.extend(src.pages)
             if sheets:
-                overlay = pikepdf.open(_stamps(project, front_pages + 1, total, work, cache))
+                made = stamps.result() if stamps is not None else None
+                if made is None or front_pages != guessed:
+                    made = _stamps(project, front_pages + 1, total, work, cache)
+                overlay = pikepdf.open(made)
                 sources.append(overlay)
                 for k, page in enumerate(package.pages[front_pages:]):
                     page.add_overlay(overlay.pages[k])

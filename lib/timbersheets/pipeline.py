@@ -94,7 +94,15 @@ def _clear_namespace():
         gc.collect = collect
 _clear_namespace()
 """
+# What every sheet imports, run once when a kernel starts, before any member needs it.
+WARM_UP = ("import timbersheets.sheets, timbersheets.units, handcalcs.handcalcs, matplotlib.figure, "
+           "matplotlib.backends.backend_agg\ntimbersheets.units.registry()\n")
 ENGINE = "timbersheets"
+
+
+def start_kernel(cwd: Path | None = None) -> None:
+    """Start this process's kernel in the background (see `_Kernel.start`); `execute` then uses it."""
+    _Kernel.start("python3", str(cwd or os.getcwd()))
 
 
 class _Kernel:
@@ -108,39 +116,96 @@ class _Kernel:
     km = None
     kc = None
     cwd: str | None = None
+    warming: str | None = None  # msg_id of the warm-up imports, until the kernel is first used
+    starting = None  # the thread starting the kernel, until `get` joins it
+    failed: BaseException | None = None  # what stopped that thread, raised by `get`
+
+    @classmethod
+    def start(cls, kernel_name: str, cwd: str) -> None:
+        """Start the kernel in a thread and queue the sheets' imports in it, without waiting.
+
+        Importing jupyter_client, finding the kernel and launching it take about a second of
+        this process, and the kernel then boots and imports (about 2 s) in its own: all of it
+        while this process goes on designing the members. The first `get` waits for what is left."""
+        import threading
+
+        cls._join()
+        if cls.km is not None and (cls.cwd != cwd or not cls.km.is_alive()):
+            cls.shutdown()
+        if cls.km is not None:
+            return
+        cls.cwd = cwd
+        cls.starting = threading.Thread(target=cls._launch, args=(kernel_name, cwd), daemon=True)
+        cls.starting.start()
+
+    @classmethod
+    def _launch(cls, kernel_name: str, cwd: str) -> None:
+        try:
+            from jupyter_client import KernelManager
+
+            km = KernelManager(kernel_name=kernel_name)
+            km.start_kernel(cwd=cwd, extra_arguments=KERNEL_ARGS)
+            cls.km = km
+            cls.kc = km.client()
+            cls.kc.start_channels()
+            cls.warming = cls.kc.execute(WARM_UP, silent=True, store_history=False)
+            import atexit
+
+            atexit.register(cls.shutdown, wait=False)
+        except BaseException as exc:  # noqa: BLE001 - reported by the first `get`
+            cls.failed = exc
+
+    @classmethod
+    def _join(cls) -> None:
+        if cls.starting is not None:
+            cls.starting.join()
+            cls.starting = None
+        if cls.failed is not None:
+            failed, cls.failed = cls.failed, None
+            cls.shutdown()
+            raise failed
 
     @classmethod
     def get(cls, kernel_name: str, cwd: str):
-        from jupyter_client import KernelManager
-
+        """The started kernel and its client, ready to run a member with nothing left from before."""
+        cls._join()
         if cls.km is not None and (cls.cwd != cwd or not cls.km.is_alive()):
             cls.shutdown()
         if cls.km is None:
-            cls.km = KernelManager(kernel_name=kernel_name)
-            cls.km.start_kernel(cwd=cwd, extra_arguments=KERNEL_ARGS)
-            cls.kc = cls.km.client()
-            cls.kc.start_channels()
+            cls.start(kernel_name, cwd)
+            cls._join()
+        if cls.warming is not None:
+            # the warm-up's reply says the kernel is up and has imported; then the usual check that
+            # its output channel is connected (wait_for_ready would swallow the reply if called first)
+            while cls.kc.get_shell_msg(timeout=60)["parent_header"].get("msg_id") != cls.warming:
+                pass
+            cls.warming = None
             cls.kc.wait_for_ready(timeout=60)
-            cls.cwd = cwd
-            import atexit
-
-            atexit.register(cls.shutdown)
-        else:
-            reply = cls.kc.execute_interactive(CLEAR_NAMESPACE, timeout=60, store_history=False,
-                                               output_hook=lambda msg: None)
-            if reply["content"].get("status") != "ok":
-                cls.shutdown()
-                return cls.get(kernel_name, cwd)
+        reply = cls.kc.execute_interactive(CLEAR_NAMESPACE, timeout=60, store_history=False,
+                                           output_hook=lambda msg: None)
+        if reply["content"].get("status") != "ok":
+            cls.shutdown()
+            return cls.get(kernel_name, cwd)
         return cls.km, cls.kc
 
     @classmethod
-    def shutdown(cls) -> None:
+    def shutdown(cls, wait: bool = True) -> None:
+        """Stop the kernel. At exit (`wait` False) it is killed without waiting for it to go."""
+        if cls.starting is not None:
+            cls.starting.join()
+            cls.starting, cls.failed = None, None
+        cls.warming = None
         if cls.kc is not None:
             cls.kc.stop_channels()
             cls.kc = None
         if cls.km is not None:
             try:
-                cls.km.shutdown_kernel(now=True)
+                process = getattr(cls.km.provisioner, "process", None)
+                if not wait and process is not None:
+                    process.kill()
+                    cls.km.cleanup_resources()
+                else:
+                    cls.km.shutdown_kernel(now=True)
             except Exception:  # noqa: BLE001 - the kernel may already be gone
                 pass
             cls.km = None

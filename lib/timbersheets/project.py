@@ -7,11 +7,11 @@ import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from .edition import SUPPORTED_CODES  # noqa: F401 (read from here too)
 from .errors import JobError
 from .labels import label_problem
 
 PROJECT_FIELDS = ("title", "number", "client", "location", "engineer", "designer", "checker", "revision", "date")
-SUPPORTED_CODES = {"nbc": ("2020",), "o86": ("2019",)}
 #: Where a job's outputs go (runner.job_dir), as the README and `run --help` say it.
 OUTPUT_RULE = ("outputs/<job>/ beside the job folder, or beside calcsheets/ when the job folder is in one "
                "(as in this repository)")

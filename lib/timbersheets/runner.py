@@ -16,6 +16,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from . import __version__
+from .beammodel import STORE_ENV as BEAM_STORE_ENV
 from .constants import SHORT_CAUTION
 from .data import DataSet
 from .design import MemberDesign
@@ -24,7 +25,7 @@ from .membertypes import member_types
 from .fileio import copy_atomic, remove_stale_parts, write_atomic
 from .lifetime import pid_alive
 from .keep import Carried, carry_package, carry_sheets, package_key, write_package_key
-from .pipeline import templates_dir
+from .pipeline import start_kernel, templates_dir
 from .job import load_job
 from .project import Project
 from .fileio import write_csv
@@ -229,12 +230,16 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     """
     opts = opts or RunOptions(**kw)
     started = time.monotonic()
+    if opts.sheets:
+        start_kernel()  # it boots and imports in its own process while the members are designed
     job = load_job(folder)
     project, schedule, data = job.project, job.schedule, job.data
     schedule.warnings += load_review_file(project.folder).problems
     check_only(project, schedule.entries, opts.only)
-    designs = job.designs
     jobdir = job_dir(project, opts.out)
+    # beam-model analyses are kept in the job's cache, for this run, its kernels and the next run
+    os.environ[BEAM_STORE_ENV] = str(jobdir / ".cache" / "beam")
+    designs = job.designs
     prev_label = previous_revision(jobdir, project.revision)
     previous = load_results(jobdir / f"rev-{prev_label}") if prev_label else None
     extra = member_extras(project, designs, previous)

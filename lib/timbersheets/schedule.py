@@ -9,21 +9,20 @@ allowed. A bad row is kept as an error entry; the other rows go on.
 from __future__ import annotations
 
 import difflib
-import hashlib
-import json
 import math
 import re
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
 from . import beamloads
 from .columns import COLUMNS, LOAD_NAMES, LOAD_TYPES, REQUIRED, Column  # noqa: F401 (read from here too)
 from .csvtext import cell_problem, clean, physical_lines, split_records
-from .errors import JobError, ParameterError, ScheduleError
+from .errors import JobError, ScheduleError
 from .labels import label_problem
 from .loads import KD_OVERRIDE_RANGE
 from .materials import GLULAM_SPECIES, SAWN_GRADES, SAWN_SPECIES, canonical, canonical_grade, sawn_table_grade
+from .member import Member, RowError  # the schedule fills them (also read from here)
 from .membertypes import member_type, member_types
 from .rowrules import bearing_errors, lateral_support_errors
 from .sections import Section, parse_size, sawn_category
@@ -32,115 +31,6 @@ from .units import UnitParseError, convert, example, parse_quantity
 EXTRA = "\x00extra"  # key marking a row with cells beyond the header (their column numbers)
 BAD = "\x00bad:"  # key prefix marking a cell the file holds no usable value for (the problem)
 UNREAD = "\x00unread"  # key marking a row that could not be read whole (the problem)
-
-
-#: Set by the load path (reactions of the members this one carries), not by the schedule.
-DERIVED = ("carried",)
-
-
-_PARAMS = {
-    "spans": (lambda v: None if v is None else [round(x / 1000, 9) for x in v],
-              lambda raw: None if raw is None else tuple(float(x) * 1000 for x in raw)),
-    "points": (beamloads.points_params, beamloads.points_from_params),
-    "parts": (beamloads.parts_params, beamloads.parts_from_params),
-    "carries": (beamloads.carries_params, beamloads.carries_from_params),
-}
-
-
-@dataclass
-class Member:
-    """A validated schedule row. Quantities are floats in compute units (N, mm)."""
-
-    mark: str
-    row: int
-    values: dict[str, Any]
-    given: frozenset[str]  # columns the row gave (not defaulted)
-    warnings: list[str] = field(default_factory=list)
-    entered: dict[str, str] = field(default_factory=dict)  # quantity cells written in another unit, as written
-
-    def __getattr__(self, name: str) -> Any:
-        try:
-            return self.__dict__["values"][name]
-        except KeyError:
-            raise AttributeError(name) from None
-
-    @property
-    def section(self) -> Section:
-        if self.values["size"] == "auto":
-            raise ValueError(f"{self.mark}: size 'auto' has no section until it is sized")
-        b, d = self.values["size"]
-        return Section(b, d, self.values["plies"])
-
-    def params(self) -> dict[str, Any]:
-        """The inputs as JSON primitives, quantities as {"value", "unit"} in entry units.
-
-        This is what crosses into a notebook, and what the inputs hash covers.
-        """
-        out: dict[str, Any] = {"mark": self.mark, "row": self.row}
-        for name, value in self.values.items():
-            if name in DERIVED:
-                continue
-            col = COLUMNS[name]
-            if col.kind == "quantity" and value is not None:
-                out[name] = {"value": round(convert(value, col.compute, col.unit), 9), "unit": col.unit}
-            elif col.kind == "size":
-                out[name] = value if value == "auto" else f"{value[0]:g}x{value[1]:g}"
-            elif col.kind in _PARAMS:
-                out[name] = _PARAMS[col.kind][0](value)
-            else:
-                out[name] = value
-        out["given"] = sorted(self.given)
-        out["carried"] = [c.params() for c in self.values.get("carried", ())]
-        if self.entered:
-            out["entered"] = dict(self.entered)
-        return out
-
-    @classmethod
-    def from_params(cls, params: dict[str, Any]) -> "Member":
-        """Rebuild a member from :meth:`params` (inside a notebook).
-
-        Refuses unknown or missing keys: papermill itself only warns about them,
-        and a typo in a load name would otherwise silently use a default.
-        """
-        expected = set(COLUMNS) | {"row", "given", *DERIVED}
-        unknown, missing = set(params) - expected - {"entered"}, expected - set(params)
-        if unknown or missing:
-            raise ParameterError(sorted(unknown), sorted(missing))
-        values: dict[str, Any] = {}
-        for name, col in COLUMNS.items():
-            if name == "mark":
-                continue
-            raw = params[name]
-            if col.kind == "quantity" and raw is not None:
-                values[name] = convert(float(raw["value"]), raw["unit"], col.compute)
-            elif col.kind == "size":
-                values[name] = raw if raw == "auto" else parse_size(raw)
-            elif col.kind in _PARAMS:
-                values[name] = _PARAMS[col.kind][1](raw)
-            else:
-                values[name] = raw
-        from .loadpath import CarriedLoad
-
-        values["carried"] = tuple(CarriedLoad.from_params(c) for c in params["carried"])
-        return cls(params["mark"], int(params["row"]), values, frozenset(params.get("given", ())),
-                   entered=dict(params.get("entered", {})))
-
-    @property
-    def inputs_hash(self) -> str:
-        """What a check is tied to: the member's inputs, not where its row sits in the schedule."""
-        params = {k: v for k, v in self.params().items() if k not in ("row", "entered")}  # values, not spelling
-        text = json.dumps(params, sort_keys=True, separators=(",", ":"))
-        return "sha256:" + hashlib.sha256(text.encode()).hexdigest()
-
-
-@dataclass
-class RowError:
-    """A row that could not be made into a member."""
-
-    mark: str
-    row: int
-    errors: list[ScheduleError]
-    warnings: list[str] = field(default_factory=list)
 
 
 @dataclass
@@ -471,9 +361,10 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str], data)
                                       ", ".join(grades)))
         elif grade:
             v["grade"] = grade
-        if v["K_H"] != 1.0:
+        glulam_k_h = data.glulam_system_factor().value
+        if v["K_H"] != glulam_k_h:
             errs.append(ScheduleError(file, row, "K_H", f"{v['K_H']:g}", "is a system factor for sawn lumber; "
-                                      "glulam takes K_H = 1.0", "1.0 (or blank) for glulam"))
+                                      f"glulam takes K_H = {glulam_k_h:.1f}", f"{glulam_k_h:.1f} (or blank) for glulam"))
         if v["plies"] != 1:
             errs.append(ScheduleError(file, row, "plies", str(v["plies"]), "applies to built-up sawn members only", "1 for glulam"))
     else:
@@ -485,13 +376,14 @@ def _cross_checks(file: str, row: int, v: dict[str, Any], given: set[str], data)
             v["grade"] = grade
     if v["size"] != "auto":
         errs += _size_checks(file, row, v, data)
+    least = data.clause_value("net_area_min").value
     if v["net_area"] is not None and v["net_area"] > 1.0:
         errs.append(ScheduleError(file, row, "net_area", f"{v['net_area']:g}", "is a ratio A_n/A_g and cannot exceed 1",
-                                  "a ratio from 0.75 to 1.0"))
-    elif v["net_area"] is not None and v["net_area"] < 0.75:
+                                  f"a ratio from {least:g} to 1.0"))
+    elif v["net_area"] is not None and v["net_area"] < least:
         errs.append(ScheduleError(file, row, "net_area", f"{v['net_area']:g}",
-                                  "leaves less than 75 % of the gross area; O86 does not allow designing on it",
-                                  "a ratio from 0.75 to 1.0; reduce the holes or notches"))
+                                  f"leaves less than {least * 100:g} % of the gross area; O86 does not allow designing on it",
+                                  f"a ratio from {least:g} to 1.0; reduce the holes or notches"))
     beam_errors = beamloads.row_errors(file, row, v, given)
     if beam_errors:
         return errs + beam_errors

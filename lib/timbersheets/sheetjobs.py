@@ -22,8 +22,10 @@ import math
 import multiprocessing
 import os
 import time
+import queue
 import traceback
-from concurrent.futures import ProcessPoolExecutor, as_completed
+from collections import deque
+from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass, field
 from functools import cached_property
 from pathlib import Path
@@ -33,9 +35,10 @@ from .batch import Body, Stamp, fixed_fields, stamp_sheets, stamped_fields, type
 from .constants import RESULT_MIME
 from .fileio import copy_atomic
 from .lifetime import die_with_parent
-from .pipeline import execute, file_hash, library_fingerprint, templates_dir, to_html
+from .pipeline import execute, file_hash, library_fingerprint, start_kernel, templates_dir, to_html
 
-BATCH = 20  # members per xelatex run: the ~2 s of preamble and fonts spread over 20 sheets
+BATCH = 20  # members per xelatex run at most: the ~0.7 s of preamble and fonts spread over 20 sheets
+STAMP_LAYOUTS = ("stamp.tex.j2", "stampfields.tex.j2")  # a stamped sheet's key covers both
 
 
 @dataclass
@@ -67,7 +70,7 @@ class SheetTask:
 
     @cached_property
     def sheet_key(self) -> str:
-        stamp = file_hash(templates_dir() / "latex" / "sheet" / "stamp.tex.j2")
+        stamp = [file_hash(templates_dir() / "latex" / "sheet" / name) for name in STAMP_LAYOUTS]
         blob = json.dumps({"b": self.body_key, "tb": stamped_fields(self.titleblock), "stamp": stamp}, sort_keys=True)
         return hashlib.sha256(blob.encode()).hexdigest()
 
@@ -173,18 +176,26 @@ def run_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, flo
             outcomes[task.mark].converted = True
         times["typeset"] = time.monotonic() - started
         return list(outcomes.values()), times
-    bodies = [Body(t.mark, t.notebook, fixed_fields(t.titleblock), t.cached_body) for t in ready
-              if _needs_body(t) or outcomes[t.mark].executed]
+    # each body's stamp is typeset in the same run; the main process stamps only what changed since
+    bodies = [Body(t.mark, t.notebook, fixed_fields(t.titleblock), t.cached_body, stamped_fields(t.titleblock),
+                   t.cached_sheet) for t in ready if _needs_body(t) or outcomes[t.mark].executed]
     for mark, result in typeset_bodies(bodies, times).items() if bodies else ():
         if isinstance(result, Exception):
             outcomes[mark].fail(str(result))
         else:
-            outcomes[mark].converted = True
+            outcomes[mark].converted = outcomes[mark].stamped = True
             outcomes[mark].pages = result
     for body in bodies:
         if outcomes[body.mark].converted:
             _pages_file(body.pdf).write_text(str(outcomes[body.mark].pages))
+            _pages_file(body.sheet).write_text(str(outcomes[body.mark].pages))
     return list(outcomes.values()), times
+
+
+def _start_worker() -> None:
+    """A pool worker: dies with its parent, and boots its kernel before its first batch arrives."""
+    die_with_parent()
+    start_kernel()
 
 
 def _safe_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, float]]:
@@ -196,9 +207,21 @@ def _safe_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, f
 
 
 def batches(tasks: list[SheetTask], jobs: int) -> list[list[SheetTask]]:
-    """Tasks in batches of at most BATCH, and at least one batch per worker."""
-    size = max(1, min(BATCH, math.ceil(len(tasks) / jobs)))
-    return [tasks[i:i + size] for i in range(0, len(tasks), size)]
+    """Tasks in batches of at most BATCH, as many batches for every worker, sizes within one of each other.
+
+    100 members on 2 workers make 6 batches of 16 or 17 (3 a worker), not 5 of 20 (3 and 2):
+    the run ends when the busiest worker does."""
+    if not tasks:
+        return []
+    count = jobs * math.ceil(len(tasks) / (jobs * BATCH))
+    count = min(count, len(tasks))
+    size, extra = divmod(len(tasks), count)
+    out, start = [], 0
+    for i in range(count):
+        end = start + size + (1 if i < extra else 0)
+        out.append(tasks[start:end])
+        start = end
+    return out
 
 
 def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool,
@@ -233,31 +256,74 @@ def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool,
             _take_notebook(task, outcome)
             outcomes[task.mark] = outcome
             step(task.mark)
-    groups = batches(work, jobs)
-    if jobs == 1 or len(groups) <= 1:
-        for group in groups:
-            collect(_safe_batch(group))
+    pending = deque(batches(work, jobs))
+    total = len(pending)
+    if jobs == 1 or total <= 1:
+        while pending:
+            collect(_safe_batch(pending.popleft()))
     else:
-        context = multiprocessing.get_context("spawn")
-        with ProcessPoolExecutor(max_workers=min(jobs, len(groups)), mp_context=context,
-                                 initializer=die_with_parent) as pool:
-            for future in as_completed([pool.submit(_safe_batch, g) for g in groups]):
-                collect(future.result())
+        _share_batches(pending, min(jobs - 1, total - 1), collect)
     bar.close()
     started = time.monotonic()
-    _finish(tasks, outcomes)
+    _finish(tasks, outcomes, jobs)
     times["stamp"] = time.monotonic() - started
     return {t.mark: outcomes[t.mark] for t in tasks}
 
 
-def _finish(tasks: list[SheetTask], outcomes: dict[str, SheetOutcome]) -> None:
+def _share_batches(pending: deque, workers: int, collect) -> None:
+    """Run the batches on `workers` pool processes and in this one, each taking the next when free.
+
+    This process is one of the workers: its kernel was started while it designed the
+    members, and the pool's processes start theirs as they spawn. A pool process is handed
+    its next batch the moment it finishes one (from the future's callback)."""
+    total = len(pending)
+    done: queue.Queue = queue.Queue()
+
+    def feed(pool) -> None:
+        try:
+            batch = pending.popleft()
+        except IndexError:
+            return
+        try:
+            future = pool.submit(_safe_batch, batch)
+        except Exception as exc:  # noqa: BLE001 - a broken pool: the batch's members get the error
+            done.put((batch, exc))
+            return
+        future.add_done_callback(lambda f: (done.put((batch, f)), feed(pool)))
+
+    context = multiprocessing.get_context("spawn")
+    with ProcessPoolExecutor(max_workers=workers, mp_context=context, initializer=_start_worker) as pool:
+        for _ in range(workers):
+            feed(pool)
+        collected = 0
+        while True:
+            try:
+                batch = pending.popleft()
+            except IndexError:
+                break
+            collect(_safe_batch(batch))
+            collected += 1
+        while collected < total:
+            batch, future = done.get()
+            try:
+                if isinstance(future, Exception):
+                    raise future
+                collect(future.result())
+            except Exception as exc:  # noqa: BLE001 - a worker that died takes only its batch down
+                trace = traceback.format_exc()
+                collect(([SheetOutcome(t.mark, error=f"{type(exc).__name__}: {exc}", trace=trace) for t in batch], {}))
+            collected += 1
+
+
+def _finish(tasks: list[SheetTask], outcomes: dict[str, SheetOutcome], jobs: int = 1) -> None:
     """Stamp, in one run, every PDF sheet whose stamped version is not cached; put every sheet in place."""
     pdf = [t for t in tasks if t.sheet is not None and t.fmt == "pdf" and t.cached_body.exists()]
-    stale = [t for t in pdf if t.force or outcomes[t.mark].converted or not t.cached_sheet.exists()]
+    stale = [t for t in pdf if not outcomes[t.mark].stamped
+             and (t.force or outcomes[t.mark].converted or not t.cached_sheet.exists())]
     stamps = [Stamp(t.mark, t.cached_body, _read_pages(t.cached_body), stamped_fields(t.titleblock),
                     t.cached_sheet) for t in stale]
     made = {s.mark: s.pdf for s in stamps}
-    for mark, result in stamp_sheets(stamps).items() if stamps else ():
+    for mark, result in stamp_sheets(stamps, jobs).items() if stamps else ():
         if isinstance(result, Exception):
             outcomes[mark].fail(str(result))
         else:

@@ -9,65 +9,25 @@ write results.json, so a sheet cannot disagree with the verdict.
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
+from .blocks import Block, heading, math_block, para, q, table
 from .calc import format_number, format_value, unit_latex, unit_text
 from .checks import CheckResult
 from .constants import CAUTION, RESULT_MIME
 from .data import DataSet
-from .design import MemberDesign, design_member, effects_of
+from .design import MemberDesign, effects_of
 from .loads import EFFECT_UNITS, EFFECTS, KD_SYMBOLS, LOAD_TYPES, kd_permanent
 from .membertypes import MemberType, member_type
 from .schedule import Member
+from .sizing import design_sized
 from .symbols import ACTION_WORDS, meaning, symbol_latex, symbol_unit
-from .tex import Cell, Table, displays_noindent, escape, md_escape
+from .tex import Cell, Table, escape, md_escape
 from .units import to_display
 
 LOAD_NAMES = {"D": "Dead", "L": "Live (use and occupancy)", "S": "Snow (with rain)", "W": "Wind", "E": "Earthquake"}
 EFFECT_NAMES = {"P": "P", "w": "w", "M": "M", "V": "V", "F": "F"}
-
-
-@dataclass
-class Block:
-    """One output of a sheet cell."""
-
-    latex: str
-    markdown: str
-
-    def _repr_latex_(self) -> str:
-        return displays_noindent(self.latex)  # no empty line above a display that starts a paragraph
-
-    def _repr_markdown_(self) -> str:
-        return self.markdown
-
-    def __add__(self, other: "Block") -> "Block":
-        return Block(self.latex + "\n" + other.latex, self.markdown + "\n" + other.markdown)
-
-
-def heading(title: str, level: int = 1) -> Block:
-    cmd = "section" if level == 1 else "subsection"
-    return Block(f"\\{cmd}{{{escape(title)}}}\n", f"{'#' * (level + 1)} {md_escape(title)}\n")
-
-
-def para(text_latex: str, text_md: str | None = None) -> Block:
-    return Block(text_latex + "\n\n", (text_md if text_md is not None else text_latex) + "\n\n")
-
-
-def table(t: Table) -> Block:
-    return Block(t.latex(), t.markdown())
-
-
-def math_block(latex: str) -> Block:
-    return Block(latex + "\n", latex + "\n")
-
-
-def q(value: float, compute_unit: str) -> Cell:
-    """A number in its display unit, as a right-aligned table cell (unit in the header)."""
-    shown, unit = to_display(value, compute_unit)
-    text = format_number(shown, unit)
-    return Cell(f"${text}$", text)
 
 
 class Sheet:
@@ -82,7 +42,7 @@ class Sheet:
     def from_params(cls, member: dict[str, Any], codes: dict[str, str], materials: str = "") -> "Sheet":
         """Rebuild the member from notebook parameters and design it."""
         data = DataSet(Path(materials) if materials else None)
-        design = design_member(Member.from_params(member), data)
+        design = design_sized(Member.from_params(member), data)
         return cls(design, data, codes)
 
     @property

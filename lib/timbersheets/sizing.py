@@ -13,10 +13,11 @@ import math
 from dataclasses import dataclass, field
 
 from .data import DataSet
+from .design import MemberDesign, build_context, design_function, design_member, load_cases
 from .errors import DesignError, TimbersheetsError
 from .materials import sawn_table_grade
-from .membertypes import member_type
-from .schedule import Member
+from .member import Member
+from .membertypes import MemberType, member_type
 from .sections import Section, sawn_category
 
 RUNNERS_UP = 5
@@ -98,10 +99,6 @@ def catalogue(member: Member, data: DataSet) -> list[Section]:
 
 def evaluate(member: Member, data: DataSet, section: Section, cases, design) -> Candidate:
     """The governing utilization of `member` with `section` (fast path, no rendering)."""
-    from .design import build_context
-
-    from .design import load_cases
-
     try:
         ctx = build_context(member, data, section)
         if ctx.own_weight is not None:  # the weight, and so the combinations, change with the section
@@ -137,8 +134,6 @@ def size(member: Member, data: DataSet, design) -> Sizing:
     passing sections in order of area: with a preference, the lighter ones it
     passed over come first, then the next heavier ones.
     """
-    from .design import load_cases
-
     try:
         cases = load_cases(member, data, [])
     except TimbersheetsError as exc:
@@ -173,3 +168,25 @@ def size(member: Member, data: DataSet, design) -> Sizing:
     result.chosen = chosen
     result.runners_up = [c for c in passing if c is not chosen][:RUNNERS_UP]
     return result
+
+
+def sized_section(member: Member, data: DataSet, kind: MemberType, outcome: MemberDesign) -> Section:
+    """The section the search chose; when none passes, the best one found (the member then fails)."""
+    outcome.sizing = size(member, data, design_function(kind))
+    chosen = outcome.sizing.chosen
+    if chosen is not None:
+        return chosen.section
+    best = outcome.sizing.best
+    if best is None or best.utilization == float("inf"):
+        raise DesignError(member.mark, f"no standard section can carry the loads ({outcome.sizing.searched} "
+                          "searched)", "", "Change the grade, the loads or the constraints")
+    outcome.warnings.append(f"no standard section in the catalogue passes ({outcome.sizing.searched} searched"
+                            f"{'; ' + outcome.sizing.constraints if outcome.sizing.constraints else ''}); the best, "
+                            f"{best.label}, reaches utilization {best.utilization:.3f} ({best.governing})")
+    return best.section
+
+
+def design_sized(member: Member, data: DataSet) -> MemberDesign:
+    """Design `member` as the run does: with size = auto, sized first (:func:`size`), then designed with the
+    section chosen, or with the best one found when none passes (the member then fails)."""
+    return design_member(member, data, sized_section)

@@ -38,6 +38,10 @@ SYMBOLS: dict[str, tuple[str, str]] = {
     "K_H": ("K_{H}", "system factor"),
     "K_T": ("K_{T}", "treatment factor"),
     "K_e": ("K_{e}", "effective length factor"),
+    "K_B": ("K_{B}", "length-of-bearing factor"),
+    "C_c,max": ("C_{c,max}", "largest slenderness ratio of a compression member"),
+    "C_B,max": ("C_{B,max}", "largest slenderness ratio for lateral stability in bending"),
+    "A_n/A_g": ("A_{n}/A_{g}", "least net area a member may be designed on, as a share of the gross area"),
 }
 
 #: Units of data symbols that are not strengths (strengths and moduli are MPa).

@@ -10,8 +10,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 from pathlib import Path
 
-from .design import MemberDesign, design_all
+from .design import MemberDesign
 from .job import load_job
+from .loadpath import design_all
 from .loads import EFFECTS, LOAD_TYPES
 from .schedule import Member
 

@@ -5,7 +5,8 @@ Sawn:   Q_r = φ F_cp A_b K_B K_Zcp,  F_cp = f_cp (K_D K_Scp K_T)   [form: S1]
 Glulam: Q_r = φ F_cp A_b K_B
 A_b = b l_b with l_b the row's `bearing`. K_B = 1.0 at end supports: the
 length-of-bearing factor applies only to bearings at least 75 mm from the end
-of the member, and a simple span's supports are at its ends. K_Zcp from the
+of the member, and a simple span's supports are at its ends (K_B_end in
+data/clause_values.csv; the K_B table, bearing_factors.csv, is informative). K_Zcp from the
 width-to-depth ratio (data/bearing_size_factors.csv; memory, unverified).
 The demand is the support reaction; combinations that lift the member off its
 supports (negative reaction) have no bearing demand. The glulam clause number
@@ -14,22 +15,14 @@ is from memory.
 
 from __future__ import annotations
 
-from ..analysis import SPAN_CLAUSE
 from ..calc import calc, format_number
 from . import Step, result
 
 SAWN_CLAUSE = "O86-14 6.5.7"
 GLULAM_CLAUSE = "O86-14 7.5.9"
-END_BEARING_K_B = 1.0  # K_B does not apply at the end of a member (bearing < 75 mm from the end)
 
 _UNITS = {"f_cp": "MPa", "K_D": "", "K_Scp": "", "K_T": "", "F_cp": "MPa", "phi": "", "b": "mm", "l_b": "mm",
           "A_b": "mm**2", "K_B": "", "Q_r": "N"}
-
-
-@calc(units={"w_f": "N/mm", "L": "mm", "Q_f": "N"}, clause=SPAN_CLAUSE)
-def udl_reaction(w_f, L):
-    Q_f = w_f * L / 2
-    return locals()
 
 
 @calc(units={**_UNITS, "K_Zcp": ""}, clause=SAWN_CLAUSE)
@@ -67,10 +60,12 @@ def check_bearing(m, forces, line_loads: bool):
         return None
     case, s = forces.case, m.section
     width = m.member.bearing_width or s.b
+    k_b = m.data.clause_value("K_B_end")  # K_B applies only to bearings at least 75 mm from the member's end
+    m.used.append(k_b)
     common = dict(f_cp=m.f["f_cp"], K_D=case.K_D, K_Scp=m.K_S["K_Scp"], K_T=m.K_T, phi=m.phi["bearing"],
-                  b=width, l_b=m.member.bearing, K_B=END_BEARING_K_B)
-    words = ("K_B = 1.0: the supports are at the member's ends, and K_B applies only to bearings at least 75 mm "
-             "from the end")
+                  b=width, l_b=m.member.bearing, K_B=k_b.value)
+    words = (f"K_B = {k_b.value:.1f}: the supports are at the member's ends, and K_B applies only to bearings "
+             "at least 75 mm from the end")
     if m.member.bearing_width:
         words += f"; b = {width:g} mm, the bearing width the row gives (narrower than the member)"
     if m.glulam:
@@ -85,12 +80,11 @@ def check_bearing(m, forces, line_loads: bool):
         words += f"; K_Zcp = {format_number(k_zcp)} for width/depth b/d = {ratio:.2f}"
     if model:
         words = (f"Factored reaction Q_f = {forces.R_f / 1000:.1f} kN at {model} (beam model, section 3); "
-                 "K_B = 1.0 at every support: it applies only to bearings at least 75 mm from the member's end, "
+                 f"K_B = {k_b.value:.1f} at every support: it applies only to bearings at least 75 mm from the member's end, "
                  f"and 1.0 is on the safe side at interior supports{words.partition('from the end')[2]}")
         steps = [Step(calc_, values, words)]
     else:
-        steps = [Step(udl_reaction, udl_reaction(w_f=forces.w_f, L=m.length), "Factored reaction at each support"),
-                 Step(calc_, values, words)]
+        steps = [Step(*forces.steps["reaction"], "Factored reaction at each support"), Step(calc_, values, words)]
     return result("bearing", case, forces.R_f, values["Q_r"], "N", clause, tuple(steps), "Q_f", "Q_r")
 
 
@@ -129,12 +123,15 @@ def check_support_bearing(m, case, P_f: float):
     categories = ("all",) if material == "glulam" else ("small", "timber")
     k_scp = min((m.data.service_factor(material, c, "K_Scp", m.member.service) for c in categories),
                 key=lambda d: d.value)
-    m.used += [f_cp, k_scp]
+    k_b = m.data.clause_value("K_B_end")
+    k_zcp = m.data.bearing_size_factor(0.0)  # the least tabled value: the support's width and depth are not given
+    m.used += [f_cp, k_scp, k_b, *k_zcp[1]]
     s = m.section
     values = support_bearing(f_cp=f_cp.value, K_D=case.K_D, K_Scp=k_scp.value, phi=m.phi["bearing"], b=s.b, d=s.d,
-                             K_B=END_BEARING_K_B, K_Zcp=1.0)
+                             K_B=k_b.value, K_Zcp=k_zcp[0])
     words = (f"Bearing of the column end on the {text} support: f_cp of the support (the lowest of its size "
-             "categories, its size not being given); A_b the column end, b × d; K_B = 1.0 and K_Zcp = 1.0, the "
+             f"categories, its size not being given); A_b the column end, b × d; K_B = {k_b.value:.1f} and K_Zcp = "
+             f"{k_zcp[0]:.1f}, the "
              "least values, since where the column sits on the support and the support's size are not given; "
              "the support untreated (K_T = 1.0)")
     return result("bearing", case, P_f, values["Q_r"], "N", GLULAM_CLAUSE if material == "glulam" else SAWN_CLAUSE,

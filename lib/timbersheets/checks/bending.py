@@ -9,7 +9,7 @@ Lateral stability: for sawn lumber K_L = 1.0 where the depth-to-width ratio d/b
 meets the rule for the restraint the row describes (Lu = 0: compression edge
 held by decking or joists; 0 < Lu < span: held at intervals by purlins or tie
 rods; Lu = span: no intermediate support); otherwise K_L is computed from
-C_B = √(L_e d / b²) ≤ 50 with L_e from Lu. Glulam: K_L = 1.0 for Lu = 0,
+C_B = √(L_e d / b²) ≤ C_B,max (data/clause_values.csv) with L_e from Lu. Glulam: K_L = 1.0 for Lu = 0,
 computed otherwise. Under negative moment (uplift, hogging, suction) the bottom
 edge is in compression and ``Lu_bottom`` gives its unsupported length; blank,
 it is the whole length between supports. ``restraint = purlins`` and
@@ -35,7 +35,6 @@ from . import Step, result
 SAWN_CLAUSE = "O86-14 6.5.4"
 GLULAM_CLAUSE = "O86-14 7.5.6"
 STABILITY_CLAUSE = {"sawn": "O86-14 6.5.4.2", "glulam": "O86-14 7.5.6.4"}
-CB_MAX = 50.0
 CB_STOCKY = 10.0  # C_B at or below which K_L = 1.0 (O86 6.5.4.2.4)
 
 
@@ -216,8 +215,10 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
     slender = lateral_slenderness(K_Le=k_le.value, L_u=L_u, d=s.d, b=s.b, E_05=m.f["E05"],
                                   K_SE=m.K_S["K_SE"], K_T=m.K_T, F_b=F_b)
     C_B, C_K = slender["C_B"], slender["C_K"]
-    if C_B > CB_MAX:
-        raise DesignError(m.mark, f"slenderness C_B = {C_B:.1f} exceeds {CB_MAX:g}",
+    cb_max = m.data.clause_value("C_B_max", member.material)
+    m.used.append(cb_max)
+    if C_B > cb_max.value:
+        raise DesignError(m.mark, f"slenderness C_B = {C_B:.1f} exceeds {cb_max.value:g}",
                           STABILITY_CLAUSE["glulam" if m.glulam else "sawn"],
                           "Brace the compression edge (shorter Lu) or choose a wider section")
     held = ""
@@ -233,7 +234,7 @@ def lateral_stability(m, F_b: float, negative: bool, line_loads: bool,
         steps.append(Step(lateral_intermediate, values, f"{CB_STOCKY:g} < C_B = {C_B:.2f} ≤ C_K = {C_K:.2f}"))
     else:
         values = lateral_slender(C_B=C_B, E_05=m.f["E05"], K_SE=m.K_S["K_SE"], K_T=m.K_T, F_b=F_b)
-        steps.append(Step(lateral_slender, values, f"C_K = {C_K:.2f} < C_B = {C_B:.2f} ≤ {CB_MAX:g}"))
+        steps.append(Step(lateral_slender, values, f"C_K = {C_K:.2f} < C_B = {C_B:.2f} ≤ {cb_max.value:g}"))
     return values["K_L"], steps, ""
 
 

@@ -1,7 +1,7 @@
 """Compression parallel to grain with column stability (CSA O86-14 6.5.6 sawn,
 7.5.8 glulam), about the strong (x) and weak (y) axis.
 
-C_c = K_e L / d in the direction of buckling, at most 50; K_C from the
+C_c = K_e L / d in the direction of buckling, at most C_c,max (data/clause_values.csv); K_C from the
 slenderness; the lower P_r of the two axes governs. Clause numbers follow the
 O86-14 numbering (memory, unverified). The size factors K_Zc (sawn) and K_Zcg
 (glulam, on member volume) are the O86-14 forms (memory, unverified).
@@ -15,7 +15,6 @@ from . import Step, result
 
 SAWN_CLAUSE = "O86-14 6.5.6"
 GLULAM_CLAUSE = "O86-14 7.5.8"
-CC_MAX = 50.0
 
 _SAWN = {"f_c": "MPa", "K_D": "", "K_H": "", "K_Sc": "", "K_T": "", "F_c": "MPa", "K_e": "",
          "E_05": "MPa", "K_SE": "", "phi": "", "A": "mm**2"}
@@ -74,7 +73,7 @@ def glulam_compression_y(F_c, K_Zcg, K_e, L_y, b, E_05, K_SE, K_T, phi, A):
 def compression_resistance(m, K_D: float) -> tuple[float, tuple[Step, ...]]:
     """P_r = min(P_rx, P_ry) in N under load-duration factor K_D, with its steps.
 
-    Raises DesignError when the slenderness C_c about either axis exceeds 50.
+    Raises DesignError when the slenderness C_c about either axis exceeds C_c,max (clause_values.csv).
     """
     common = dict(f_c=m.f["f_c"], K_D=K_D, K_H=m.K_H_for("compression"), K_Sc=m.K_S["K_Sc"], K_T=m.K_T, K_e=m.K_e,
                   E_05=m.f["E05"], K_SE=m.K_S["K_SE"], phi=m.phi["compression"], A=m.section.A)
@@ -95,9 +94,11 @@ def compression_resistance(m, K_D: float) -> tuple[float, tuple[Step, ...]]:
         if min(v for k, v in geometry.items() if k.startswith("L_")) <= 0:
             continue  # braced about this axis over its whole length: no buckling about it
         values = calc_(**geometry, **common)
-        if values[slender] > CC_MAX:
+        limit = m.data.clause_value("C_c_max", m.member.material)
+        m.used.append(limit)
+        if values[slender] > limit.value:
             raise DesignError(m.mark, f"slenderness C_c = {values[slender]:.1f} about the {axis} axis exceeds "
-                              f"{CC_MAX:g}", GLULAM_CLAUSE if m.glulam else SAWN_CLAUSE,
+                              f"{limit.value:g}", GLULAM_CLAUSE if m.glulam else SAWN_CLAUSE,
                               "Brace the member or choose a larger section")
         caption = ("buckling about the strong axis x (across d)" if axis == "x"
                    else "buckling about the weak axis y (across b)")

@@ -1,0 +1,56 @@
+"""A stored beam-model analysis is the analysis, and reading it needs no PyCBA.
+
+The run keeps each PyCBA analysis in the job's cache (beammodel.STORE_ENV), keyed by its inputs,
+so a rerun and the kernels that render the sheets do not import PyCBA (about 2 s a process).
+What is read back must equal, number for number, what PyCBA computes.
+"""
+
+import json
+import os
+import subprocess
+import sys
+
+import numpy as np
+
+from timbersheets import beammodel
+from timbersheets.beammodel import Geometry
+
+TWO_SPANS = Geometry((3600.0, 4200.0), right=900.0)
+LOADS = (("udl", 2.5, 0.0, 8700.0), ("point", 6000.0, 5100.0))
+
+
+def test_a_stored_analysis_reads_back_the_same_without_pycba(tmp_path, monkeypatch):
+    monkeypatch.delenv(beammodel.STORE_ENV, raising=False)
+    direct = beammodel.analyse(TWO_SPANS, LOADS, (450.0,))
+    monkeypatch.setenv(beammodel.STORE_ENV, str(tmp_path))
+    first = beammodel.analyse(TWO_SPANS, LOADS, (450.0,))
+    assert len(list(tmp_path.glob("*.npz"))) == 1 and not list(tmp_path.glob("*.part*"))
+    code = ("import json, sys; from timbersheets import beammodel as b\n"
+            f"r = b.analyse(b.Geometry((3600.0, 4200.0), right=900.0), {LOADS!r}, (450.0,))\n"
+            "print(json.dumps({'pycba': 'pycba' in sys.modules, 'M': r.M.tolist(), 'V': r.V.tolist(),"
+            " 'D': r.D.tolist(), 'R': r.R.tolist(), 'x': r.x.tolist()}))")
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                          env={**os.environ, beammodel.STORE_ENV: str(tmp_path)})
+    assert done.returncode == 0, done.stderr
+    read = json.loads(done.stdout)
+    assert read["pycba"] is False
+    for name in ("x", "M", "V", "D", "R"):
+        assert np.array_equal(np.array(read[name]), getattr(direct, name)), name
+        assert np.array_equal(getattr(first, name), getattr(direct, name)), name
+
+
+def test_other_inputs_are_analysed_anew(tmp_path, monkeypatch):
+    monkeypatch.setenv(beammodel.STORE_ENV, str(tmp_path))
+    a = beammodel.analyse(TWO_SPANS, LOADS)
+    b = beammodel.analyse(TWO_SPANS, (("udl", 2.5, 0.0, 8700.0), ("point", 6000.0, 5200.0)))
+    assert len(list(tmp_path.glob("*.npz"))) == 2
+    assert not np.array_equal(a.M, b.M)
+
+
+def test_an_unreadable_entry_is_analysed_again(tmp_path, monkeypatch):
+    monkeypatch.setenv(beammodel.STORE_ENV, str(tmp_path))
+    good = beammodel.analyse(TWO_SPANS, LOADS)
+    (entry,) = tmp_path.glob("*.npz")
+    entry.write_bytes(b"not an array file")
+    again = beammodel.analyse(TWO_SPANS, LOADS)
+    assert np.array_equal(again.M, good.M)
