@@ -30,8 +30,12 @@ def page_text(pdf: Path, page: int) -> str:
 
 
 def title_block(pdf: Path, page: int) -> str:
-    """The title block's text: what pdftotext reads above the first section of a page."""
-    return page_text(pdf, page).split("\n1 Member")[0] if page == 1 else page_text(pdf, page)[:600]
+    """The title block's text: what pdftotext reads above the first section of the first page, and
+    the one-row block of a following page (its labels' line and its values' line), not the body
+    that a full page sets close under it."""
+    if page == 1:
+        return page_text(pdf, page).split("\n1 Member")[0]
+    return "\n".join([line for line in page_text(pdf, page).splitlines() if line.strip()][:2])
 
 
 ROWS = [member_row("BA-1"), member_row("BA-2", P_D="6", P_L="4"), member_row("BA-3", type="tension", P_D="3"),

@@ -134,3 +134,16 @@ def test_a_failed_cell_marks_the_html_sheet_incomplete():
     assert "INCOMPLETE SHEET" in seen and "EXECUTION ERROR" in seen and "Not for use" in seen
     assert "ZeroDivisionError: division by zero" in seen
     assert "<script>" not in page and "\x1b" not in page  # the traceback is text, escaped and without colours
+
+
+def test_a_long_table_that_breaks_across_pages_reads_as_one_table():
+    # A table of BREAKABLE_ROWS rows or more is \tsbreakable in the PDF; the HTML shows one table,
+    # its header once and every row (20 rows written, hand count: 20 body rows plus the header).
+    from timbersheets.tex import BREAKABLE_ROWS, Table
+
+    rows = [[f"1.{k}D", f"{k}.5", f"0.{k:03d}"] for k in range(20)]
+    latex = Table(["Combination", "Moment", "Utilization"], rows, "lrr", ["", "kN·m", ""]).latex()
+    assert len(rows) >= BREAKABLE_ROWS and "\\tsbreakable{lrr}" in latex
+    page = Converter().blocks(latex)
+    assert page.count("<table>") == 1 and page.count("</th>") == 3 and "kN·m" in page
+    assert page.count("<tr>") == 21 and "1.19D" in page and "0.019" in page

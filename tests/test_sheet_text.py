@@ -47,11 +47,15 @@ def test_cautions_typeset_symbols_and_name_no_data_identifiers(demo_members):
 
 
 def test_glulam_factor_names_are_words(demo_members):
-    caution = sheet_of(demo_members["G-1"]).cautions().latex
+    sheet = sheet_of(demo_members["G-1"])
+    caution = sheet.cautions().latex
     for raw in ("K_X_straight", "shear_method_a_volume_max", "C_V_simple_span_udl", "K\\_X\\_straight"):
         assert raw not in caution
-    assert "$K_{X}$, curvature factor" in caution and "straight members" in caution
+    assert "$K_{X}$: glulam straight members" in caution
     assert "$C_{V}$" in caution and "simple span under uniform load" in caution
+    # the meaning of each listed symbol is in the factor table, once
+    factors = sheet.factors_section().latex
+    assert "$K_{X}$ & $1.0$ & curvature factor" in factors and "curvature factor" not in caution
 
 
 def test_cautions_name_combinations_as_the_combination_table_numbers_them(demo_members):

@@ -6,7 +6,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from .calc import format_number
-from .tex import Cell, Table, escape, md_escape
+from .tex import Cell, Table, displays_noindent, escape, md_escape
 from .units import to_display
 
 
@@ -18,7 +18,7 @@ class Block:
     markdown: str
 
     def _repr_latex_(self) -> str:
-        return self.latex
+        return displays_noindent(self.latex)  # no empty line above a display that starts a paragraph
 
     def _repr_markdown_(self) -> str:
         return self.markdown

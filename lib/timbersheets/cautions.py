@@ -55,8 +55,11 @@ def _source(d: Datum) -> tuple[str, str]:
             f"{md_escape(d.table)}; data file `{d.file}`")
 
 
-def unverified_items(used: list[Datum]) -> list[tuple[str, str]]:
-    """(LaTeX, Markdown) per unverified value used; the load combinations together on one line."""
+def unverified_items(used: list[Datum], described: frozenset[str] = frozenset()) -> list[tuple[str, str]]:
+    """(LaTeX, Markdown) per unverified value used; the load combinations together in one item.
+
+    A symbol in `described` (the sheet's factor table gives its meaning) is named without
+    its meaning again."""
     items: dict[str, tuple[str, str]] = {}
     combos: dict[str, Datum] = {}
     for d in used:
@@ -69,23 +72,44 @@ def unverified_items(used: list[Datum]) -> list[tuple[str, str]]:
         if d.label.startswith("SLS combination "):
             check, load = d.label.split(" ")[2:4]
             words = f"Serviceability load factor on {load} for {ACTION_WORDS.get(check, check).lower()}"
-            items[d.warning] = (f"{escape(words)} ({src_latex}): memory, unverified",
-                                f"{md_escape(words)} ({src_md}): memory, unverified")
+            items[d.warning] = (f"{escape(words)} ({src_latex})", f"{md_escape(words)} ({src_md})")
             continue
         symbol = d.symbol or d.label.split(" ")[0]
         sym = f"${symbol_latex(symbol)}$"
-        what = meaning(symbol)
+        what = "" if symbol in described else meaning(symbol)
         q_latex, q_md = _text(_qualifier(d.label, symbol))
-        if q_latex.startswith("="):  # E05 = 0.87 E of …: the rule itself, after the symbol again
+        if q_latex.startswith("="):  # E05 = 0.87 E of …: the rule itself, after the symbol (again)
+            if not what:
+                items[d.warning] = (f"{sym} {q_latex} ({src_latex})", f"{sym} {q_md} ({src_md})")
+                continue
             q_latex, q_md = f"{sym} {q_latex}", f"{sym} {q_md}"
         head_latex = sym + (f", {escape(what)}" if what else "") + (f": {q_latex}" if q_latex else "")
         head_md = sym + (f", {md_escape(what)}" if what else "") + (f": {q_md}" if q_md else "")
-        items[d.warning] = (f"{head_latex} ({src_latex}): memory, unverified",
-                            f"{head_md} ({src_md}): memory, unverified")
+        items[d.warning] = (f"{head_latex} ({src_latex})", f"{head_md} ({src_md})")
     if combos:
         first = next(iter(combos.values()))
         src_latex, src_md = _source(first)
         words = f"Load factors of combinations {', '.join(combos)} (numbered as in the load combinations table)"
-        items["combinations"] = (f"{escape(words)} ({src_latex}): memory, unverified",
-                                 f"{md_escape(words)} ({src_md}): memory, unverified")
+        items["combinations"] = (f"{escape(words)} ({src_latex})", f"{md_escape(words)} ({src_md})")
     return list(items.values())
+
+
+#: The head of the sheet's list; every value in it was recorded from memory.
+LISTING_HEAD = "Data values used here that are not yet verified against the standard (memory, unverified): "
+
+
+def unverified_listing(used: list[Datum], described: frozenset[str] = frozenset()) -> tuple[str, str]:
+    """The cautions' list of unverified values (LaTeX, Markdown), or two empty strings.
+
+    A run-in paragraph, the values one after another separated by semicolons: every value
+    is named with its symbol, case, table and data file, as in a bulleted list, in about
+    half its height. Symbols in `described` are in the sheet's factor table, which gives
+    their meaning and marks them unverified, so the list does not say the meaning again."""
+    entries = unverified_items(used, described)
+    if not entries:
+        return "", ""
+    # "NBC 2020", "Table 7.3", "O86-14" kept on one line: a run-in line never starts with a bare number
+    latex = re.sub(r"\b(NBC|Table|Cl\.) (?=\d)", r"\1~", "; ".join(item for item, _ in entries))
+    latex = re.sub(r"\b([A-Z]+\d+-\d+)\b", r"\\mbox{\1}", latex)
+    return (f"\\par\\smallskip {escape(LISTING_HEAD)}{latex}.\n",
+            "\n\n" + md_escape(LISTING_HEAD) + "\n" + "".join(f"- {text}\n" for _, text in entries))

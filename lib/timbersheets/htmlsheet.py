@@ -204,6 +204,11 @@ class Converter:
         if name == "begin":
             env, i = _group(tex, i)
             return self._environment(tex, env, i)
+        if name == "tsbreakable":  # a table that may break across pages: {spec}{header rows}{body rows}
+            spec, i = _group(tex, i)
+            head, i = _group(tex, _skip_space(tex, i))
+            body, i = _group(tex, _skip_space(tex, i))
+            return "<block>" + self.table(_columns(spec), head + "\\midrule" + body), i
         if name == "tsvalue":
             number, i = _group(tex, i)
             unit, i = _group(tex, i)

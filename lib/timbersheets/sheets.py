@@ -229,15 +229,17 @@ class Sheet:
             intro += para(escape(senses), senses)
         out = heading("Load combinations") + intro + table(
             Table(header, rows, "rl" + "r" * len(effects) + "rX", units))
-        for case in d.cases:
-            if case.kd_values:
-                unit = EFFECT_UNITS[case.kd_effect]
-                latex = kd_permanent.latex(case.kd_values, units={"X_lt": unit, "X_st": unit})
-                words = "; ".join(f"${symbol_latex(k)}$ is {v}" for k, v in KD_SYMBOLS.items())
-                out += para(f"For {escape(case.label)} the long-term (dead) part exceeds the standard-term part, "
-                            f"so (CSA O86-14 5.3.2.3, on ${case.kd_effect}$; {words}; O86's own letters for "
-                            "these are those of the schedule's live and snow load columns, hence new names):")
-                out += math_block(latex)
+        reduced = [case for case in d.cases if case.kd_values]
+        if reduced:  # the rule once, then each combination's K_D (a few lines each, not a paragraph)
+            words = "; ".join(f"${symbol_latex(k)}$ is {v}" for k, v in KD_SYMBOLS.items())
+            out += para("Where the long-term (dead) part exceeds the standard-term part, $K_D$ follows CSA O86-14 "
+                        f"5.3.2.3 ({words}; O86's own letters for these are those of the schedule's live and snow "
+                        "load columns, hence new names).")
+        for case in reduced:
+            unit = EFFECT_UNITS[case.kd_effect]
+            latex = kd_permanent.latex(case.kd_values, units={"X_lt": unit, "X_st": unit})
+            out += para(f"For {escape(case.label)}, on ${case.kd_effect}$:")
+            out += math_block(latex)
         if self.kind.shows("forces"):
             from .beamsheet import forces_block
 
@@ -283,7 +285,7 @@ class Sheet:
                      "(lib/timbersheets/data/README.md lists each) and await checking against a licensed copy of "
                      "the standard.")
         return heading("Material and modification factors") + intro + table(
-            Table(["Symbol", "Value", "Meaning", "Source", "Data status"], rows, "lrXXl"))
+            Table(["Symbol", "Value", "Meaning", "Source", "Data status"], rows, "lrWNl"))
 
     # 5 -------------------------------------------------------------------------
     def checks_section(self) -> Block:
@@ -360,7 +362,7 @@ class Sheet:
             lines = [f"Governing check: {ACTION_WORDS.get(gov.check, gov.check).lower()}",
                      f"Combination: {gov.combination}",
                      f"Utilization: {round_utilization(gov.utilization):.3f}"]
-        body = "\\\\\n".join(escape(x) for x in lines)
+        body = "\\quad\n".join(f"\\mbox{{{escape(x)}}}" for x in lines)  # on one line under the verdict if they fit
         return out + Block(
             f"\\begin{{verdictbox}}\n{{\\Large {verdict}}}\\\\[2pt]\n{body}\n\\end{{verdictbox}}\n",
             f"> **{verdict}**  \n> " + "  \n> ".join(md_escape(x) for x in lines) + "\n")
@@ -370,17 +372,15 @@ class Sheet:
         listing = ""
         md = ""
         if warnings:
-            from .cautions import unverified_items
+            from .cautions import unverified_listing
 
-            entries = unverified_items(self.design.data_used)
-            items = "".join(f"\\item {latex}\n" for latex, _ in entries)
-            listing = ("\\par\\smallskip Data values used here that are not yet verified against the standard:\n"
-                       f"\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n")
-            md = "\n\nUnverified data values used:\n" + "".join(f"- {text}\n" for _, text in entries)
+            described = frozenset(d.symbol for d in self.design.data_used if d.symbol != "K_D" and not
+                                  d.label.startswith(("NBC combination", "SLS combination")))  # in the factor table
+            listing, md = unverified_listing(self.design.data_used, described)
         source, extra, extra_md = self._data_note()
         listing, md = extra + listing, extra_md + md
         codes = (f" Designed to CSA O86:{escape(self.codes.get('o86', '2019'))[-2:]} with loads combined per "
-                 f"NBC {escape(self.codes.get('nbc', '2020'))} Part 4.")
+                 f"NBC~{escape(self.codes.get('nbc', '2020'))} Part~4.")
         clauses = (" The methods, clause numbers and tables used here follow CSA O86-14 (each data value names "
                    "its edition); where O86:19 is known to have revised one of them, it is listed below.")
         notes = ""

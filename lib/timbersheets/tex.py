@@ -99,6 +99,19 @@ def escape(text: object) -> str:
     return "".join(out)
 
 
+def displays_noindent(latex: str) -> str:
+    """`latex` with ``\\noindent`` before every opening ``$$``.
+
+    A display that starts a paragraph (after a blank line, as each sheet block and
+    handcalcs' equations do) otherwise sets an empty line above itself: TeX breaks the
+    paragraph's indent box into a line of its own. ``\\noindent`` leaves it empty, so the
+    display follows its text at the display skip; inside a paragraph it does nothing."""
+    parts = latex.split("$$")
+    if len(parts) % 2 == 0:  # an unpaired $$: leave the text as it is
+        return latex
+    return parts[0] + "".join(("\\noindent$$" if k % 2 == 0 else "$$") + part for k, part in enumerate(parts[1:]))
+
+
 def md_escape(text: object) -> str:
     """Markdown-safe text for JupyterLab output."""
     return "".join("\\" + ch if ch in _MARKDOWN else ch for ch in str(text).replace("\n", " "))
@@ -124,9 +137,19 @@ def as_cell(value: object) -> Cell:
     return value if isinstance(value, Cell) else Cell.text(value)
 
 
+#: Rows from which a long table may break across pages (see Table.latex); shorter ones stay whole.
+BREAKABLE_ROWS = 8
+_WRAPPING = {"X": ">{\\raggedright\\arraybackslash}X",
+             "W": ">{\\hsize=1.3\\hsize\\raggedright\\arraybackslash}X",
+             "N": ">{\\hsize=0.7\\hsize\\raggedright\\arraybackslash}X"}
+
+
 @dataclass
 class Table:
-    """A ruled table. `align` has one letter a column: l, r, or X (wrapping text)."""
+    """A ruled table. `align` has one letter a column: l, r, or X (wrapping text).
+
+    W and N are wrapping columns too, 1.3 and 0.7 times an X column's width: a W with an
+    N beside a long column and a short one wraps fewer lines than two X (use them in pairs)."""
 
     header: list[object]
     rows: list[list[object]] = field(default_factory=list)
@@ -134,18 +157,23 @@ class Table:
     units: list[object] | None = None
 
     def latex(self) -> str:
+        """A tabular (tabularx with wrapping columns). A table of BREAKABLE_ROWS rows or more with
+        no wrapping column, one X, or a W and an N is ``\\tsbreakable``: it breaks across pages,
+        its header repeated, so it fills the page it starts on instead of leaving the rest empty."""
         align = self.align or "l" * len(self.header)
-        spec = "".join(">{\\raggedright\\arraybackslash}X" if a == "X" else a for a in align)
-        env = "tabularx" if "X" in align else "tabular"
-        width = "{\\linewidth}" if env == "tabularx" else ""
-        lines = [f"\\begin{{{env}}}{width}{{{spec}}}", r"\toprule"]
-        lines.append(" & ".join(as_cell(h).latex for h in self.header) + r" \\")
+        spec = "".join(_WRAPPING[a] if a in _WRAPPING else a for a in align)
+        env = "tabularx" if any(a in _WRAPPING for a in align) else "tabular"
+        head = [" & ".join(as_cell(h).latex for h in self.header) + r" \\"]
         if self.units:
-            lines.append(" & ".join(f"\\footnotesize {as_cell(u).latex}" for u in self.units) + r" \\")
-        lines.append(r"\midrule")
-        for row in self.rows:
-            lines.append(" & ".join(as_cell(c).latex for c in row) + r" \\")
-        lines += [r"\bottomrule", f"\\end{{{env}}}"]
+            head.append(" & ".join(f"\\footnotesize {as_cell(u).latex}" for u in self.units) + r" \\")
+        body = [" & ".join(as_cell(c).latex for c in row) + r" \\" for row in self.rows]
+        wrapping = [a for a in align if a in _WRAPPING]
+        if len(self.rows) >= BREAKABLE_ROWS and wrapping in ([], ["X"], ["W", "N"]):  # what \tsbreakable sizes
+            return ("\\par\n\\tsbreakable{" + align + "}{\n" + "\n".join(head) + "}{\n" + "\n".join(body)
+                    + "}\n\\par\n")
+        width = "{\\linewidth}" if env == "tabularx" else ""
+        lines = [f"\\begin{{{env}}}{width}{{{spec}}}", r"\toprule", *head, r"\midrule", *body,
+                 r"\bottomrule", f"\\end{{{env}}}"]
         return "\\par\\noindent\n" + "\n".join(lines) + "\n\\par\n"
 
     def markdown(self) -> str:
