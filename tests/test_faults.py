@@ -86,7 +86,7 @@ def test_workers_and_kernels_die_with_a_killed_run(tmp_path):
         deadline = time.time() + 120
         while time.time() < deadline:
             seen |= descendants(run.pid)
-            kernels = [p for p in seen if alive(p) and b"ipykernel" in Path(f"/proc/{p}/cmdline").read_bytes()]
+            kernels = [p for p in seen if alive(p) and any(name in Path(f"/proc/{p}/cmdline").read_bytes() for name in (b"ipykernel", b"timbersheets.kernel"))]
             if len(kernels) >= 1 and len(seen) >= 3:
                 break
             time.sleep(0.2)

@@ -69,3 +69,35 @@ def test_a_started_kernel_runs_the_first_member(tmp_path):
     assert pipeline.execute(first, tmp_path / "a.ipynb", {"mark": "A-1"}, tmp_path) is None
     assert pipeline._Kernel.warming is None
     assert json.loads(printed(tmp_path / "a.ipynb").split("\n")[0]) == []
+
+
+@pytest.mark.pipeline
+def test_a_kernel_outlives_the_thread_that_launched_it(tmp_path, monkeypatch):
+    """The kernel is launched from a short-lived thread. It must end with the run, not with that
+    thread: Linux's parent-death signal follows the creating thread (prctl(2), PR_SET_PDEATHSIG), and
+    a kernel that asked for it was killed whenever the thread ended after the kernel had booted that
+    far, which under load made a run's first member wait 60 s and fail. Here the thread is held
+    until the kernel has surely booted."""
+    import time
+
+    pipeline._Kernel.shutdown()
+    manager = pipeline._kernel_manager_class()
+    launch = manager.start_kernel
+
+    def slow_launch(self, **kwargs):
+        launch(self, **kwargs)
+        time.sleep(3)
+
+    monkeypatch.setattr(manager, "start_kernel", slow_launch)
+    monkeypatch.setattr(pipeline._Kernel, "manager", manager)
+    pipeline.start_kernel(tmp_path)
+    pipeline._Kernel._join()
+    time.sleep(1)
+    try:
+        assert pipeline._Kernel.km.is_alive()
+        first = notebook(tmp_path / "first.ipynb", "print('ran')")
+        assert pipeline.execute(first, tmp_path / "a.ipynb", {"mark": "A-1"}, tmp_path) is None
+        assert printed(tmp_path / "a.ipynb").strip() == "ran"
+    finally:
+        pipeline._Kernel.shutdown()
+        monkeypatch.undo()

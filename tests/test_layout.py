@@ -29,7 +29,7 @@ FLOORS: dict[str, tuple[str, ...]] = {
     "engineering": ("member", "columns", "membertypes", "units", "loads", "materials", "sections", "analysis",
                     "beammodel", "beampattern", "beamdesign", "checks", "driver", "design", "sizing", "calc",
                     "data", "datum", "firmdata", "ownweight", "loadpath", "edition"),
-    "base": ("", "errors", "constants", "fileio", "lifetime"),
+    "base": ("", "errors", "constants", "fileio", "lifetime", "kernel"),
 }
 
 

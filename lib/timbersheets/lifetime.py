@@ -1,42 +1,38 @@
-"""Worker processes die with the run that started them.
+"""Worker processes and kernels die with the run that started them.
 
 A killed run must not leave workers (and, through them, notebook kernels) busy
-for minutes: each worker asks the kernel to kill it when its parent dies (Linux
-PR_SET_PDEATHSIG), and elsewhere a watcher thread ends it when its parent
-changes. Kernels already end themselves when their worker goes (ipykernel's
-parent poller, JPY_PARENT_PID).
+for minutes: each worker and each kernel runs a watcher thread that ends it as
+soon as its parent changes (the run is gone and it was re-parented).
+
+Linux's PR_SET_PDEATHSIG is not used: its "parent" is the thread that created the
+child, not the process, so a kernel launched from a short-lived thread (as the run
+does, to boot it while the members are designed) would be killed as soon as that
+thread finished.
 """
 
 from __future__ import annotations
 
-import ctypes
 import os
-import signal
-import sys
 import threading
 import time
 
-PR_SET_PDEATHSIG = 1  # linux/prctl.h
+POLL_SECONDS = 0.25
 
 
-def die_with_parent() -> None:
-    """Initializer of a worker process: end it when the process that started it ends."""
-    parent = os.getppid()
-    if sys.platform.startswith("linux"):
-        try:
-            libc = ctypes.CDLL(None, use_errno=True)
-            if libc.prctl(PR_SET_PDEATHSIG, signal.SIGKILL, 0, 0, 0) == 0:
-                if os.getppid() != parent:  # the parent died before the request took effect
-                    os._exit(1)
-                return
-        except (OSError, AttributeError):
-            pass
+def die_with_parent(parent: int | None = None) -> None:
+    """End this process when the process that started it ends.
+
+    `parent` is that process's pid when known (a process that may have been orphaned
+    before it got here); by default the present parent."""
+    parent = os.getppid() if parent is None else parent
+    if os.getppid() != parent:  # already orphaned
+        os._exit(1)
     threading.Thread(target=_watch, args=(parent,), daemon=True, name="die-with-parent").start()
 
 
 def _watch(parent: int) -> None:
     while os.getppid() == parent:
-        time.sleep(0.5)
+        time.sleep(POLL_SECONDS)
     os._exit(1)
 
 

@@ -100,6 +100,20 @@ WARM_UP = ("import timbersheets.sheets, timbersheets.units, handcalcs.handcalcs,
 ENGINE = "timbersheets"
 
 
+def _kernel_manager_class():
+    """KernelManager whose kernel is started through `timbersheets.kernel`, so it dies with this process."""
+    from jupyter_client import KernelManager
+
+    class DyingKernelManager(KernelManager):
+        def format_kernel_cmd(self, extra_arguments=None):
+            cmd = super().format_kernel_cmd(extra_arguments)
+            if "ipykernel_launcher" in cmd:
+                cmd[cmd.index("ipykernel_launcher")] = "timbersheets.kernel"
+            return cmd
+
+    return DyingKernelManager
+
+
 def start_kernel(cwd: Path | None = None) -> None:
     """Start this process's kernel in the background (see `_Kernel.start`); `execute` then uses it."""
     _Kernel.start("python3", str(cwd or os.getcwd()))
@@ -117,6 +131,7 @@ class _Kernel:
     kc = None
     cwd: str | None = None
     warming: str | None = None  # msg_id of the warm-up imports, until the kernel is first used
+    manager = None  # the KernelManager class (see _kernel_manager_class)
     starting = None  # the thread starting the kernel, until `get` joins it
     failed: BaseException | None = None  # what stopped that thread, raised by `get`
 
@@ -124,10 +139,15 @@ class _Kernel:
     def start(cls, kernel_name: str, cwd: str) -> None:
         """Start the kernel in a thread and queue the sheets' imports in it, without waiting.
 
-        Importing jupyter_client, finding the kernel and launching it take about a second of
-        this process, and the kernel then boots and imports (about 2 s) in its own: all of it
-        while this process goes on designing the members. The first `get` waits for what is left."""
+        Finding the kernel and launching it take about half a second of this process, and the
+        kernel then boots and imports (about 2 s) in its own: all of it while this process goes
+        on designing the members. The first `get` waits for what is left."""
         import threading
+
+        # Imported here, not in the thread: jupyter_client imported in two threads at once (the
+        # thread, and this one reaching papermill) fails half-initialised with an ImportError.
+        if cls.manager is None:
+            cls.manager = _kernel_manager_class()
 
         cls._join()
         if cls.km is not None and (cls.cwd != cwd or not cls.km.is_alive()):
@@ -141,9 +161,7 @@ class _Kernel:
     @classmethod
     def _launch(cls, kernel_name: str, cwd: str) -> None:
         try:
-            from jupyter_client import KernelManager
-
-            km = KernelManager(kernel_name=kernel_name)
+            km = cls.manager(kernel_name=kernel_name)
             km.start_kernel(cwd=cwd, extra_arguments=KERNEL_ARGS)
             cls.km = km
             cls.kc = km.client()

@@ -192,9 +192,10 @@ def run_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, flo
     return list(outcomes.values()), times
 
 
-def _start_worker() -> None:
-    """A pool worker: dies with its parent, and boots its kernel before its first batch arrives."""
-    die_with_parent()
+def _start_worker(run: int) -> None:
+    """A pool worker of the run with pid `run`: dies with it (at once if it is already gone), and
+    boots its kernel before its first batch arrives."""
+    die_with_parent(run)
     start_kernel()
 
 
@@ -292,7 +293,8 @@ def _share_batches(pending: deque, workers: int, collect) -> None:
         future.add_done_callback(lambda f: (done.put((batch, f)), feed(pool)))
 
     context = multiprocessing.get_context("spawn")
-    with ProcessPoolExecutor(max_workers=workers, mp_context=context, initializer=_start_worker) as pool:
+    with ProcessPoolExecutor(max_workers=workers, mp_context=context, initializer=_start_worker,
+                             initargs=(os.getpid(),)) as pool:
         for _ in range(workers):
             feed(pool)
         collected = 0
