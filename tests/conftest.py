@@ -10,9 +10,9 @@ from pathlib import Path
 
 import pytest
 
-from timbersheets.data import DataSet
-from timbersheets.sizing import design_sized
-from timbersheets.schedule import load_schedule
+from timbersheets.engineering.data import DataSet
+from timbersheets.engineering.sizing import design_sized
+from timbersheets.schedule.read import load_schedule
 
 REPO = Path(__file__).resolve().parent.parent
 
@@ -35,7 +35,7 @@ def demo_run(tmp_path_factory):
     """One full run of the demo job (notebooks, sheets, package), shared by the pipeline tests."""
     import json
 
-    from timbersheets.runner import RunOptions, run_job
+    from timbersheets.run.runner import RunOptions, run_job
 
     root = tmp_path_factory.mktemp("demo")
     job = root / "kestrel-cove-boathouse"

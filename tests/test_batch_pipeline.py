@@ -19,7 +19,7 @@ from pypdf import PdfReader
 
 from conftest import member_row, write_job
 from timbersheets.cli import main
-from timbersheets.runner import RunOptions, run_job
+from timbersheets.run.runner import RunOptions, run_job
 
 pytestmark = pytest.mark.pipeline
 
@@ -97,7 +97,7 @@ def test_a_new_revision_with_one_change_typesets_one_body_and_restamps_all(batch
     rows = [dict(r) for r in ROWS]
     rows[1]["P_L"] = "9"
     write_job(job, rows, revision="B")
-    monkeypatch.setattr("timbersheets.batch.STAMP_SHARE", 1)  # the re-stamping shared by two xelatex runs
+    monkeypatch.setattr("timbersheets.build.batch.STAMP_SHARE", 1)  # the re-stamping shared by two xelatex runs
     second = run_job(job, RunOptions(out=out, progress=False, jobs=2))
     assert second.executed == ["BA-2"] and second.converted == ["BA-2"]
     assert sorted(second.stamped) == ["BA-1", "BA-2", "BA-3", "BA-4"]
@@ -119,7 +119,7 @@ def test_a_new_revision_with_one_change_typesets_one_body_and_restamps_all(batch
 def test_a_sheet_that_cannot_be_typeset_leaves_the_batch_standing(tmp_path, monkeypatch):
     import nbformat
 
-    from timbersheets.pipeline import templates_dir
+    from timbersheets.build.notebooks import templates_dir
 
     templates = tmp_path / "templates"
     shutil.copytree(templates_dir(), templates)
@@ -145,7 +145,7 @@ def test_a_notebook_that_fails_leaves_the_other_sheets_standing_on_two_workers(t
     its notebook with the error marked, and its sheet says it is incomplete."""
     import nbformat
 
-    from timbersheets.pipeline import templates_dir
+    from timbersheets.build.notebooks import templates_dir
 
     templates = tmp_path / "templates"
     shutil.copytree(templates_dir(), templates)

@@ -11,8 +11,8 @@ from __future__ import annotations
 
 import pytest
 
-from timbersheets.beammodel import Geometry
-from timbersheets.beampattern import BeamModel, deflection_targets, strength_targets
+from timbersheets.engineering.beammodel import Geometry
+from timbersheets.engineering.beampattern import BeamModel, deflection_targets, strength_targets
 
 W = 2.0  # N/mm (2 kN/m)
 P = 10_000.0  # N
@@ -144,7 +144,7 @@ def test_shear_is_taken_at_d_from_the_supports():
 
 def test_one_member_analysis_is_cached_for_sizing():
     # common practice: M, V and R of a prismatic beam do not depend on EI; one analysis serves every candidate
-    from timbersheets.beammodel import region_responses
+    from timbersheets.engineering.beammodel import region_responses
 
     g, loads = Geometry((L, L)), (("udl", W, 0.0, 2 * L),)
     region_responses.cache_clear()

@@ -12,8 +12,8 @@ import sys
 
 import numpy as np
 
-from timbersheets import beammodel
-from timbersheets.beammodel import Geometry
+from timbersheets.engineering import beammodel
+from timbersheets.engineering.beammodel import Geometry
 
 TWO_SPANS = Geometry((3600.0, 4200.0), right=900.0)
 LOADS = (("udl", 2.5, 0.0, 8700.0), ("point", 6000.0, 5100.0))

@@ -17,7 +17,7 @@ def bench():
 def test_naive_loop_samples_the_member_mix(tmp_path):
     b = bench()
     job = b.build_job(tmp_path, 100)
-    from timbersheets.schedule import load_schedule
+    from timbersheets.schedule.read import load_schedule
 
     members = load_schedule(job / "schedule.csv").members
     chosen = b.sample(members, b.NAIVE_SAMPLE)

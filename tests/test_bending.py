@@ -15,10 +15,10 @@ from hypothesis import strategies as st
 
 from conftest import design_row, write_schedule
 
-from timbersheets.analysis import sls_deflection
-from timbersheets.checks.bending import bending_strength, sawn_bending
-from timbersheets.checks.shear import sawn_shear
-from timbersheets.schedule import load_schedule
+from timbersheets.engineering.analysis import sls_deflection
+from timbersheets.engineering.checks.bending import bending_strength, sawn_bending
+from timbersheets.engineering.checks.shear import sawn_shear
+from timbersheets.schedule.read import load_schedule
 
 SETTINGS = settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
 

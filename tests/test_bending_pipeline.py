@@ -11,7 +11,7 @@ from pypdf import PdfReader
 
 from conftest import write_job
 from test_pipeline import on_sheet, pdf_text, table_rows
-from timbersheets.runner import RunOptions, run_job
+from timbersheets.run.runner import RunOptions, run_job
 
 pytestmark = pytest.mark.pipeline
 

@@ -9,9 +9,9 @@ from __future__ import annotations
 import pytest
 
 from conftest import design_row, member_row, write_schedule
-from timbersheets.tex import escape
-from timbersheets.schedule import load_schedule
-from timbersheets.sheets import Sheet
+from timbersheets.schedule.read import load_schedule
+from timbersheets.sheet.sections import Sheet
+from timbersheets.sheet.tex import escape
 
 CODES = {"nbc": "2020", "o86": "2019"}
 PURLIN = dict(type="bending", material="sawn", species="S-P-F", grade="No.1/No.2", size="38x184", K_H="1.1",
@@ -282,13 +282,13 @@ def test_column_end_bearing_on_a_sawn_sill_hand_calculation(tmp_path, data):
     assert d.member.bears_on == "sawn S-P-F No.1"
     c = next(c for c in d.checks if c.check == "bearing" and c.combination == "1.25D + 1.5L")
     assert c.demand == pytest.approx(57.5) and c.resistance == pytest.approx(113.4, abs=0.05)
-    from timbersheets.results import member_json
+    from timbersheets.job.results import member_json
 
     assert not any("bearing on the support" in w for w in member_json(d)["warnings"])
 
 
 def test_blank_bears_on_warns_in_results_and_on_the_sheet(tmp_path, data):
-    from timbersheets.results import member_json
+    from timbersheets.job.results import member_json
 
     d = design_row(tmp_path, data, **POST)
     assert not [c for c in d.checks if c.check == "bearing"]
@@ -326,7 +326,7 @@ def test_storage_companion_and_long_term_kd(data):
     #   1.25D + 1.5L: long-term → K_D = 0.65 (general: 1.0)
     #   1.25D + 1.4W + 1.0L: P_f = 6.25 + 4.2 + 8.0 = 18.45 kN (general 0.5L: 14.45 kN); K_D 1.15 (W principal)
     #   1.25D + 1.5S + 1.0L: X_lt = 5 + 8 = 13 > X_st = 2: K_D = 1 − 0.5·log10(13/2) = 0.594 → 0.65 (floor)
-    from timbersheets.loads import Effects, apply_combinations
+    from timbersheets.engineering.loads import Effects, apply_combinations
 
     effects = Effects({"P": {"D": 5000.0, "L": 8000.0, "S": 2000.0, "W": 3000.0, "E": 0.0}})
     storage = {c.label: c for c in apply_combinations(effects, data, [], storage=True)}

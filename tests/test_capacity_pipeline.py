@@ -9,7 +9,7 @@ import pytest
 
 from conftest import write_job
 from test_pipeline import pdf_text
-from timbersheets.runner import RunOptions, run_job
+from timbersheets.run.runner import RunOptions, run_job
 
 pytestmark = pytest.mark.pipeline
 

@@ -4,7 +4,7 @@ import io
 
 import pytest
 
-from timbersheets.charts import utilization_chart
+from timbersheets.sheet.charts import utilization_chart
 
 
 def members(n, bad=()):

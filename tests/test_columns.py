@@ -2,8 +2,8 @@
 
 from pathlib import Path
 
-from timbersheets.columnref import markdown
-from timbersheets.schedule import COLUMNS
+from timbersheets.schedule.columnref import markdown
+from timbersheets.schedule.read import COLUMNS
 
 REPO = Path(__file__).resolve().parent.parent
 

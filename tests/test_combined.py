@@ -13,12 +13,12 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from conftest import design_row, write_schedule
-from timbersheets.checks.combined import beam_column, euler_load
-from timbersheets.design import design_member
-from timbersheets.sizing import design_sized
-from timbersheets.membertypes import member_types
-from timbersheets.schedule import load_schedule
-from timbersheets.sizing import catalogue
+from timbersheets.engineering.checks.combined import beam_column, euler_load
+from timbersheets.engineering.design import design_member
+from timbersheets.engineering.membertypes import member_types
+from timbersheets.engineering.sizing import design_sized
+from timbersheets.engineering.sizing import catalogue
+from timbersheets.schedule.read import load_schedule
 
 STUD = dict(type="beam-column", material="sawn", species="S-P-F", grade="No.1/No.2", size="38x140", K_H="1.1",
             length="3.0", Ly="0", Lu="3.0", P_D="2.2", P_L="1.8", P_S="3.9", w_W="0.47")

@@ -11,7 +11,7 @@ from pathlib import Path
 import pytest
 
 from corpus import GOOD, HEADER, all_cases, csv_text, run_case
-from timbersheets.schedule import load_schedule
+from timbersheets.schedule.read import load_schedule
 
 pytestmark = pytest.mark.corpus  # make test runs it; make check leaves it out to stay fast
 

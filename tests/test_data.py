@@ -6,7 +6,7 @@ Each case names its source; where the only source is memory, the test says so
 
 import pytest
 
-from timbersheets.data import UNVERIFIED
+from timbersheets.engineering.data import UNVERIFIED
 
 # (species, grade, category, property, expected MPa, source)
 SAWN = [
@@ -79,7 +79,7 @@ def test_every_row_has_provenance(data):
 
 
 def test_firm_file_wins(tmp_path):
-    from timbersheets.data import DataSet
+    from timbersheets.engineering.data import DataSet
 
     firm = tmp_path / "firm.csv"
     firm.write_text("material,species,grade,category,property,value,unit,edition,table,source,status,verified_by,"

@@ -16,11 +16,11 @@ from importlib import resources
 
 import pytest
 
-import timbersheets.data as data_module
-from timbersheets import columns, edition
-from timbersheets.data import BUILTIN_FILES, TABLES, DataSet, informative
-from timbersheets.loadpath import design_all
-from timbersheets.schedule import load_schedule
+import timbersheets.engineering.data as data_module
+from timbersheets.engineering import columns, edition
+from timbersheets.engineering.data import BUILTIN_FILES, TABLES, DataSet, informative
+from timbersheets.engineering.loadpath import design_all
+from timbersheets.schedule.read import load_schedule
 
 from conftest import DEMO, write_schedule
 

@@ -33,7 +33,7 @@ def test_doctor_without_tex_says_how_to_get_it_and_offers_html():
 
 
 def test_doctor_checks_every_package_the_layouts_load():
-    from timbersheets.doctor import layout_packages
+    from timbersheets.build.doctor import layout_packages
 
     names = layout_packages(REPO / "templates")
     # read from the layouts themselves, so a package added to a layout is checked too

@@ -14,13 +14,13 @@ from pathlib import Path
 import pytest
 
 from conftest import design_row, member_row, write_schedule
-from timbersheets.checks import Checked
-from timbersheets.data import DataSet, Datum
-from timbersheets.design import build_context, load_cases
-from timbersheets.driver import run_checks
-from timbersheets.membertypes import member_type
-from timbersheets.schedule import load_schedule
-from timbersheets.sheets import Sheet
+from timbersheets.engineering.checks import Checked
+from timbersheets.engineering.data import DataSet, Datum
+from timbersheets.engineering.design import build_context, load_cases
+from timbersheets.engineering.driver import run_checks
+from timbersheets.engineering.membertypes import member_type
+from timbersheets.schedule.read import load_schedule
+from timbersheets.sheet.sections import Sheet
 
 REPO = Path(__file__).resolve().parent.parent
 CODES = {"nbc": "2020", "o86": "2019"}
@@ -134,7 +134,7 @@ def test_the_unverified_list_of_a_demo_member_is_what_its_checks_use(data):
     # T-1 (D.Fir-L 18t-E, wet) therefore uses f_tn, f_tg, K_St (wet), φ tension, and the density of its own
     # weight; its combinations are 1.4D and 1.25D + 1.5S (P_D and P_S only), each with its K_D class.
     demo = load_schedule(REPO / "calcsheets" / "kestrel-cove-boathouse" / "schedule.csv")
-    from timbersheets.design import design_member
+    from timbersheets.engineering.design import design_member
 
     t1 = design_member(next(m for m in demo.members if m.mark == "T-1"), data)
     expected = [data.density("glulam", "D.Fir-L", "wet"), data.service_factor("glulam", "all", "K_St", "wet"),

@@ -5,8 +5,8 @@ from __future__ import annotations
 
 import pytest
 
-from timbersheets.analysis import member_forces, span_diagram, udl_moment, udl_reaction, udl_shear
-from timbersheets.checks.bearing import check_bearing
+from timbersheets.engineering.analysis import member_forces, span_diagram, udl_moment, udl_reaction, udl_shear
+from timbersheets.engineering.checks.bearing import check_bearing
 
 from conftest import design_row
 

@@ -10,7 +10,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from timbersheets.tex import _DROP, _LATEX, _NATIVE, _SPACE, _covered_by_fallback, escape
+from timbersheets.sheet.tex import _DROP, _LATEX, _NATIVE, _SPACE, _covered_by_fallback, escape
 
 pytestmark = pytest.mark.pipeline  # runs xelatex
 SHEET = Path(__file__).resolve().parent.parent / "templates" / "latex" / "sheet" / "preamble.tex.j2"  # the font set-up

@@ -11,7 +11,7 @@ from pathlib import Path
 import pytest
 
 from conftest import member_row, write_job
-from timbersheets.runner import run_job
+from timbersheets.run.runner import run_job
 
 LIB = Path(__file__).resolve().parent.parent / "lib"
 DEAD_PID = 4_194_304  # never a process id: Linux pid_max is at most 2**22, ids are below it

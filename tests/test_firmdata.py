@@ -17,12 +17,12 @@ import pytest
 
 from conftest import DEMO, member_row, write_job
 from timbersheets.cli import main
-from timbersheets.data import BUILTIN_FILES, TABLES, DataSet
-from timbersheets.datacheck import all_items, compare, firm_rows, job_designs, used_items
+from timbersheets.engineering.data import BUILTIN_FILES, TABLES, DataSet
+from timbersheets.engineering.firmdata import HEADER
 from timbersheets.errors import JobError
-from timbersheets.firmdata import HEADER
-from timbersheets.project import load_project
-from timbersheets.sheets import Sheet
+from timbersheets.job.datacheck import all_items, compare, firm_rows, job_designs, used_items
+from timbersheets.job.project import load_project
+from timbersheets.sheet.sections import Sheet
 
 NOT_FIRM_TABLES = {"sizes_sawn.csv", "sizes_glulam.csv", "glulam_laminations.csv"}  # catalogues, not O86 values
 FIRM_LINE = "[data]\nmaterials = \"firm.csv\"\n"

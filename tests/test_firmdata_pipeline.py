@@ -14,10 +14,10 @@ import pytest
 
 from conftest import REPO, readme_commands
 from test_firmdata import firm_csv, tension_job, verified
-from timbersheets.datacheck import firm_rows, job_designs, used_items
-from timbersheets.datasheet import write_sheet
-from timbersheets.project import load_project
-from timbersheets.runner import RunOptions, run_job
+from timbersheets.build.datasheet import write_sheet
+from timbersheets.job.datacheck import firm_rows, job_designs, used_items
+from timbersheets.job.project import load_project
+from timbersheets.run.runner import RunOptions, run_job
 
 pytestmark = pytest.mark.pipeline
 

@@ -11,13 +11,13 @@ import nbformat
 import pytest
 
 from conftest import DEMO, write_job
-from timbersheets.data import DataSet
-from timbersheets.sizing import design_sized
-from timbersheets.htmlsheet import Converter, sheet_html
-from timbersheets.project import load_project
-from timbersheets.runner import RunOptions, run_job, titleblock
-from timbersheets.schedule import load_schedule
-from timbersheets.sheets import Sheet
+from timbersheets.engineering.data import DataSet
+from timbersheets.engineering.sizing import design_sized
+from timbersheets.job.project import load_project
+from timbersheets.run.runner import RunOptions, run_job, titleblock
+from timbersheets.schedule.read import load_schedule
+from timbersheets.sheet.htmlsheet import Converter, sheet_html
+from timbersheets.sheet.sections import Sheet
 
 SECTIONS = ("member_section", "sizing_section", "loads_section", "combinations_section", "factors_section",
             "checks_section", "summary_section", "cautions")
@@ -107,7 +107,7 @@ def test_html_index_lists_every_member_offline(tmp_path):
     import json
 
     from conftest import member_row
-    from timbersheets.htmlindex import index_html
+    from timbersheets.build.htmlindex import index_html
 
     # A 38x89 stud of 3 m under 60 kN dead load is far over its capacity (hand calculation:
     # A = 38 x 89 = 3382 mm², 60 kN / 3382 mm² = 17.7 MPa, against f_c K_D = 11.5 x 0.65 = 7.5 MPa
@@ -139,7 +139,7 @@ def test_a_failed_cell_marks_the_html_sheet_incomplete():
 def test_a_long_table_that_breaks_across_pages_reads_as_one_table():
     # A table of BREAKABLE_ROWS rows or more is \tsbreakable in the PDF; the HTML shows one table,
     # its header once and every row (20 rows written, hand count: 20 body rows plus the header).
-    from timbersheets.tex import BREAKABLE_ROWS, Table
+    from timbersheets.sheet.tex import BREAKABLE_ROWS, Table
 
     rows = [[f"1.{k}D", f"{k}.5", f"0.{k:03d}"] for k in range(20)]
     latex = Table(["Combination", "Moment", "Utilization"], rows, "lrr", ["", "kN·m", ""]).latex()

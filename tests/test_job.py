@@ -2,8 +2,8 @@
 
 from conftest import member_row, write_job
 from timbersheets.cli import main
-from timbersheets.job import load_job
-from timbersheets.runner import RunOptions, run_job
+from timbersheets.job.load import load_job
+from timbersheets.run.runner import RunOptions, run_job
 
 BEAM = member_row("B-1", type="bending", Ly="", P_D="", length="4.0", Lu="0", w_D="2.0", w_L="6.0")
 POST = member_row("C-9", size="auto", material="glulam", species="Spruce-Pine", grade="12c-E", P_D="5",

@@ -9,8 +9,8 @@ import pytest
 from conftest import member_row, write_job
 from timbersheets.cli import main
 from timbersheets.errors import JobError
-from timbersheets.project import load_project
-from timbersheets.runner import run_job
+from timbersheets.job.project import load_project
+from timbersheets.run.runner import run_job
 
 PROJECT = '[project]\ntitle = "T"\nrevision = "{rev}"\n'
 
@@ -94,8 +94,8 @@ def test_outputs_follow_the_umask_and_copies_keep_their_mode(tmp_path):
 def test_sizing_search_is_bounded_by_the_standard_catalogue(tmp_path, data):
     """A max_depth beyond any glulam does not grow the search: it ends at the standard depth."""
     from conftest import write_schedule
-    from timbersheets.sizing import design_sized
-    from timbersheets.schedule import load_schedule
+    from timbersheets.engineering.sizing import design_sized
+    from timbersheets.schedule.read import load_schedule
 
     row = member_row("S-1", type="bending", material="glulam", species="D.Fir-L", grade="24f-E", size="auto",
                      length="6", Ly="", P_D="", w_D="2", w_L="3", Lu="0")

@@ -8,7 +8,7 @@ import json
 import pytest
 
 from conftest import member_row, write_job
-from timbersheets.runner import RunOptions, run_job
+from timbersheets.run.runner import RunOptions, run_job
 
 pytestmark = pytest.mark.pipeline
 

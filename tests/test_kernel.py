@@ -13,7 +13,7 @@ import sys
 import nbformat
 import pytest
 
-from timbersheets import pipeline
+from timbersheets.build import notebooks as pipeline
 
 
 def notebook(path, *cells):

@@ -20,15 +20,12 @@ PACKAGE = "timbersheets"
 #: package (then every module in it), relative to `timbersheets`; "" is the package's own __init__.
 FLOORS: dict[str, tuple[str, ...]] = {
     "cli": ("cli",),
-    "run": ("runner", "whatif", "keep"),
-    "build": ("pipeline", "typeset", "batch", "sheetjobs", "package", "htmlindex", "doctor", "datasheet"),
-    "sheet": ("sheets", "blocks", "beamsheet", "modelsheet", "tex", "diagrams", "charts", "htmlsheet",
-              "cautions", "symbols"),
-    "job": ("project", "revisions", "review", "results", "job", "datacheck"),
-    "schedule": ("schedule", "columnref", "csvtext", "rowrules", "beamloads", "labels"),
-    "engineering": ("member", "columns", "membertypes", "units", "loads", "materials", "sections", "analysis",
-                    "beammodel", "beampattern", "beamdesign", "checks", "driver", "design", "sizing", "calc",
-                    "data", "datum", "firmdata", "ownweight", "loadpath", "edition"),
+    "run": ("run",),
+    "build": ("build",),
+    "sheet": ("sheet",),
+    "job": ("job",),
+    "schedule": ("schedule",),
+    "engineering": ("engineering",),
     "base": ("", "errors", "constants", "fileio", "lifetime", "kernel"),
 }
 

@@ -8,10 +8,10 @@ import json
 import pytest
 
 from conftest import write_job, write_schedule
-from timbersheets.loadpath import design_all
-from timbersheets.revisions import diff, format_diff
-from timbersheets.runner import run_job
-from timbersheets.schedule import load_schedule
+from timbersheets.engineering.loadpath import design_all
+from timbersheets.job.revisions import diff, format_diff
+from timbersheets.run.runner import run_job
+from timbersheets.schedule.read import load_schedule
 
 # The hand calculations take the dead loads as given (own weight included): self_weight = no.
 JOIST = {"type": "bending", "material": "sawn", "species": "S-P-F", "grade": "No.1/No.2", "size": "38x235",
@@ -173,7 +173,7 @@ def test_beam_model_refuses_frame_forces_as_well(tmp_path, data):
 
 
 def test_review_turns_stale_when_carried_loads_change(tmp_path):
-    from timbersheets.review import Review, append_reviews
+    from timbersheets.job.review import Review, append_reviews
 
     job = write_job(tmp_path / "job", CHAIN)
     run_job(job, out=tmp_path / "out", sheets=False)
@@ -189,7 +189,7 @@ def test_review_turns_stale_when_carried_loads_change(tmp_path):
 
 
 def test_what_if_scales_point_loads_and_follows_the_path(tmp_path):
-    from timbersheets.whatif import what_if
+    from timbersheets.run.whatif import what_if
 
     rows = [*CHAIN, {"mark": "H-1", **JOIST, "plies": "2", "length": "2.4", "w_D": "0.5", "point_S": "6@1.2"}]
     job = write_job(tmp_path / "job", rows)
@@ -227,8 +227,8 @@ def test_purlins_hold_the_top_edge_only(tmp_path, data):
 
 def test_package_change_list_names_the_cause():
     # the package's "changes since" table carries the same cause as the diff
-    from timbersheets.package import change_rows
-    from timbersheets.revisions import MemberChange
+    from timbersheets.build.package import change_rows
+    from timbersheets.job.revisions import MemberChange
 
     change = MemberChange("G-1", "changed", inputs=[("carried", "RB-1.R2: S 9 kN", "RB-1.R2: S 10.8 kN")],
                           because=["RB-1"])

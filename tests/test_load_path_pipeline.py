@@ -8,7 +8,7 @@ import pytest
 from conftest import write_job
 from test_load_path import CHAIN
 from test_pipeline import pdf_text
-from timbersheets.runner import run_job
+from timbersheets.run.runner import run_job
 
 pytestmark = pytest.mark.pipeline
 

@@ -4,7 +4,7 @@ import math
 
 import pytest
 
-from timbersheets.loads import Effects, apply_combinations, combinations, kd_permanent
+from timbersheets.engineering.loads import Effects, apply_combinations, combinations, kd_permanent
 
 
 @pytest.mark.parametrize("ratio,expected", [

@@ -8,10 +8,10 @@ from pathlib import Path
 import pytest
 
 from conftest import member_row, write_schedule
-from timbersheets.sizing import design_sized
-from timbersheets.membertypes import MemberType, member_types
-from timbersheets.schedule import load_schedule
-from timbersheets.sheets import Sheet
+from timbersheets.engineering.membertypes import MemberType, member_types
+from timbersheets.engineering.sizing import design_sized
+from timbersheets.schedule.read import load_schedule
+from timbersheets.sheet.sections import Sheet
 
 REPO = Path(__file__).resolve().parent.parent
 

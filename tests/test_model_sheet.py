@@ -6,9 +6,9 @@ from __future__ import annotations
 from importlib.metadata import version
 
 from conftest import write_schedule
-from timbersheets.loadpath import design_all
-from timbersheets.schedule import load_schedule
-from timbersheets.sheets import Sheet
+from timbersheets.engineering.loadpath import design_all
+from timbersheets.schedule.read import load_schedule
+from timbersheets.sheet.sections import Sheet
 
 ROWS = [
     {"mark": "RB-1", "type": "bending", "material": "glulam", "species": "D.Fir-L", "grade": "24f-E",

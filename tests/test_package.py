@@ -11,11 +11,11 @@ from pathlib import Path
 import pytest
 
 from conftest import member_row, write_job
-from timbersheets.data import DataSet
-from timbersheets.package import package_tex
-from timbersheets.typeset import typeset
-from timbersheets.project import PROJECT_TEMPLATE, load_project
-from timbersheets.runner import RunOptions, run_job
+from timbersheets.build.package import package_tex
+from timbersheets.build.typeset import typeset
+from timbersheets.engineering.data import DataSet
+from timbersheets.job.project import PROJECT_TEMPLATE, load_project
+from timbersheets.run.runner import RunOptions, run_job
 
 LONG_NOTE = ("Clubroom floor girder across the boat bay (wet service), on columns C-1; floor joists in "
              "top-flange hangers hold the top edge; the clubroom partition above bears on it at midspan "

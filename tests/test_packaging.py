@@ -82,7 +82,7 @@ def test_every_library_package_is_listed():
 
 
 def test_importing_the_library_builds_no_unit_registry():
-    code = ("import timbersheets.schedule, timbersheets.units as u; a = u.registry.cache_info().currsize; "
+    code = ("import timbersheets.schedule.read, timbersheets.engineering.units as u; a = u.registry.cache_info().currsize; "
             "u.convert(1.0, 'm', 'mm'); print(a, u.registry.cache_info().currsize)")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout
     assert out.split() == ["0", "1"]
@@ -98,7 +98,7 @@ def test_a_wheel_installed_elsewhere_builds_a_sheet(tmp_path):
     subprocess.run([sys.executable, "-m", "pip", "install", "-q", "--no-deps", "--target", str(site), str(wheel)],
                    check=True)
     env = {k: v for k, v in os.environ.items() if k != "TIMBERSHEETS_TEMPLATES"} | {"PYTHONPATH": str(site)}
-    where = subprocess.run([sys.executable, "-c", "from timbersheets.pipeline import templates_dir; "
+    where = subprocess.run([sys.executable, "-c", "from timbersheets.build.notebooks import templates_dir; "
                             "print(templates_dir())"], cwd=elsewhere, env=env, capture_output=True, text=True,
                            check=True).stdout.strip()
     assert Path(where) == site / "timbersheets" / "templates"

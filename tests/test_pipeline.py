@@ -14,7 +14,7 @@ from pypdf import PdfReader
 
 from conftest import DEMO, member_row, write_job
 from timbersheets.errors import ParameterError
-from timbersheets.runner import RunOptions, run_job
+from timbersheets.run.runner import RunOptions, run_job
 
 pytestmark = pytest.mark.pipeline
 
@@ -114,7 +114,7 @@ def test_package_pages_bookmarks_and_index(demo_run):
 
 
 def test_latex_in_user_text_prints_literally(tmp_path):
-    from timbersheets.tex import _covered_by_fallback
+    from timbersheets.sheet.tex import _covered_by_fallback
 
     note = r"\input{/etc/passwd} 100% & #1_a $x$ ~^ ✓ ᐃᖃᓗᐃᑦ 😀"
     job = write_job(tmp_path / "esc", [member_row("E-1", note=note)],
@@ -154,7 +154,7 @@ def test_cache_reexecutes_only_what_changed(tmp_path):
 def test_a_failing_template_affects_only_its_member(tmp_path, monkeypatch):
     import nbformat
 
-    from timbersheets.pipeline import templates_dir
+    from timbersheets.build.notebooks import templates_dir
 
     templates = tmp_path / "templates"
     shutil.copytree(templates_dir(), templates)
@@ -182,8 +182,8 @@ def test_a_failing_template_affects_only_its_member(tmp_path, monkeypatch):
 
 
 def test_unknown_or_missing_parameters_are_refused(tmp_path):
-    from timbersheets.pipeline import check_parameters, templates_dir
-    from timbersheets.schedule import Member
+    from timbersheets.build.notebooks import check_parameters, templates_dir
+    from timbersheets.schedule.read import Member
 
     template = templates_dir() / "axial.ipynb"
     with pytest.raises(ParameterError, match="unknown .*membr"):
@@ -207,13 +207,13 @@ def test_templates_run_top_to_bottom_with_their_defaults(tmp_path):
     """What `make lab` promises: each template, run as it is, shows its default member's sheet."""
     import papermill
 
-    from timbersheets.data import DataSet
-    from timbersheets.sizing import design_sized
-    from timbersheets.membertypes import member_types
-    from timbersheets.pipeline import templates_dir
-    from timbersheets.results import member_json
-    from timbersheets.schedule import load_schedule
-    from timbersheets.sheetjobs import read_record
+    from timbersheets.engineering.data import DataSet
+    from timbersheets.engineering.sizing import design_sized
+    from timbersheets.engineering.membertypes import member_types
+    from timbersheets.build.notebooks import templates_dir
+    from timbersheets.job.results import member_json
+    from timbersheets.schedule.read import load_schedule
+    from timbersheets.build.sheetjobs import read_record
 
     demo = {m.mark: m for m in load_schedule(DEMO / "schedule.csv").members}
     for name in sorted({t.template for t in member_types().values()}):
@@ -265,7 +265,7 @@ OVER_LIMIT = {"axial": 5, "bending": 8, "combined": 7}
     pytest.param(r, marks=pytest.mark.xfail(strict=True, reason=f"sheets still take up to {OVER_LIMIT[r]} pages"))
     if r in OVER_LIMIT else r for r in PAGE_LIMITS])
 def test_sheets_keep_within_the_pages_a_checker_reads(demo_run, routine):
-    from timbersheets.membertypes import member_type
+    from timbersheets.engineering.membertypes import member_type
 
     report, results = demo_run
     pages = {m["mark"]: len(PdfReader(str(report.outdir / "sheets" / f"{m['mark']}.pdf")).pages)

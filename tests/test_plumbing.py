@@ -4,11 +4,11 @@ import ast
 from pathlib import Path
 
 from conftest import member_row, write_job
-from timbersheets import driver
 from timbersheets.cli import main
 from timbersheets.constants import CAUTION, SHORT_CAUTION
+from timbersheets.engineering import driver
 from timbersheets.errors import DataError, ExitCode, JobError, ScheduleError, UsageError
-from timbersheets.runner import RunOptions, run_job
+from timbersheets.run.runner import RunOptions, run_job
 
 REPO = Path(__file__).resolve().parent.parent
 

@@ -7,9 +7,9 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from timbersheets.checks.compression import sawn_compression_x
-from timbersheets.checks.tension import glulam_tension, sawn_tension
-from timbersheets.loads import Effects, apply_combinations
+from timbersheets.engineering.checks.compression import sawn_compression_x
+from timbersheets.engineering.checks.tension import glulam_tension, sawn_tension
+from timbersheets.engineering.loads import Effects, apply_combinations
 
 SETTINGS = settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
 loads = st.floats(min_value=0.0, max_value=500.0, allow_nan=False)

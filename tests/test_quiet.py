@@ -20,7 +20,7 @@ def test_license_is_an_spdx_string_for_setuptools_77():
 
 
 def test_chart_without_designed_members_draws_without_warnings():
-    from timbersheets.charts import utilization_chart
+    from timbersheets.sheet.charts import utilization_chart
 
     errored = [{"mark": "X-1", "utilization": None, "status": "error"}]
     with warnings.catch_warnings():
@@ -30,8 +30,8 @@ def test_chart_without_designed_members_draws_without_warnings():
 
 
 def test_unloaded_span_diagram_draws_without_warnings():
-    from timbersheets.analysis import span_diagram
-    from timbersheets.diagrams import shear_moment_png
+    from timbersheets.engineering.analysis import span_diagram
+    from timbersheets.sheet.diagrams import shear_moment_png
 
     with warnings.catch_warnings():
         warnings.simplefilter("error")  # "Attempting to set identical low and high ylims"

@@ -5,8 +5,8 @@ import pytest
 
 from conftest import member_row, write_job
 from timbersheets.errors import JobError
-from timbersheets.runner import run_job
-from timbersheets.schedule import load_schedule
+from timbersheets.run.runner import run_job
+from timbersheets.schedule.read import load_schedule
 
 HEAD = "mark,type,material,species,grade,size,length,Ly,P_D,note\n"
 ROW = "{mark},compression,sawn,S-P-F,No.1/No.2,38x140,3.0,0,5,{note}\n"
@@ -144,7 +144,7 @@ def test_a_non_finite_result_makes_the_member_an_error(tmp_path, data):
     import dataclasses
 
     from conftest import design_row
-    from timbersheets.design import refuse_non_finite
+    from timbersheets.engineering.design import refuse_non_finite
     from timbersheets.errors import DesignError
 
     d = design_row(tmp_path, data, mark="C-1")

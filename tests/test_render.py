@@ -14,8 +14,8 @@ import re
 import pytest
 
 import timbersheets
-from timbersheets.calc import Calc
-from timbersheets.checks import Step
+from timbersheets.engineering.calc import Calc
+from timbersheets.engineering.checks import Step
 
 
 def all_calcs() -> list[Calc]:

@@ -9,12 +9,12 @@ import subprocess
 import pytest
 
 from conftest import member_row, write_job
+from timbersheets.build.package import package_tex
 from timbersheets.cli import main
-from timbersheets.data import DataSet
-from timbersheets.package import package_tex
-from timbersheets.project import load_project
-from timbersheets.review import count_text
-from timbersheets.runner import RunOptions, run_job
+from timbersheets.engineering.data import DataSet
+from timbersheets.job.project import load_project
+from timbersheets.job.review import count_text
+from timbersheets.run.runner import RunOptions, run_job
 
 # P_D = 500 kN on a 38x140 S-P-F stud fails by far (its resistance is a few kN): common practice.
 ROWS = [member_row("OK-1"), member_row("OK-2"), member_row("BIG", P_D="500"), member_row("BAD", grade="No.7")]
@@ -82,7 +82,7 @@ def test_the_checkers_comment_is_on_the_sheet(tmp_path):
 def test_the_checkers_comment_is_on_the_html_sheet():
     import nbformat
 
-    from timbersheets.htmlsheet import sheet_html
+    from timbersheets.sheet.htmlsheet import sheet_html
 
     block = {"mark": "C-1", "checked": "RD 2026-12-02 (revise)",
              "review_comment": "RD, 2026-12-02, revise: Confirm the post base detail"}

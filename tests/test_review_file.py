@@ -9,7 +9,7 @@ from pathlib import Path
 
 import pytest
 
-from timbersheets.review import Review, append_reviews, latest, load_review_file
+from timbersheets.job.review import Review, append_reviews, latest, load_review_file
 
 HEAD = "mark,checker,date,verdict,comment,inputs_hash,revision\n"
 H0, H1 = "sha256:" + "0" * 64, "sha256:" + "1" * 64
@@ -91,7 +91,7 @@ def test_appending_keeps_the_files_mode(tmp_path):
 WORKER = """
 import sys, time
 from pathlib import Path
-from timbersheets.review import Review, append_reviews
+from timbersheets.job.review import Review, append_reviews
 folder, who, start = Path(sys.argv[1]), sys.argv[2], float(sys.argv[3])
 while time.time() < start:
     time.sleep(0.001)

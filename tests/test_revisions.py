@@ -11,7 +11,7 @@ import pytest
 
 from conftest import DEMO, member_row, write_job
 from timbersheets.cli import main
-from timbersheets.runner import RunOptions, run_job
+from timbersheets.run.runner import RunOptions, run_job
 
 pytestmark = pytest.mark.pipeline
 

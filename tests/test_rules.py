@@ -5,7 +5,7 @@ from __future__ import annotations
 import pytest
 
 from conftest import design_row
-from timbersheets.results import member_json
+from timbersheets.job.results import member_json
 
 PURLIN = dict(type="bending", material="sawn", species="S-P-F", grade="No.1/No.2", size="38x184", K_H="1.1",
               length="3.2", w_D="0.46", w_S="1.16", Ly="", P_D="", Lu="0")
@@ -30,7 +30,7 @@ def test_the_rule_cited_is_the_restraint_provided(tmp_path, data):
     d = design_row(tmp_path, data, **dict(PURLIN, Lu="0"))
     text = " ".join(s.caption for c in d.checks if c.check == "bending" for s in c.steps)
     text += " ".join(str(v) for v in d.checks[0].factors)
-    from timbersheets.sheets import Sheet
+    from timbersheets.sheet.sections import Sheet
 
     block = Sheet(d, data, {"nbc": "2020", "o86": "2019"}).checks_section().markdown.replace("\\", "")
     # d/b = 184/38 = 4.84, under the 6.5 limit of the decking rule (notes §4.3, memory), not the purlins rule
@@ -54,7 +54,7 @@ def test_axial_resistance_takes_at_most_the_tabled_system_factor(tmp_path, data)
 ])
 def test_system_factor_limits(tmp_path, data, cells, column):
     from conftest import member_row, write_schedule
-    from timbersheets.schedule import load_schedule
+    from timbersheets.schedule.read import load_schedule
 
     s = load_schedule(write_schedule(tmp_path, [member_row(**cells)]))
     assert s.rejected and f"column '{column}'" in str(s.rejected[0].errors[0])

@@ -9,8 +9,8 @@ import pytest
 
 from conftest import member_row, write_job, write_schedule
 from timbersheets.errors import JobError
-from timbersheets.runner import run_job
-from timbersheets.schedule import load_schedule
+from timbersheets.run.runner import run_job
+from timbersheets.schedule.read import load_schedule
 
 GOOD = member_row("OK-1")
 
@@ -145,7 +145,7 @@ def test_trade_unit_spellings(tmp_path, case_id, column, text, expected):
 
 
 def test_psf_reads_as_a_pressure():
-    from timbersheets.units import parse_quantity
+    from timbersheets.engineering.units import parse_quantity
 
     # 50 psf = 50 lbf / (0.3048 m)² = 50 × 4.4482216152605 / 0.09290304 Pa = 2394.0 Pa
     assert parse_quantity("50 psf", "kPa") == pytest.approx(50 * LBF / 0.3048**2 / 1000, rel=1e-9)

@@ -7,9 +7,9 @@ from pathlib import Path
 
 import pytest
 
-from timbersheets.columns import COLUMNS, field_type
-from timbersheets.member import Member
-from timbersheets.schedule import load_schedule
+from timbersheets.engineering.columns import COLUMNS, field_type
+from timbersheets.engineering.member import Member
+from timbersheets.schedule.read import load_schedule
 
 REPO = Path(__file__).resolve().parent.parent
 BOOKKEEPING = ("row", "given", "carried", "warnings", "entered")  # what the reader knows beyond the cells

@@ -9,10 +9,10 @@ import re
 import pytest
 
 from conftest import DEMO, write_schedule
-from timbersheets.data import DataSet
-from timbersheets.sizing import design_sized
-from timbersheets.schedule import COLUMNS, load_schedule
-from timbersheets.sheets import Sheet
+from timbersheets.engineering.data import DataSet
+from timbersheets.engineering.sizing import design_sized
+from timbersheets.schedule.read import COLUMNS, load_schedule
+from timbersheets.sheet.sections import Sheet
 
 CODES = {"nbc": "2020", "o86": "2019"}
 

@@ -6,7 +6,7 @@ import pytest
 
 from conftest import member_row, write_job
 from timbersheets.cli import main
-from timbersheets.whatif import what_if
+from timbersheets.run.whatif import what_if
 
 # A sawn tie sized by the tool; snow governs, and K_D = 1.0 both before and after
 # (P_D < P_S: O86 5.3.2.3 gives K_D = 1.0 for the standard term).

@@ -125,8 +125,8 @@ def naive_loop(job: Path, out: Path, count: int) -> tuple[float, int]:
     It runs on a sample of `count` members (every member takes about 8 s).
     """
     sys.path.insert(0, str(REPO / "lib"))
-    from timbersheets.membertypes import member_types
-    from timbersheets.schedule import load_schedule
+    from timbersheets.engineering.membertypes import member_types
+    from timbersheets.schedule.read import load_schedule
 
     members = sample(load_schedule(job / "schedule.csv").members, count)
     out.mkdir(parents=True, exist_ok=True)
@@ -146,12 +146,12 @@ def naive_loop(job: Path, out: Path, count: int) -> tuple[float, int]:
 def sizing_times(job: Path) -> list[str]:
     """Sizing time of every auto member, and of a full-catalogue sweep (the worst case)."""
     sys.path.insert(0, str(REPO / "lib"))
-    from timbersheets.data import DataSet
-    from timbersheets.design import design_function, effects_of
-    from timbersheets.membertypes import member_type
-    from timbersheets.loads import apply_combinations
-    from timbersheets.schedule import load_schedule
-    from timbersheets.sizing import catalogue, evaluate, size
+    from timbersheets.engineering.data import DataSet
+    from timbersheets.engineering.design import design_function, effects_of
+    from timbersheets.engineering.membertypes import member_type
+    from timbersheets.engineering.loads import apply_combinations
+    from timbersheets.schedule.read import load_schedule
+    from timbersheets.engineering.sizing import catalogue, evaluate, size
 
     data = DataSet()
     members = [m for m in load_schedule(job / "schedule.csv").members if m.size == "auto"]
@@ -186,9 +186,9 @@ def beam_times(repeat: int = 5) -> list[str]:
     only ever adds time).
     """
     sys.path.insert(0, str(REPO / "lib"))
-    from timbersheets import beamdesign, beammodel
-    from timbersheets.job import load_job
-    from timbersheets.sizing import design_sized
+    from timbersheets.engineering import beamdesign, beammodel
+    from timbersheets.job.load import load_job
+    from timbersheets.engineering.sizing import design_sized
 
     job = load_job(DEMO)
     data = job.data

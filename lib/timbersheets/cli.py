@@ -13,8 +13,8 @@ from pathlib import Path
 
 from . import __version__
 from .errors import ExitCode, TimbersheetsError, UsageError
-from .review import VERDICTS
-from .project import OUTPUT_RULE
+from .job.project import OUTPUT_RULE
+from .job.review import VERDICTS
 
 EPILOG = "Exit status: 0 all members pass; 1 a member fails or has an error; 2 the job is unusable."
 SIZE_EPILOG = "Exit status: 0 every member named has a passing section; 1 one has none; 2 the job is unusable."
@@ -132,7 +132,7 @@ def _parser() -> argparse.ArgumentParser:
 
 
 def cmd_new(args: argparse.Namespace) -> int:
-    from .project import PROJECT_TEMPLATE, SCHEDULE_TEMPLATE
+    from .job.project import PROJECT_TEMPLATE, SCHEDULE_TEMPLATE
 
     folder: Path = args.dir
     if (folder / "project.toml").exists() or (folder / "schedule.csv").exists():
@@ -146,15 +146,15 @@ def cmd_new(args: argparse.Namespace) -> int:
 
 
 def cmd_run(args: argparse.Namespace) -> int:
-    from .results import round_utilization
-    from .runner import run_job
+    from .job.results import round_utilization
+    from .run.runner import run_job
 
     if args.scale:
         return cmd_what_if(args)
     if args.resize:
         raise UsageError("--resize goes with --scale (a what-if); a run always sizes auto members")
     only = [m.strip() for m in args.only.split(",") if m.strip()] if args.only else None
-    from .runner import RunOptions
+    from .run.runner import RunOptions
 
     opts = RunOptions(out=args.out, only=only, sheets=not args.no_pdf, fmt=args.format, jobs=args.jobs,
                       force=args.force)
@@ -180,8 +180,8 @@ def cmd_run(args: argparse.Namespace) -> int:
 
 
 def cmd_what_if(args: argparse.Namespace) -> int:
-    from .results import round_utilization
-    from .whatif import parse_scales, what_if
+    from .job.results import round_utilization
+    from .run.whatif import parse_scales, what_if
 
     try:
         scales = parse_scales(args.scale)
@@ -215,10 +215,10 @@ def cmd_what_if(args: argparse.Namespace) -> int:
 def cmd_size(args: argparse.Namespace) -> int:
     import time
 
-    from .design import design_function
-    from .job import load_job
-    from .membertypes import member_type
-    from .sizing import size
+    from .engineering.design import design_function
+    from .job.load import load_job
+    from .engineering.membertypes import member_type
+    from .engineering.sizing import size
 
     job = load_job(args.dir)
     project, data = job.project, job.data
@@ -253,10 +253,10 @@ def cmd_size(args: argparse.Namespace) -> int:
 
 def cmd_diff(args: argparse.Namespace) -> int:
     from .fileio import write_csv
-    from .project import load_project
-    from .revisions import DIFF_HEADER, diff, diff_rows, format_diff, load_results
-    from .labels import label_problem
-    from .runner import job_dir
+    from .job.project import load_project
+    from .job.revisions import DIFF_HEADER, diff, diff_rows, format_diff, load_results
+    from .schedule.labels import label_problem
+    from .run.runner import job_dir
 
     for option, label in (("--from", args.r1), ("--to", args.r2)):
         if label_problem(label):
@@ -273,11 +273,11 @@ def cmd_diff(args: argparse.Namespace) -> int:
 
 
 def cmd_review(args: argparse.Namespace) -> int:
-    from .project import load_project
-    from .review import (Review, append_reviews, comment_text, count_text, latest, load_review_file,
+    from .job.project import load_project
+    from .job.review import (Review, append_reviews, comment_text, count_text, latest, load_review_file,
                          refuse_unexplained_ok, standing, status, today)
-    from .revisions import load_results
-    from .runner import job_dir
+    from .job.revisions import load_results
+    from .run.runner import job_dir
 
     project = load_project(args.dir)
     results = load_results(job_dir(project, args.out) / f"rev-{project.revision}")
@@ -303,7 +303,7 @@ def cmd_review(args: argparse.Namespace) -> int:
     unknown = [m for m in marks if m not in members]
     if unknown:
         raise UsageError(f"not in rev {project.revision}: {', '.join(unknown)}")
-    from .job import load_job
+    from .job.load import load_job
 
     # the inputs as the run hashed them: with the reactions each member carries
     current = {mark: m.inputs_hash for mark, m in load_job(args.dir).members().items()}
@@ -321,8 +321,8 @@ def cmd_review(args: argparse.Namespace) -> int:
 
 
 def cmd_data(args: argparse.Namespace) -> int:
-    from .data import DataSet
-    from .datacheck import all_items, compare, csv_text, format_list, job_designs, used_items, write_firm_file
+    from .engineering.data import DataSet
+    from .job.datacheck import all_items, compare, csv_text, format_list, job_designs, used_items, write_firm_file
 
     if args.compare:
         lines, _ = compare(args.compare)
@@ -333,7 +333,7 @@ def cmd_data(args: argparse.Namespace) -> int:
     elif args.dir is None:
         raise UsageError("data needs a job folder DIR (or --all, or --compare FILE)")
     else:
-        from .project import load_project
+        from .job.project import load_project
 
         project = load_project(args.dir)
         data, designs = job_designs(project)
@@ -359,8 +359,8 @@ def cmd_data(args: argparse.Namespace) -> int:
     if args.sheet:
         if project is None:
             raise UsageError("--sheet needs a job folder DIR")
-        from .datasheet import write_sheet
-        from .runner import job_dir
+        from .build.datasheet import write_sheet
+        from .run.runner import job_dir
 
         pdf = write_sheet(project, data, items, job_dir(project, args.out))
         print(f"written: {pdf}")
@@ -368,15 +368,15 @@ def cmd_data(args: argparse.Namespace) -> int:
 
 
 def cmd_columns(args: argparse.Namespace) -> int:
-    from .columnref import markdown, text
+    from .schedule.columnref import markdown, text
 
     print(markdown() if args.markdown else text(), end="")
     return ExitCode.OK
 
 
 def cmd_doctor(args: argparse.Namespace) -> int:
-    from .doctor import diagnose, report
-    from .pipeline import templates_dir
+    from .build.doctor import diagnose, report
+    from .build.notebooks import templates_dir
 
     lines, code = report(diagnose(templates_dir()))
     print("\n".join(lines))

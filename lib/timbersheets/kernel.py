@@ -10,7 +10,7 @@ named by JPY_PARENT_PID, which jupyter_client sets), then starts ipykernel as
 
 import os
 
-from timbersheets.lifetime import die_with_parent
+from .lifetime import die_with_parent
 
 if __name__ == "__main__":
     starter = os.environ.get("JPY_PARENT_PID", "")

@@ -1,0 +1,1 @@
+"""The build: executing notebooks, typesetting, sheet jobs and their cache, the package, the index."""

@@ -1,0 +1,281 @@
+"""The combined package PDF: cover, index of members (with the utilization
+chart), the changes since the previous revision, then every sheet.
+
+The front matter is typeset (``templates/latex/package/package.tex.j2``) with
+its page numbers computed from the sheets' page counts; the member sheets are
+then appended as typeset on their own, each page stamped with a continuous
+package page number, with a PDF bookmark per member. Appending with pypdf
+instead of re-typesetting every sheet page keeps a rerun after one change fast.
+Everything comes from the run's results document, so package and results.json agree.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import os
+import re
+from functools import lru_cache
+import tempfile
+from concurrent.futures import ThreadPoolExecutor
+from pathlib import Path
+from typing import Any
+
+from .. import __version__
+from ..constants import CAUTION, SHORT_CAUTION
+from ..engineering.data import DataSet
+from ..fileio import copy_atomic
+from ..job.project import Project
+from ..job.review import count_text, standing, titleblock_text
+from ..job.revisions import MemberChange
+from ..sheet.symbols import ACTION_WORDS
+from ..sheet.tex import escape
+from .notebooks import library_fingerprint, templates_dir
+from .typeset import layout_environment, typeset
+
+VERDICT = {"pass": "passes", "fail": "does not pass", "error": "not designed"}
+VERDICT_TEX = {"pass": "PASSES", "fail": r"\textbf{DOES NOT PASS}", "error": r"\textbf{NOT DESIGNED}"}
+
+
+
+def page_count(pdf: Path) -> int:
+    stat = pdf.stat()
+    return _page_count(str(pdf), stat.st_mtime_ns, stat.st_size)
+
+
+@lru_cache(maxsize=4096)
+def _page_count(path: str, mtime_ns: int, size: int) -> int:
+    import pikepdf
+
+    with pikepdf.open(path) as pdf:
+        return len(pdf.pages)
+
+
+def _governing(m: dict[str, Any]) -> str:
+    gov = m.get("governing")
+    if not gov or m["status"] == "error":
+        return "--"
+    return escape(ACTION_WORDS.get(gov["check"], gov["check"]).split(" (")[0].lower())
+
+
+def member_rows(members: list[dict[str, Any]], outdir: Path, first: int = 1,
+                pages: dict[str, int] | None = None) -> tuple[list[dict], list[str]]:
+    """Index rows; sheets start at package page `first` in member order.
+
+    `pages` holds the page counts xelatex reported for the sheets (read from
+    the PDFs where it is missing)."""
+    pages = pages or {}
+    rows, notes = [], []
+    page = first
+    for i, m in enumerate(members):
+        sheet = outdir / "sheets" / f"{m['mark']}.pdf"
+        note = (m.get("inputs") or {}).get("note") or m.get("type") or ""
+        review = m.get("review") or {"status": "not-checked"}
+        flags = []
+        if m.get("changed_since"):
+            flags.append(f"changed since {m['changed_since']}")
+        rows.append({
+            "mark": escape(m["mark"]), "plain": m["mark"], "anchor": f"m{i}",
+            "description": escape(shorten(note)),
+            "size": escape(m.get("size") or ""),
+            "governing": _governing(m),
+            "utilization": "--" if m.get("utilization") is None or m["status"] == "error" else f"{m['utilization']:.3f}",
+            "verdict": VERDICT_TEX[m["status"]], "verdict_word": VERDICT[m["status"]],
+            "checked": escape(titleblock_text(review)),
+            "flag": escape("; ".join(flags)),
+            "sheet": sheet.resolve().as_posix() if sheet.exists() else "",
+            "pages": (pages.get(m["mark"]) or page_count(sheet)) if sheet.exists() else 0,
+            "start": page,
+        })
+        page += rows[-1]["pages"]
+        if m["errors"]:
+            notes.append(f"{escape(m['mark'])}: {escape(m['errors'][0])}")
+    return rows, notes
+
+
+def shorten(text: str, limit: int = 200) -> str:
+    """Text of at most `limit` characters, cut only between words (then an ellipsis)."""
+    if len(text) <= limit:
+        return text
+    return text[:limit - 1].rsplit(" ", 1)[0].rstrip(" ,;:") + "\u2026"
+
+
+def plural(n: int, one: str, many: str) -> str:
+    """'1 member', '2 members'."""
+    return f"{n} {one if n == 1 else many}"
+
+
+def cover_lines(project: Project, counts: dict[str, int], review_counts: str) -> dict[str, str]:
+    """The cover's and index's sentences about the members, in plain grammar (escaped).
+
+    `review_counts` is review.count_text: the one count of verdicts, also used by review --status.
+    """
+    total = counts["total"]
+    checker = project.fields["checker"] or "not named"
+    members = (f"{plural(total, 'member', 'members')}: {counts['pass']} {'passes' if counts['pass'] == 1 else 'pass'}, "
+               f"{counts['fail']} {'does' if counts['fail'] == 1 else 'do'} not pass, {counts['error']} not designed")
+    return {
+        "checker": escape(f"{checker} ({review_counts})"),
+        "members": escape(members),
+        "unchecked": escape(f"Review: {review_counts}."),
+    }
+
+
+def change_rows(changes: list[MemberChange]) -> list[dict[str, str]]:
+    out = []
+    for c in changes:
+        if c.kind != "changed":
+            out.append({"mark": escape(c.mark), "what": escape(c.kind), "item": "", "old": "", "new": ""})
+            continue
+        items = [("because", "carried", "", f"{source} changed") for source in c.because]
+        items += [("input", k, a, b) for k, a, b in c.inputs] + [("result", k, a, b) for k, a, b in c.results]
+        if c.verdict_flip:
+            items.append(("verdict flipped", "status", *c.verdict_flip))
+        for j, (what, k, a, b) in enumerate(items):
+            out.append({"mark": escape(c.mark) if j == 0 else "", "what": escape(what), "item": escape(k),
+                        "old": escape(a), "new": escape(b)})
+    return out
+
+
+def package_tex(project: Project, doc: dict[str, Any], data: DataSet, outdir: Path,
+                changes: list[MemberChange], chart: str, front_pages: int = 2,
+                pages: dict[str, int] | None = None) -> tuple[str, list[dict]]:
+    """The front matter's LaTeX, given how many pages it takes, and the index rows."""
+    members = doc["members"]
+    rows, notes = member_rows(members, outdir, front_pages + 1, pages)
+    counts = {"total": len(members), "pass": 0, "fail": 0, "error": 0}
+    for m in members:
+        counts[m["status"]] += 1
+    states = [m.get("review") or {"status": "not-checked"} for m in members]
+    review_counts = count_text(states)
+    all_ok = all(standing(s) == "ok" for s in states)
+    context: dict[str, Any] = {
+        "project": {k: escape(v) for k, v in project.fields.items()},
+        "codes": {k: escape(v) for k, v in project.codes.items()},
+        "counts": counts, "members": rows, "notes": notes,
+        "unverified": len({w for m in members for w in m["data_warnings"]}),
+        "firm": escape(data.firm.description) if data.firm else "",
+        "corrections": len({c for m in members for c in m.get("data_corrections", [])}),
+        "unchecked": not all_ok, "lines": cover_lines(project, counts, review_counts),
+        "previous": escape(doc.get("previous_revision") or ""), "changes": change_rows(changes),
+        "chart": chart, "caution": escape(SHORT_CAUTION), "caution_long": escape(CAUTION),
+        "tool_version": f"timbersheets {__version__}", "data_hash": data.hash.split(":")[1][:12],
+        "total_pages": front_pages + sum(r["pages"] for r in rows),
+    }
+    return layout_environment(templates_dir() / "latex" / "package").get_template("package.tex.j2").render(**context), rows
+
+
+def _typeset(tex: str, work: Path, name: str) -> tuple[Path, str]:
+    done = typeset(tex, work, name, "package")
+    aux = work / f"{name}.aux"
+    return done.pdf, aux.read_text(encoding="utf-8", errors="replace") if aux.exists() else ""
+
+
+def _stamps(project: Project, first: int, total: int, work: Path, cache: Path | None) -> Path:
+    """One page per sheet page, blank but for 'package page k of N' where the sheets leave room.
+
+    The same pages typeset before are taken from `cache` (a review changes no page number)."""
+    stamp = (r"{\footnotesize %s \quad rev %s \quad package page %d of %d}")
+    pages = "".join(
+        r"\begin{picture}(0,0)\put(548,-776){\makebox(0,0)[r]{" + stamp % (escape(project.fields["number"]),
+        escape(project.revision), k, total) + r"}}\end{picture}\newpage" + "\n" for k in range(first, total + 1))
+    tex = ("\\documentclass[10pt]{article}\n\\usepackage[letterpaper,margin=0pt]{geometry}\n\\usepackage{fontspec}\n"
+           "\\pagestyle{empty}\\setlength{\\parindent}{0pt}\\setlength{\\unitlength}{1bp}\n"
+           "\\begin{document}\n" + pages + "\\end{document}\n")
+    cached = cache / f"{hashlib.sha256(tex.encode()).hexdigest()}.pagestamps.pdf" if cache is not None else None
+    if cached is not None and cached.exists():
+        return cached
+    pdf = _typeset(tex, work, "stamps")[0]
+    if cached is not None:
+        copy_atomic(pdf, cached)
+    return pdf
+
+
+FRONT_HINT = ".front-pages"
+
+
+def _package_key(tex: str, outdir: Path, rows: list[dict]) -> str:
+    """What the package is made of: the front matter's source (the staging folder's name left
+    out), the chart, every sheet's bytes and the library (which draws the page stamps)."""
+    digest = hashlib.sha256(tex.replace(outdir.resolve().as_posix(), "").encode())
+    for path in [outdir / "summary.png"] + [Path(r["sheet"]) for r in rows if r["sheet"]]:
+        digest.update(hashlib.sha256(path.read_bytes()).digest() if path.exists() else b"-")
+    digest.update(library_fingerprint().encode())
+    return digest.hexdigest()
+
+
+def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: Path,
+                  changes: list[MemberChange], hint: Path | None = None,
+                  pages: dict[str, int] | None = None, cache: Path | None = None) -> Path:
+    """package.pdf in `outdir`: front matter typeset, sheets appended and stamped; written atomically.
+
+    `hint` is the previous revision folder: its front-matter length is the first
+    guess, which saves a second typesetting of the front matter on a rerun. A
+    package made of exactly the same parts before is taken from `cache`.
+    """
+    import pikepdf
+
+    target = outdir / "package.pdf"
+    chart = outdir / "summary.png"
+    chart_path = chart.resolve().as_posix() if chart.exists() else ""
+    front_pages = 2
+    if hint is not None and (hint / FRONT_HINT).exists():
+        front_pages = int((hint / FRONT_HINT).read_text() or 2)
+    tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
+    cached = cache / f"{_package_key(tex, outdir, rows)}.package.pdf" if cache is not None else None
+    if cached is not None and cached.exists():
+        copy_atomic(cached, target)
+        (outdir / FRONT_HINT).write_text(str(front_pages))
+        return target
+    with tempfile.TemporaryDirectory(prefix="ts-pkg-") as tmp, ThreadPoolExecutor(max_workers=1) as ahead:
+        work = Path(tmp)
+        sheet_pages = sum(r["pages"] for r in rows)
+        # the page stamps for the guessed front-matter length are typeset beside the front matter
+        guessed = front_pages
+        stamps = ahead.submit(_stamps, project, guessed + 1, guessed + sheet_pages, work, cache) if sheet_pages else None
+        for attempt in range(4):  # the front matter's length sets the page numbers it prints
+            if attempt:
+                tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
+            front, aux = _typeset(tex, work, "package")
+            with pikepdf.open(front) as typeset:
+                actual = len(typeset.pages)
+            if actual == front_pages:
+                break
+            front_pages = actual
+        total = front_pages + sum(r["pages"] for r in rows)
+        labels = {k: int(v) - 1 for k, v in re.findall(r"\\newlabel\{ts-(\w+)\}\{\{[^}]*\}\{(\d+)\}", aux)}
+        sheets = [r for r in rows if r["sheet"]]
+        with pikepdf.open(front) as package:
+            sources = [pikepdf.open(r["sheet"]) for r in sheets]  # kept open until the package is saved
+            for src in sources:
+                package.pages.extend(src.pages)
+            if sheets:
+                made = stamps.result() if stamps is not None else None
+                if made is None or front_pages != guessed:
+                    made = _stamps(project, front_pages + 1, total, work, cache)
+                overlay = pikepdf.open(made)
+                sources.append(overlay)
+                for k, page in enumerate(package.pages[front_pages:]):
+                    page.add_overlay(overlay.pages[k])
+            with package.open_outline() as outline:
+                outline.root.append(pikepdf.OutlineItem("Cover", 0))
+                outline.root.append(pikepdf.OutlineItem("Index of members", labels.get("index", 1)))
+                if "changes" in labels:
+                    outline.root.append(pikepdf.OutlineItem(f"Changes since rev {doc.get('previous_revision')}",
+                                                            labels["changes"]))
+                if sheets:
+                    parent = pikepdf.OutlineItem("Member sheets", front_pages)
+                    parent.children.extend(pikepdf.OutlineItem(f"{r['plain']} — {r['verdict_word']}", r["start"] - 1)
+                                           for r in sheets)
+                    outline.root.append(parent)
+            package.docinfo["/Title"] = f"{project.fields['title']} - calculation package rev {project.revision}"
+            package.docinfo["/Creator"] = f"timbersheets {__version__}"
+            (outdir / FRONT_HINT).write_text(str(front_pages))
+            staged = target.with_name(".package.pdf.part")
+            package.save(staged)
+            for src in sources:
+                src.close()
+        os.replace(staged, target)
+    if cached is not None:
+        copy_atomic(target, cached)
+    return target
+

@@ -1,0 +1,337 @@
+"""Members' sheet jobs: execute their notebooks and make their sheets, using the cache.
+
+The cache is content-addressed (``<outputs>/<job>/.cache/``):
+
+- a notebook is keyed by the member's inputs, the template, the library and the data;
+- a PDF sheet body by that key, the title block's fixed fields and the layout;
+- a stamped PDF sheet by the body's key and the stamped fields (revision, date,
+  checked by); an HTML sheet by the notebook's key and the whole title block.
+
+A member whose key is unchanged is not re-executed and its body not re-typeset;
+``--force`` ignores the cache. Work is done in batches, one per worker at a time:
+the batch's notebooks run in the worker's one kernel and its bodies are typeset
+in one xelatex run (``batch.py``); the stamps of every sheet that needs one are
+then typeset in one run in the main process.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import math
+import multiprocessing
+import os
+import time
+import queue
+import traceback
+from collections import deque
+from concurrent.futures import ProcessPoolExecutor
+from dataclasses import dataclass, field
+from functools import cached_property
+from pathlib import Path
+from typing import Any
+
+from ..constants import RESULT_MIME
+from ..fileio import copy_atomic
+from ..lifetime import die_with_parent
+from .batch import Body, Stamp, fixed_fields, stamp_sheets, stamped_fields, typeset_bodies
+from .notebooks import execute, file_hash, library_fingerprint, start_kernel, templates_dir, to_html
+
+BATCH = 20  # members per xelatex run at most: the ~0.7 s of preamble and fonts spread over 20 sheets
+STAMP_LAYOUTS = ("stamp.tex.j2", "stampfields.tex.j2")  # a stamped sheet's key covers both
+
+
+@dataclass
+class SheetTask:
+    mark: str
+    template: Path
+    parameters: dict[str, Any]
+    titleblock: dict[str, str]
+    data_hash: str
+    cache: Path
+    notebook: Path  # final place in the revision folder
+    sheet: Path | None  # final place of the PDF/HTML, or None (--no-pdf)
+    fmt: str = "pdf"
+    force: bool = False
+    cwd: Path = Path(".")
+
+    @cached_property
+    def exec_key(self) -> str:
+        blob = json.dumps({"p": self.parameters, "t": file_hash(self.template), "lib": library_fingerprint(),
+                           "data": self.data_hash}, sort_keys=True)
+        return hashlib.sha256(blob.encode()).hexdigest()
+
+    @cached_property
+    def body_key(self) -> str:
+        layout = [file_hash(templates_dir() / "latex" / "sheet" / name) for name in ("sheet.tex.j2", "preamble.tex.j2")]
+        fields = self.titleblock if self.fmt == "html" else fixed_fields(self.titleblock)
+        blob = json.dumps({"e": self.exec_key, "tb": fields, "layout": layout, "fmt": self.fmt}, sort_keys=True)
+        return hashlib.sha256(blob.encode()).hexdigest()
+
+    @cached_property
+    def sheet_key(self) -> str:
+        stamp = [file_hash(templates_dir() / "latex" / "sheet" / name) for name in STAMP_LAYOUTS]
+        blob = json.dumps({"b": self.body_key, "tb": stamped_fields(self.titleblock), "stamp": stamp}, sort_keys=True)
+        return hashlib.sha256(blob.encode()).hexdigest()
+
+    @property
+    def cached_notebook(self) -> Path:
+        return self.cache / f"{self.exec_key}.ipynb"
+
+    @property
+    def cached_body(self) -> Path:
+        return self.cache / f"{self.body_key}.body.pdf"
+
+    @property
+    def cached_sheet(self) -> Path:
+        """The finished sheet in the cache: the HTML, or the stamped PDF."""
+        if self.fmt == "html":
+            return self.cache / f"{self.body_key}.html"
+        return self.cache / f"{self.sheet_key}.pdf"
+
+
+@dataclass
+class SheetOutcome:
+    mark: str
+    executed: bool = False
+    converted: bool = False  # the body (or HTML) was typeset in this run
+    stamped: bool = False  # the title-block stamp was laid on in this run
+    error: str | None = None  # notebook error (the notebook is kept, error marked)
+    pages: int = 0  # pages of the PDF sheet (0: not known)
+    record: dict[str, Any] | None = field(default=None, repr=False)
+    trace: str = field(default="", repr=False)  # traceback of an unexpected failure, for run.log
+
+    def fail(self, problem: str) -> None:
+        self.error = (self.error + "; " if self.error else "") + problem
+
+
+def read_record(notebook: Path) -> tuple[dict[str, Any] | None, str | None]:
+    """The result record the notebook displayed, and its first error, if any."""
+    doc = json.loads(notebook.read_text(encoding="utf-8"))
+    record, error = None, None
+    for cell in doc.get("cells", []):
+        for out in cell.get("outputs", []):
+            if out.get("output_type") == "error" and error is None:
+                error = f"{out.get('ename')}: {out.get('evalue')}"
+            data = out.get("data", {})
+            if RESULT_MIME in data:
+                record = data[RESULT_MIME]
+    return record, error
+
+
+def _pages_file(pdf: Path) -> Path:
+    return pdf.with_name(pdf.name + ".pages")
+
+
+def _read_pages(pdf: Path) -> int:
+    path = _pages_file(pdf)
+    return int(path.read_text()) if path.exists() else 0
+
+
+def _needs_body(task: SheetTask) -> bool:
+    return task.sheet is not None and (task.force or not task.cached_body.exists())
+
+
+def _needs_work(task: SheetTask) -> bool:
+    """Execution, a body or an HTML sheet to make: a worker's job. Stamping alone is not."""
+    if task.force or not task.cached_notebook.exists():
+        return True
+    if task.fmt == "html":
+        return task.sheet is not None and not task.cached_sheet.exists()
+    return task.sheet is not None and not task.cached_sheet.exists() and not task.cached_body.exists()
+
+
+def _take_notebook(task: SheetTask, outcome: SheetOutcome) -> None:
+    copy_atomic(task.cached_notebook, task.notebook)
+    outcome.record, outcome.error = read_record(task.notebook)
+
+
+def run_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, float]]:
+    """Execute what needs executing, then typeset the batch's bodies in one run (or make HTML).
+
+    A member's failure stays with that member. Returns the outcomes and the
+    seconds spent per phase."""
+    times: dict[str, float] = {}
+    outcomes = {t.mark: SheetOutcome(t.mark) for t in tasks}
+    started = time.monotonic()
+    for task in tasks:
+        outcome = outcomes[task.mark]
+        try:
+            if task.force or not task.cached_notebook.exists():
+                execute(task.template, task.cached_notebook, task.parameters, task.cwd)
+                outcome.executed = True
+            _take_notebook(task, outcome)
+        except Exception as exc:  # a worker failure belongs to its member, not the batch  # noqa: BLE001
+            outcome.fail(f"{type(exc).__name__}: {exc}")
+            outcome.trace = traceback.format_exc()
+            continue
+        if outcome.error:
+            task.cached_notebook.unlink(missing_ok=True)  # never serve a failed run from the cache
+    times["execute"] = time.monotonic() - started
+    ready = [t for t in tasks if t.notebook.exists() and t.sheet is not None]
+    if ready and ready[0].fmt == "html":
+        started = time.monotonic()
+        for task in ready:
+            to_html(task.notebook, task.cached_sheet, task.titleblock)
+            outcomes[task.mark].converted = True
+        times["typeset"] = time.monotonic() - started
+        return list(outcomes.values()), times
+    # each body's stamp is typeset in the same run; the main process stamps only what changed since
+    bodies = [Body(t.mark, t.notebook, fixed_fields(t.titleblock), t.cached_body, stamped_fields(t.titleblock),
+                   t.cached_sheet) for t in ready if _needs_body(t) or outcomes[t.mark].executed]
+    for mark, result in typeset_bodies(bodies, times).items() if bodies else ():
+        if isinstance(result, Exception):
+            outcomes[mark].fail(str(result))
+        else:
+            outcomes[mark].converted = outcomes[mark].stamped = True
+            outcomes[mark].pages = result
+    for body in bodies:
+        if outcomes[body.mark].converted:
+            _pages_file(body.pdf).write_text(str(outcomes[body.mark].pages))
+            _pages_file(body.sheet).write_text(str(outcomes[body.mark].pages))
+    return list(outcomes.values()), times
+
+
+def _start_worker(run: int) -> None:
+    """A pool worker of the run with pid `run`: dies with it (at once if it is already gone), and
+    boots its kernel before its first batch arrives."""
+    die_with_parent(run)
+    start_kernel()
+
+
+def _safe_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, float]]:
+    try:
+        return run_batch(tasks)
+    except Exception as exc:  # noqa: BLE001 - a broken batch is its members' error, not the run's
+        trace = traceback.format_exc()
+        return [SheetOutcome(t.mark, error=f"{type(exc).__name__}: {exc}", trace=trace) for t in tasks], {}
+
+
+def batches(tasks: list[SheetTask], jobs: int) -> list[list[SheetTask]]:
+    """Tasks in batches of at most BATCH, as many batches for every worker, sizes within one of each other.
+
+    100 members on 2 workers make 6 batches of 16 or 17 (3 a worker), not 5 of 20 (3 and 2):
+    the run ends when the busiest worker does."""
+    if not tasks:
+        return []
+    count = jobs * math.ceil(len(tasks) / (jobs * BATCH))
+    count = min(count, len(tasks))
+    size, extra = divmod(len(tasks), count)
+    out, start = [], 0
+    for i in range(count):
+        end = start + size + (1 if i < extra else 0)
+        out.append(tasks[start:end])
+        start = end
+    return out
+
+
+def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool,
+               times: dict[str, float] | None = None) -> dict[str, SheetOutcome]:
+    """Execute, typeset and stamp every task, `jobs` workers at a time; a failure stays with its member.
+
+    `times` receives the seconds per phase (execute, typeset, split: summed over
+    workers; stamp: in this process)."""
+    jobs = max(1, jobs or os.cpu_count() or 1)
+    times = times if times is not None else {}
+    from tqdm import tqdm
+
+    # disable=None: a bar only on a terminal, as with the other command-line tools
+    bar = tqdm(total=len(tasks), desc="sheets", unit="sheet", disable=None if progress else True, leave=False)
+    outcomes: dict[str, SheetOutcome] = {}
+
+    def step(mark: str) -> None:
+        bar.set_postfix_str(mark, refresh=False)
+        bar.update()
+
+    def collect(result: tuple[list[SheetOutcome], dict[str, float]]) -> None:
+        for outcome in result[0]:
+            outcomes[outcome.mark] = outcome
+            step(outcome.mark)
+        for phase, seconds in result[1].items():
+            times[phase] = times.get(phase, 0.0) + seconds
+
+    work = [t for t in tasks if _needs_work(t)]
+    for task in tasks:  # the rest come from the cache, without a worker
+        if not _needs_work(task):
+            outcome = SheetOutcome(task.mark)
+            _take_notebook(task, outcome)
+            outcomes[task.mark] = outcome
+            step(task.mark)
+    pending = deque(batches(work, jobs))
+    total = len(pending)
+    if jobs == 1 or total <= 1:
+        while pending:
+            collect(_safe_batch(pending.popleft()))
+    else:
+        _share_batches(pending, min(jobs - 1, total - 1), collect)
+    bar.close()
+    started = time.monotonic()
+    _finish(tasks, outcomes, jobs)
+    times["stamp"] = time.monotonic() - started
+    return {t.mark: outcomes[t.mark] for t in tasks}
+
+
+def _share_batches(pending: deque, workers: int, collect) -> None:
+    """Run the batches on `workers` pool processes and in this one, each taking the next when free.
+
+    This process is one of the workers: its kernel was started while it designed the
+    members, and the pool's processes start theirs as they spawn. A pool process is handed
+    its next batch the moment it finishes one (from the future's callback)."""
+    total = len(pending)
+    done: queue.Queue = queue.Queue()
+
+    def feed(pool) -> None:
+        try:
+            batch = pending.popleft()
+        except IndexError:
+            return
+        try:
+            future = pool.submit(_safe_batch, batch)
+        except Exception as exc:  # noqa: BLE001 - a broken pool: the batch's members get the error
+            done.put((batch, exc))
+            return
+        future.add_done_callback(lambda f: (done.put((batch, f)), feed(pool)))
+
+    context = multiprocessing.get_context("spawn")
+    with ProcessPoolExecutor(max_workers=workers, mp_context=context, initializer=_start_worker,
+                             initargs=(os.getpid(),)) as pool:
+        for _ in range(workers):
+            feed(pool)
+        collected = 0
+        while True:
+            try:
+                batch = pending.popleft()
+            except IndexError:
+                break
+            collect(_safe_batch(batch))
+            collected += 1
+        while collected < total:
+            batch, future = done.get()
+            try:
+                if isinstance(future, Exception):
+                    raise future
+                collect(future.result())
+            except Exception as exc:  # noqa: BLE001 - a worker that died takes only its batch down
+                trace = traceback.format_exc()
+                collect(([SheetOutcome(t.mark, error=f"{type(exc).__name__}: {exc}", trace=trace) for t in batch], {}))
+            collected += 1
+
+
+def _finish(tasks: list[SheetTask], outcomes: dict[str, SheetOutcome], jobs: int = 1) -> None:
+    """Stamp, in one run, every PDF sheet whose stamped version is not cached; put every sheet in place."""
+    pdf = [t for t in tasks if t.sheet is not None and t.fmt == "pdf" and t.cached_body.exists()]
+    stale = [t for t in pdf if not outcomes[t.mark].stamped
+             and (t.force or outcomes[t.mark].converted or not t.cached_sheet.exists())]
+    stamps = [Stamp(t.mark, t.cached_body, _read_pages(t.cached_body), stamped_fields(t.titleblock),
+                    t.cached_sheet) for t in stale]
+    made = {s.mark: s.pdf for s in stamps}
+    for mark, result in stamp_sheets(stamps, jobs).items() if stamps else ():
+        if isinstance(result, Exception):
+            outcomes[mark].fail(str(result))
+        else:
+            outcomes[mark].stamped = True
+            _pages_file(made[mark]).write_text(str(result))
+    for task in tasks:
+        if task.sheet is not None and task.cached_sheet.exists() and task.cached_sheet.stat().st_size:
+            copy_atomic(task.cached_sheet, task.sheet)
+            outcomes[task.mark].pages = _read_pages(task.cached_sheet)

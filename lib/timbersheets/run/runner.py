@@ -1,0 +1,322 @@
+"""A run: validate the schedule, design every member, write the outputs.
+
+Per-member failures are collected and the run goes on with the other members.
+Sheets are executed and converted in worker processes (``jobs``); everything is
+written to a temporary name and renamed into place.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import os
+import re
+import shutil
+import time
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from .. import __version__
+from ..build.notebooks import start_kernel, templates_dir
+from ..build.sheetjobs import SheetOutcome, SheetTask, run_sheets
+from ..constants import SHORT_CAUTION
+from ..engineering.beammodel import STORE_ENV as BEAM_STORE_ENV
+from ..engineering.data import DataSet
+from ..engineering.design import MemberDesign
+from ..engineering.membertypes import member_types
+from ..errors import ExitCode, UsageError
+from ..fileio import copy_atomic, remove_stale_parts, write_atomic
+from ..fileio import write_csv
+from ..job.load import load_job
+from ..job.project import Project
+from ..job.results import member_json, results_doc, write_results
+from ..job.review import comment_text, latest, load_review_file, read_reviews, status, titleblock_text
+from ..job.revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
+from ..lifetime import pid_alive
+from ..sheet.tex import escape
+from .keep import Carried, carry_package, carry_sheets, package_key, write_package_key
+
+
+
+@dataclass
+class RunOptions:
+    out: Path | None = None
+    only: list[str] | None = None
+    sheets: bool = True  # False with --no-pdf
+    fmt: str = "pdf"  # pdf | html
+    jobs: int | None = None
+    force: bool = False
+    progress: bool = True
+
+
+@dataclass
+class RunReport:
+    project: Project
+    outdir: Path
+    designs: list[MemberDesign]
+    schedule_warnings: list[str]
+    sheets: dict[str, SheetOutcome] = field(default_factory=dict)
+    log: list[str] = field(default_factory=list)
+    package: Path | None = None
+    package_error: str | None = None
+    carried: Carried = field(default_factory=Carried)
+    data_errors: list[str] = field(default_factory=list)  # bad rows of the firm data file
+
+    @property
+    def exit_code(self) -> int:
+        ok = all(d.status == "pass" for d in self.designs) and not self.package_error and not self.data_errors
+        return ExitCode.OK if ok else ExitCode.MEMBERS
+
+    def counts(self) -> dict[str, int]:
+        out = {"pass": 0, "fail": 0, "error": 0}
+        for d in self.designs:
+            out[d.status] += 1
+        return out
+
+    @property
+    def executed(self) -> list[str]:
+        return [m for m, s in self.sheets.items() if s.executed]
+
+    @property
+    def converted(self) -> list[str]:
+        """Members whose sheet body was typeset (or HTML sheet written)."""
+        return [m for m, s in self.sheets.items() if s.converted]
+
+    @property
+    def stamped(self) -> list[str]:
+        """Members whose title-block stamp was laid on their body."""
+        return [m for m, s in self.sheets.items() if s.stamped]
+
+
+def job_dir(project: Project, out: Path | None) -> Path:
+    """The folder holding a job's rev-<R>/ folders: `out`, else project.OUTPUT_RULE.
+
+    The rule depends only on where the job folder is, never on where the command
+    is run from, so run, diff and review always agree.
+    """
+    if out is not None:
+        return out
+    folder = project.folder.resolve()
+    beside = folder.parent.parent if folder.parent.name == "calcsheets" else folder.parent
+    return beside / "outputs" / folder.name
+
+
+def revision_dir(project: Project, out: Path | None) -> Path:
+    return job_dir(project, out) / f"rev-{project.revision}"
+
+
+def titleblock(project: Project, design: MemberDesign, data: DataSet, checked: str = "not checked",
+               changed_since: str | None = None, review_comment: str = "") -> dict[str, str]:
+    """Title block fields for one sheet, escaped for LaTeX."""
+    f = project.fields
+    m = design.member
+    description = (m.note if m and m.note else f"{m.type} member" if m else "")
+    short = description if len(description) <= 90 else description[:87].rstrip() + "..."
+    raw = {
+        "project": f["title"], "number": f["number"], "location": f["location"], "client": f["client"],
+        "mark": design.mark, "description": short, "date": f["date"],
+        "revision": f["revision"] + (f", changed since {changed_since}" if changed_since else ""),
+        "designed": f["designer"], "checked": checked, "engineer": f["engineer"],
+        "review_comment": review_comment,
+        "tool_version": f"timbersheets {__version__}",
+        "inputs_hash": (m.inputs_hash.split(":")[1][:12] if m else ""),
+        "data_hash": data.hash.split(":")[1][:12],
+        "caution": SHORT_CAUTION,
+    }
+    return {k: escape(v) for k, v in raw.items()}
+
+
+def sheet_tasks(project: Project, designs: list[MemberDesign], data: DataSet, outdir: Path,
+                opts: RunOptions, extra: dict[str, dict] | None = None) -> list[SheetTask]:
+    types = member_types()
+    cache = job_dir(project, opts.out) / ".cache"
+    tasks = []
+    for d in designs:
+        if d.member is None or d.member.type not in types:
+            continue
+        template = templates_dir() / types[d.member.type].template
+        params = {"member": d.member.params(), "codes": project.codes,
+                  "materials": str(project.materials) if project.materials else ""}
+        sheet = outdir / "sheets" / f"{d.mark}.{opts.fmt}" if opts.sheets else None
+        info = (extra or {}).get(d.mark, {})
+        review = info.get("review", {"status": "not-checked"})
+        block = titleblock(project, d, data, titleblock_text(review), info.get("changed_since"), comment_text(review))
+        tasks.append(SheetTask(d.mark, template, params, block, data.hash, cache,
+                               outdir / "notebooks" / f"{d.mark}.ipynb", sheet, opts.fmt, opts.force,
+                               project.folder.resolve()))
+    return tasks
+
+
+def cross_check(design: MemberDesign, outcome: SheetOutcome) -> None:
+    """The sheet's own result record must equal the run's: else the member is an error."""
+    if outcome.error:
+        design.errors.append(f"sheet: {outcome.error}")
+        return
+    mine = member_json(design)
+    theirs = outcome.record or {}
+    keys = ("status", "utilization", "governing", "checks")
+    if any(mine.get(k) != theirs.get(k) for k in keys):
+        design.errors.append("sheet: the notebook's result differs from the run's own calculation")
+
+
+def member_extras(project: Project, designs: list[MemberDesign], previous: dict | None) -> dict[str, dict]:
+    """Per member: its inputs, the revision it changed since, and its review status."""
+    reviews = latest(read_reviews(project.folder))
+    before = {m["mark"]: m for m in previous["members"]} if previous else {}
+    out = {}
+    for d in designs:
+        inputs_hash = d.member.inputs_hash if d.member else None
+        prev = before.get(d.mark)
+        changed = None
+        if previous is not None and (prev is None or prev.get("inputs_hash") != inputs_hash):
+            changed = previous["revision"]
+        out[d.mark] = {"inputs": d.member.params() if d.member else None, "changed_since": changed,
+                       "review": status(reviews.get(d.mark), inputs_hash)}
+    return out
+
+
+def stage_dir(project: Project, opts: RunOptions) -> tuple[Path, Path]:
+    """An empty staging folder beside the revision folder (what stays of the old one: keep.py)."""
+    final = revision_dir(project, opts.out)
+    final.parent.mkdir(parents=True, exist_ok=True)
+    remove_stale(final.parent)
+    stage = final.parent / f".{final.name}.staging-{os.getpid()}"
+    shutil.rmtree(stage, ignore_errors=True)
+    stage.mkdir()
+    return stage, final
+
+
+_STAGING = re.compile(r"^\.rev-.+\.(?:staging|old)-(\d+)$")
+
+
+def remove_stale(jobdir: Path) -> None:
+    """Staging folders and temporary files of killed runs of this user (their process is gone)."""
+    for path in jobdir.glob(".rev-*"):
+        match = _STAGING.match(path.name)
+        if match and path.is_dir() and path.stat().st_uid == os.getuid() and not pid_alive(int(match.group(1))):
+            shutil.rmtree(path, ignore_errors=True)
+    remove_stale_parts(jobdir / ".cache")
+def check_only(project: Project, entries: list, only: list[str] | None) -> None:
+    """Refuse an --only mark the schedule does not have (a typo would otherwise run nothing, silently)."""
+    known = {e.mark for e in entries}
+    unknown = [m for m in only or () if m not in known]
+    if unknown:
+        raise UsageError(f"--only {','.join(only)}: no member {', '.join(unknown)} in {project.schedule_path}. "
+                         f"Marks in the schedule: {', '.join(sorted(known)) or 'none'}")
+
+
+def swap_into_place(stage: Path, final: Path) -> None:
+    """Replace the revision folder by the finished staging folder."""
+    old = final.parent / f".{final.name}.old-{os.getpid()}"
+    if final.exists():
+        os.replace(final, old)
+    os.replace(stage, final)
+    shutil.rmtree(old, ignore_errors=True)
+
+
+def snapshot_inputs(project: Project, stage: Path) -> None:
+    inputs = stage / "inputs"
+    inputs.mkdir(exist_ok=True)
+    for path in (project.folder / "project.toml", project.schedule_path, project.folder / "review.csv",
+                 project.materials):
+        if path and path.exists():
+            copy_atomic(path, inputs / path.name)
+
+
+def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
+    """Design every member of the job in `folder` and write its revision folder.
+
+    Everything is written into a staging folder that then replaces
+    ``rev-<R>/``, so rerunning a revision never leaves a mix of two runs.
+    """
+    opts = opts or RunOptions(**kw)
+    started = time.monotonic()
+    if opts.sheets:
+        start_kernel()  # it boots and imports in its own process while the members are designed
+    job = load_job(folder)
+    project, schedule, data = job.project, job.schedule, job.data
+    schedule.warnings += load_review_file(project.folder).problems
+    check_only(project, schedule.entries, opts.only)
+    jobdir = job_dir(project, opts.out)
+    # beam-model analyses are kept in the job's cache, for this run, its kernels and the next run
+    os.environ[BEAM_STORE_ENV] = str(jobdir / ".cache" / "beam")
+    designs = job.designs
+    prev_label = previous_revision(jobdir, project.revision)
+    previous = load_results(jobdir / f"rev-{prev_label}") if prev_label else None
+    extra = member_extras(project, designs, previous)
+    phases = {"design": time.monotonic() - started}
+    work: dict[str, float] = {}  # seconds per phase of the sheet work, summed over workers
+    stage, final = stage_dir(project, opts)
+    try:
+        warnings = project.warnings + schedule.warnings
+        report = RunReport(project, final, designs, warnings,
+                           data_errors=[str(e) for e in data.firm.errors] if data.firm else [])
+        every = sheet_tasks(project, designs, data, stage, opts, extra)
+        tasks = every if not opts.only else [t for t in every if t.mark in set(opts.only)]
+        if tasks and opts.sheets:
+            mark = time.monotonic()
+            report.sheets = run_sheets(tasks, opts.jobs, opts.progress, work)
+            phases["sheets"] = time.monotonic() - mark
+            for d in designs:
+                if d.mark in report.sheets:
+                    cross_check(d, report.sheets[d.mark])
+        doc = results_doc(project.name, project.revision, project.codes, designs, data.manifest(), data.hash,
+                          warnings, extra)
+        doc["run_at"] = dt.datetime.now().isoformat(timespec="seconds")
+        doc["previous_revision"] = prev_label
+        changes = diff(previous, doc) if previous else []
+        carried = Carried()
+        carry_sheets(every, final, stage, carried)
+        key = package_key(doc, every)
+        write_csv(stage / "diff.csv", DIFF_HEADER, diff_rows(changes))
+        from ..sheet.charts import write_chart
+
+        write_chart(stage / "summary.png", doc["members"],
+                    f"{project.fields['title']} rev {project.revision}: governing utilization", jobdir / ".cache")
+        if opts.sheets and opts.fmt == "pdf":
+            from ..build.package import build_package
+            from ..build.typeset import ConversionError
+
+            try:
+                mark = time.monotonic()
+                report.package = final / "package.pdf"
+                build_package(project, doc, data, stage, changes, hint=final,
+                              pages={m: o.pages for m, o in report.sheets.items() if o.pages},
+                              cache=jobdir / ".cache")
+                write_package_key(stage, key)
+                phases["package"] = time.monotonic() - mark
+            except ConversionError as exc:
+                report.package, report.package_error = None, str(exc)
+                report.log.append(f"package.pdf was not written: {exc}")
+        else:
+            carry_package(key, final, stage, carried)
+            report.package = final / "package.pdf" if (stage / "package.pdf").exists() else None
+        report.carried = carried
+        doc["carried_over"] = carried.to_json()
+        if (opts.sheets and opts.fmt == "html") or any(p.endswith(".html") for p in carried.kept):  # made or kept
+            from ..build.htmlindex import index_html
+
+            write_atomic(stage / "index.html", index_html(project, doc, stage))
+        write_results(stage, doc)
+        snapshot_inputs(project, stage)
+        counts = report.counts()
+        report.log.insert(0, f"{project.name} rev {project.revision}: {len(designs)} members, "
+                             f"{counts['pass']} pass, {counts['fail']} fail, {counts['error']} error; "
+                             f"{len(report.executed)} executed, {len(report.converted)} typeset, {len(report.stamped)} stamped "
+                             f"({time.monotonic() - started:.1f} s: "
+                             + ", ".join(f"{k} {v:.1f} s" for k, v in phases.items()) + ")"
+                             + ("; sheet work: " + ", ".join(f"{k} {v:.1f} s" for k, v in work.items()) if work else ""))
+        report.log += carried.log_lines()
+        report.log += warnings + report.data_errors
+        for d in designs:
+            report.log += [f"{d.mark}: {e}" for e in d.errors]
+        report.log += [f"{d.mark}: traceback of the internal error\n{d.trace.rstrip()}" for d in designs if d.trace]
+        report.log += [f"{o.mark}: traceback of the sheet failure\n{o.trace.rstrip()}"
+                       for o in report.sheets.values() if o.trace]
+        write_atomic(stage / "run.log", "\n".join(report.log) + "\n")
+        swap_into_place(stage, final)
+    finally:
+        shutil.rmtree(stage, ignore_errors=True)
+    return report
+
+
+__all__ = ["RunOptions", "RunReport", "run_job"]

@@ -1,0 +1,115 @@
+"""The sheet's list of unverified data values, in typeset symbols and plain words.
+
+results.json keeps each value's data label (``K_St sawn small wet service``);
+a sheet says the same thing as a checker reads it: the symbol set as maths, what
+it stands for, the case it applies to, and the table it should be checked
+against. Load combinations are named as the sheet's combination table numbers
+them (the NBC case labels, 1, 2a, 2b …).
+"""
+
+from __future__ import annotations
+
+import re
+
+from ..engineering.data import Datum
+from .symbols import ACTION_WORDS, meaning, symbol_latex
+from .tex import escape, md_escape
+
+#: Data-file names that appear in labels, in words.
+PLAIN = {
+    "K_X_straight": "straight members",
+    "shear_method_a_volume_max": "",  # the symbol Z_max says it
+    "C_V_simple_span_udl": "simple span under uniform load",
+    "simple-udl": "simple span under uniform load",
+}
+_IDENT = re.compile(r"[A-Za-z][A-Za-z0-9]*(?:_[A-Za-z0-9]+)+")
+
+
+def _qualifier(label: str, symbol: str) -> str:
+    """The label without its symbol, data names turned into words."""
+    words = [PLAIN.get(w, w) for w in label.split(" ") if w != symbol]
+    return re.sub(r"^limit, ", "", " ".join(w for w in words if w)).strip()
+
+
+def _text(qualifier: str) -> tuple[str, str]:
+    """LaTeX and Markdown of a qualifier; a symbol in it (K_Zb) set as maths, other names in words."""
+    latex, md, pos = [], [], 0
+    for match in _IDENT.finditer(qualifier):
+        name = match.group(0)
+        head = name.split("_")[0]
+        typeset = meaning(name) or (head[:1].isupper() or head in ("f", "phi")) and len(head) <= 2
+        latex.append(escape(qualifier[pos:match.start()]))
+        md.append(md_escape(qualifier[pos:match.start()]))
+        if typeset:
+            latex.append(f"${symbol_latex(name)}$")
+            md.append(f"${symbol_latex(name)}$")
+        else:
+            latex.append(escape(name.replace("_", " ")))
+            md.append(md_escape(name.replace("_", " ")))
+        pos = match.end()
+    return "".join(latex) + escape(qualifier[pos:]), "".join(md) + md_escape(qualifier[pos:])
+
+
+def _source(d: Datum) -> tuple[str, str]:
+    return (f"{escape(d.table)}; data file \\texttt{{{escape(d.file)}}}",
+            f"{md_escape(d.table)}; data file `{d.file}`")
+
+
+def unverified_items(used: list[Datum], described: frozenset[str] = frozenset()) -> list[tuple[str, str]]:
+    """(LaTeX, Markdown) per unverified value used; the load combinations together in one item.
+
+    A symbol in `described` (the sheet's factor table gives its meaning) is named without
+    its meaning again."""
+    items: dict[str, tuple[str, str]] = {}
+    combos: dict[str, Datum] = {}
+    for d in used:
+        if d.verified or d.warning in items:
+            continue
+        if d.label.startswith("NBC combination "):
+            combos.setdefault(d.label.split(" ", 2)[2], d)
+            continue
+        src_latex, src_md = _source(d)
+        if d.label.startswith("SLS combination "):
+            check, load = d.label.split(" ")[2:4]
+            words = f"Serviceability load factor on {load} for {ACTION_WORDS.get(check, check).lower()}"
+            items[d.warning] = (f"{escape(words)} ({src_latex})", f"{md_escape(words)} ({src_md})")
+            continue
+        symbol = d.symbol or d.label.split(" ")[0]
+        sym = f"${symbol_latex(symbol)}$"
+        what = "" if symbol in described else meaning(symbol)
+        q_latex, q_md = _text(_qualifier(d.label, symbol))
+        if q_latex.startswith("="):  # E05 = 0.87 E of …: the rule itself, after the symbol (again)
+            if not what:
+                items[d.warning] = (f"{sym} {q_latex} ({src_latex})", f"{sym} {q_md} ({src_md})")
+                continue
+            q_latex, q_md = f"{sym} {q_latex}", f"{sym} {q_md}"
+        head_latex = sym + (f", {escape(what)}" if what else "") + (f": {q_latex}" if q_latex else "")
+        head_md = sym + (f", {md_escape(what)}" if what else "") + (f": {q_md}" if q_md else "")
+        items[d.warning] = (f"{head_latex} ({src_latex})", f"{head_md} ({src_md})")
+    if combos:
+        first = next(iter(combos.values()))
+        src_latex, src_md = _source(first)
+        words = f"Load factors of combinations {', '.join(combos)} (numbered as in the load combinations table)"
+        items["combinations"] = (f"{escape(words)} ({src_latex})", f"{md_escape(words)} ({src_md})")
+    return list(items.values())
+
+
+#: The head of the sheet's list; every value in it was recorded from memory.
+LISTING_HEAD = "Data values used here that are not yet verified against the standard (memory, unverified): "
+
+
+def unverified_listing(used: list[Datum], described: frozenset[str] = frozenset()) -> tuple[str, str]:
+    """The cautions' list of unverified values (LaTeX, Markdown), or two empty strings.
+
+    A run-in paragraph, the values one after another separated by semicolons: every value
+    is named with its symbol, case, table and data file, as in a bulleted list, in about
+    half its height. Symbols in `described` are in the sheet's factor table, which gives
+    their meaning and marks them unverified, so the list does not say the meaning again."""
+    entries = unverified_items(used, described)
+    if not entries:
+        return "", ""
+    # "NBC 2020", "Table 7.3", "O86-14" kept on one line: a run-in line never starts with a bare number
+    latex = re.sub(r"\b(NBC|Table|Cl\.) (?=\d)", r"\1~", "; ".join(item for item, _ in entries))
+    latex = re.sub(r"\b([A-Z]+\d+-\d+)\b", r"\\mbox{\1}", latex)
+    return (f"\\par\\smallskip {escape(LISTING_HEAD)}{latex}.\n",
+            "\n\n" + md_escape(LISTING_HEAD) + "\n" + "".join(f"- {text}\n" for _, text in entries))

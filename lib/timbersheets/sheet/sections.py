@@ -1,0 +1,497 @@
+"""The calc sheet's content, section by section, for one member.
+
+A template notebook calls these in order; each returns a :class:`Block` that
+shows as Markdown in JupyterLab and as LaTeX in the PDF. Every number comes from
+the member's :class:`~timbersheets.engineering.design.MemberDesign`, the same objects that
+write results.json, so a sheet cannot disagree with the verdict.
+"""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+from typing import Any
+
+from ..constants import CAUTION, RESULT_MIME
+from ..engineering.calc import format_number, format_value, unit_latex, unit_text
+from ..engineering.checks import CheckResult
+from ..engineering.data import DataSet
+from ..engineering.design import MemberDesign, effects_of
+from ..engineering.loads import EFFECT_UNITS, EFFECTS, KD_SYMBOLS, LOAD_TYPES, kd_permanent
+from ..engineering.membertypes import MemberType, member_type
+from ..engineering.sizing import design_sized
+from ..engineering.units import to_display
+from ..schedule.read import Member
+from .blocks import Block, heading, math_block, para, q, table
+from .symbols import ACTION_WORDS, meaning, symbol_latex, symbol_unit
+from .tex import Cell, Table, escape, md_escape
+
+LOAD_NAMES = {"D": "Dead", "L": "Live (use and occupancy)", "S": "Snow (with rain)", "W": "Wind", "E": "Earthquake"}
+EFFECT_NAMES = {"P": "P", "w": "w", "M": "M", "V": "V", "F": "F"}
+
+
+class Sheet:
+    """The sections of one member's calc sheet."""
+
+    def __init__(self, design: MemberDesign, data: DataSet, codes: dict[str, str]) -> None:
+        self.design = design
+        self.data = data
+        self.codes = codes
+
+    @classmethod
+    def from_params(cls, member: dict[str, Any], codes: dict[str, str], materials: str = "") -> "Sheet":
+        """Rebuild the member from notebook parameters and design it."""
+        data = DataSet(Path(materials) if materials else None)
+        design = design_sized(Member.from_params(member), data)
+        return cls(design, data, codes)
+
+    @property
+    def m(self) -> Member:
+        assert self.design.member is not None
+        return self.design.member
+
+    @property
+    def kind(self) -> MemberType:
+        return member_type(self.m.type)
+
+    # 1 -------------------------------------------------------------------------
+    def member_section(self) -> Block:
+        m, d = self.m, self.design
+        section = d.context.section if d.context else None if m.size == "auto" else m.section
+        size = (Cell(self._size_latex(section), self._size_text(section)) if section is not None
+                else "auto: not sized (see section 5)")
+        if section is not None and m.size == "auto":
+            size = Cell("chosen by the search (schedule size = auto): " + size.latex, "auto: " + size.markdown)
+        rows: list[list[object]] = [
+            ["Type", f"{m.type} member"],
+            ["Material", d.context.strengths.description if d.context else f"{m.species} {m.grade} {m.material}"],
+            ["Size", size],
+            ["Service condition", Cell(f"{m.service}; $K_T = {format_number(m.K_T)}$, $K_H = {format_number(m.K_H)}$ "
+                                       "from the schedule", f"{m.service}; K_T = {m.K_T:g}, K_H = {m.K_H:g}")],
+        ]
+        if self.kind.shows("span") and section is not None:
+            from .beamsheet import member_rows
+
+            rows += member_rows(m, section, {c.check for c in d.checks} if not d.errors else None)
+        if section is not None:
+            length, net_area = self._axial_rows(m, section)
+            rows += [row for name, row in (("length", length), ("net-area", net_area)) if self.kind.shows(name)]
+        if m.entered:
+            rows.append(["As entered", entered_cell(m)])
+        if m.note:
+            rows.append(["Note", m.note])
+        rows.append(["Schedule", f"row {m.row}"])
+        return heading("Member") + table(Table(["Item", "Value"], rows, "lX"))
+
+    @staticmethod
+    def _axial_rows(m, section) -> list[list[object]]:
+        return [
+            ["Length", Cell(f"$L = {format_value(m.length, 'mm')}$; $K_e = {format_number(m.Ke)}$; "
+                            f"$L_x = {format_value(m.Lx, 'mm')}$, $L_y = {format_value(m.Ly, 'mm')}$",
+                            f"L = {m.length:g} mm; Ke = {m.Ke:g}; Lx = {m.Lx:g} mm, Ly = {m.Ly:g} mm")],
+            ["Net area", Cell(f"$A_n = {format_number(m.net_area)}\\,A_g = {format_value(section.A * m.net_area, 'mm**2')}$",
+                              f"A_n = {m.net_area:g} A_g")],
+        ]
+
+    @staticmethod
+    def _size_latex(s) -> str:
+        plies = f"{s.plies} plies of " if s.plies > 1 else ""
+        return (f"{plies}${format_number(s.ply_b, 'mm')} \\times {format_number(s.d, 'mm')}$ mm; "
+                f"$b = {format_value(s.b, 'mm')}$, $d = {format_value(s.d, 'mm')}$, "
+                f"$A_g = {format_value(s.A, 'mm**2')}$, $S_x = {format_value(s.S_x, 'mm**3')}$, "
+                f"$I_x = {format_value(s.I_x, 'mm**4')}$")
+
+    @staticmethod
+    def _size_text(s) -> str:
+        return f"{s.label} mm; b = {s.b:g} mm, d = {s.d:g} mm, A = {s.A:g} mm²"
+
+    def sizing_section(self) -> Block:
+        """For size = auto: the search, the chosen section and the runners-up."""
+        sz = self.design.sizing
+        if sz is None:
+            return Block("", "")
+        from ..job.results import round_utilization
+
+        def row(c, word):
+            u = "--" if c.utilization == float("inf") else f"{round_utilization(c.utilization):.3f}"
+            return [c.label, Cell(f"${format_number(c.section.A, 'mm**2')}$", format_number(c.section.A, "mm**2")),
+                    Cell(f"${u}$", u), c.governing, word]
+
+        rows = []
+        if sz.chosen is not None:
+            rows.append(row(sz.chosen, "chosen"))
+        rows += [row(c, f"lighter; passed over for prefer = {self.m.prefer}"
+                      if sz.chosen is not None and c.section.A < sz.chosen.section.A else "runner-up")
+                 for c in sz.runners_up]
+        if sz.chosen is None and sz.best is not None:
+            rows.append(row(sz.best, "best reached; does not pass"))
+        words = (f"The schedule asks for the size (size = auto). The catalogue of standard sections "
+                 f"({escape(self.m.material)} {escape(self.m.grade)}) was searched lightest first, least area then "
+                 f"least depth, with every check under every combination; {sz.searched} sections were tried"
+                 f"{'; constraints: ' + escape(sz.constraints) if sz.constraints else ''}.")
+        if sz.chosen is None:
+            words += " No standard section passes; the sheet shows the best one found."
+        return heading("Sizing", 2) + para(words) + table(Table(
+            ["Size", "Area", "Utilization", "Governing", ""], rows, "lrrXl", ["mm", "mm²", "", "", ""]))
+
+    # 2 -------------------------------------------------------------------------
+    def present_effects(self) -> list[str]:
+        ctx = self.design.context
+        return effects_of(ctx.member if ctx else self.m).present()  # with the own weight the tool adds
+
+    def loads_section(self) -> Block:
+        m = self.m
+        effects = self.present_effects()
+        header = ["Load", "Symbol", *[Cell.math(EFFECT_NAMES[e]) for e in effects], "Duration class"]
+        units = ["", "", *[unit_text_of(e) for e in effects], ""]
+        rows = []
+        from ..engineering.loads import DURATION_CLASS
+
+        specified = effects_of(m)
+        for t in LOAD_TYPES:
+            if any(specified.get(e, t) for e in effects):
+                rows.append([LOAD_NAMES[t], Cell.math(t), *[q(specified.get(e, t), EFFECT_UNITS[e]) for e in effects],
+                             DURATION_CLASS[t] + " term"])
+            if t == "D":
+                rows += self.own_weight_rows(effects)
+        sense = ("Line loads act downward on the span, negative values upward (uplift); moments and shears are "
+                 "the frame model's, by load type." if self.kind.axial is None else
+                 "Positive axial force acts in the member's own sense (tension for a tension member, compression "
+                 "otherwise).")
+        weight = self.design.context.own_weight if self.design.context else None
+        own = ("The tool adds the member's own weight to the dead load D, as its own line (worked below); "
+               "every combination's D includes it." if weight else
+               "The schedule's dead load includes the member's own weight (self_weight = no); the tool adds none.")
+        intro = para("Specified loads from the schedule, including importance factors, by load type (NBC "
+                     f"{escape(self.codes.get('nbc', '2020'))} Part 4). {escape(own)} {sense}")
+        from .modelsheet import loads_block
+
+        out = heading("Specified loads") + intro + table(Table(header, rows, "ll" + "r" * len(effects) + "l", units))
+        return out + self.own_weight_block(weight) + loads_block(m)
+
+    def own_weight_rows(self, effects: list[str]) -> list[list[object]]:
+        weight = self.design.context.own_weight if self.design.context else None
+        if weight is None or weight.effect not in effects:
+            return []
+        cells = [q(weight.value, EFFECT_UNITS[e]) if e == weight.effect else "" for e in effects]
+        return [["Own weight (in D)", Cell.math("D"), *cells, "long term"]]
+
+    def own_weight_block(self, weight) -> Block:
+        if weight is None:
+            return Block("", "")
+        from ..engineering.ownweight import own_weight_line, own_weight_total
+
+        d = weight.density
+        where = ("a uniform line load on the span" if weight.effect == "w" else
+                 "axial load at the base: the whole weight, on the safe side of the weight above the critical section")
+        out = para(f"Own weight, as {escape(where)}; density $\\rho$ of {escape(self.m.material)} "
+                   f"{escape(self.m.species)} in {escape(self.m.service)} service from densities.csv "
+                   f"({escape(d.table or 'table number not recorded')}; {escape(d.source)}; {escape(d.status)}); "
+                   "$g$ = 9.81 N/kg:")
+        out += math_block(own_weight_line.latex(weight.line))
+        if weight.total is not None:
+            out += math_block(own_weight_total.latex(weight.total))
+        return out
+
+    # 3 -------------------------------------------------------------------------
+    def combinations_section(self) -> Block:
+        d = self.design
+        effects = self.present_effects()
+        header = ["NBC case", "Combination", *[Cell.math(f"{EFFECT_NAMES[e]}_f") for e in effects], Cell.math("K_D"),
+                  Cell("Basis of $K_D$", "Basis of K_D")]
+        units = ["", "", *[unit_text_of(e) for e in effects], "", ""]
+        rows = []
+        for case in d.cases:
+            rows.append([case.combination.id, case.label, *[q(case.factored[e], EFFECT_UNITS[e]) for e in effects],
+                         Cell(f"${format_number(case.K_D)}$", format_number(case.K_D)), basis_cell(case.basis)])
+        intro = para(f"ULS load combinations of NBC {escape(self.codes.get('nbc', '2020'))} Table 4.1.3.2.-A, "
+                     "numbered as its cases, "
+                     "each principal load with and without its companion loads; 0.9D only where a load acts "
+                     "against the dead load; combinations that repeat another are left out. "
+                     "$K_D$ by the duration class of the principal load (CSA O86-14 5.3.2, Table 5.1), one value "
+                     "for every resistance of the combination. In a live- or snow-principal combination, each "
+                     "effect that carries live or snow load is tested by 5.3.2.3 and the lowest value is used; an "
+                     "effect from dead load alone is checked long-term in the dead-only combination (1.4D with "
+                     "0.65 is the more severe case).",
+                     "ULS load combinations of NBC Table 4.1.3.2.-A; K_D by the principal load (CSA O86 5.3.2), one "
+                     "value per combination.")
+        if self.m.live_use == "storage" and any(self.m.values[f"{e}_L"] for e in EFFECTS):
+            storage = ("Storage live load (live_use = storage): every companion 0.5L is raised to 1.0L (the NBC "
+                       "4.1.3.2 note on storage areas, equipment areas and service rooms; recorded from memory), and "
+                       "the live load is long-term load in K_D, as O86 Table 5.1 classes storage loads: 0.65 where L "
+                       "is the principal load, and L counted in the long-term part X_lt elsewhere.")
+            intro += para(escape(storage), storage)
+        if any(self.m.values[f"{e}_{t}"] for e in EFFECTS for t in ("W", "E")):
+            senses = ("Wind and earthquake act in both senses (wind_sense = both): every combination with W or E "
+                      "is applied as the schedule gives the load (+) and reversed (−), with 0.9D where the reversed "
+                      "load opposes the dead load." if self.m.wind_sense != "one-way" else
+                      "Wind and earthquake act only in the sense the schedule gives (wind_sense = one-way).")
+            intro += para(escape(senses), senses)
+        out = heading("Load combinations") + intro + table(
+            Table(header, rows, "rl" + "r" * len(effects) + "rX", units))
+        reduced = [case for case in d.cases if case.kd_values]
+        if reduced:  # the rule once, then each combination's K_D (a few lines each, not a paragraph)
+            words = "; ".join(f"${symbol_latex(k)}$ is {v}" for k, v in KD_SYMBOLS.items())
+            out += para("Where the long-term (dead) part exceeds the standard-term part, $K_D$ follows CSA O86-14 "
+                        f"5.3.2.3 ({words}; O86's own letters for these are those of the schedule's live and snow "
+                        "load columns, hence new names).")
+        for case in reduced:
+            unit = EFFECT_UNITS[case.kd_effect]
+            latex = kd_permanent.latex(case.kd_values, units={"X_lt": unit, "X_st": unit})
+            out += para(f"For {escape(case.label)}, on ${case.kd_effect}$:")
+            out += math_block(latex)
+        if self.kind.shows("forces"):
+            from .beamsheet import forces_block
+
+            out += forces_block(d)
+        return out
+
+    def diagram(self) -> list[object]:
+        """Bending members: the shear and moment diagram of the governing combination (else nothing)."""
+        from .beamsheet import diagram
+
+        return diagram(self.design) if self.kind.shows("diagram") else []
+
+    def serviceability_section(self) -> Block:
+        """Bending members: the SLS combinations used for deflection, with their sources."""
+        from .beamsheet import serviceability_block
+
+        return serviceability_block(self.design, self.data) if self.kind.shows("serviceability") else Block("", "")
+
+    # 4 -------------------------------------------------------------------------
+    def factors_section(self) -> Block:
+        d = self.design
+        rows = []
+        seen: set[str] = set()
+        for datum in d.data_used:
+            if datum.symbol in seen or datum.label.startswith(("NBC combination", "SLS combination")) \
+                    or datum.symbol == "K_D":
+                continue
+            seen.add(datum.symbol)
+            unit = "MPa" if datum.symbol.startswith(("f_", "E")) else symbol_unit(datum.symbol)
+            value = format_number(datum.value, unit) + (f"\\ {unit_latex(unit)}" if unit else "")
+            where = f"{datum.table}; firm file {datum.firm}" if datum.firm else datum.table
+            status = datum.status_text + (f"; firm value, built-in {datum.builtin:g}" if datum.builtin is not None else "")
+            rows.append([Cell.math(symbol_latex(datum.symbol)), Cell(f"${value}$", value),
+                         meaning(datum.symbol) or datum.label, where, status])
+        m = self.m
+        given = (("K_H", m.K_H), ("K_T", m.K_T)) + ((("K_e", m.Ke),) if self.kind.shows("length") else ())
+        for name, value in given:
+            rows.append([Cell.math(symbol_latex(name)), Cell(f"${format_number(value)}$", format_number(value)),
+                         meaning(name), "schedule", "as given"])
+        intro = para(f"Specified strengths for {escape(d.context.strengths.description) if d.context else ''}, "
+                     "modification factors and resistance factors used by the checks below, with the table "
+                     "each comes from. Values marked unverified were recorded from memory or secondary sources "
+                     "(lib/timbersheets/data/README.md lists each) and await checking against a licensed copy of "
+                     "the standard.")
+        return heading("Material and modification factors") + intro + table(
+            Table(["Symbol", "Value", "Meaning", "Source", "Data status"], rows, "lrWNl"))
+
+    # 5 -------------------------------------------------------------------------
+    def checks_section(self) -> Block:
+        d = self.design
+        out = heading("Checks")
+        if d.errors:
+            items = "".join(f"\\item {escape(e)}\n" for e in d.errors)
+            return out + Block(f"\\begin{{itemize}}\n{items}\\end{{itemize}}\n",
+                               "".join(f"- {md_escape(e)}\n" for e in d.errors))
+        for name, gov in d.governing_by_check().items():
+            out += self._check_block(name, gov, [c for c in d.checks if c.check == name])
+        return out
+
+    def _check_block(self, name: str, gov: CheckResult, all_cases: list[CheckResult]) -> Block:
+        out = heading(f"{ACTION_WORDS.get(name, name)} ({gov.clause})", 2)
+        shown = branches(name, all_cases)
+        for result in shown:
+            kd = ("specified loads; $K_D$ does not apply to stiffness" if serviceability(result)
+                  else f"$K_D = {format_number(result.K_D)}$")
+            branch = (("Negative moment (bottom edge in compression)" if result.demand < 0 else
+                       "Positive moment (top edge in compression)") + ", shown in full for the combination that "
+                      "governs it" if len(shown) > 1 else "Shown in full for the governing combination")
+            at = f" at {escape(result.where)}" if result.where else ""
+            out += para(f"{branch} {escape(result.combination)}{at} ({kd}); every combination is listed after.")
+            for step in result.steps:
+                if step.caption:
+                    out += para(f"\\emph{{{caption_latex(step.caption)}}}", f"*{md_escape(step.caption)}*")
+                out += math_block(step.latex())
+            out += math_block(self._utilization_latex(result))
+        unit = gov.unit
+        header = ["Combination", Cell.math("K_D"), Cell.math(gov.demand_symbol_latex),
+                  Cell.math(gov.resistance_symbol_latex), "Utilization"]
+        if name == "interaction":
+            header[2:4] = [Cell(f"Interaction ${gov.demand_symbol_latex}$", "Interaction"), "Limit"]
+        units = ["", "", unit_text(unit), unit_text(unit), ""]
+        rows = [[c.combination, kd_cell(c), num(c.demand, unit), num(c.resistance, unit), util_cell(c.utilization)]
+                for c in all_cases]
+        if any(c.where for c in all_cases):  # a beam model: one row per place and combination
+            header.insert(1, "Where")
+            units.insert(1, "")
+            for row, c in zip(rows, all_cases):
+                row.insert(1, escape(c.where))
+            return out + table(Table(header, rows, "lXrrrr", units))
+        return out + table(Table(header, rows, "lrrrr", units))
+
+    @staticmethod
+    def _utilization_latex(c: CheckResult) -> str:
+        from ..job.results import round_utilization
+
+        u = round_utilization(c.utilization)
+        relation = r"\le 1.0\ \text{(passes)}" if c.utilization <= 1.0 else r"> 1.0\ \text{(does not pass)}"
+        if c.check == "interaction":
+            return f"$${c.demand_symbol_latex} = {u:.3f} {relation}$$"
+        demand = f"{format_number(c.demand, c.unit)}\\ {unit_latex(c.unit)}"
+        resistance = f"{format_number(c.resistance, c.unit)}\\ {unit_latex(c.unit)}"
+        return (f"$$\\frac{{{c.demand_symbol_latex}}}{{{c.resistance_symbol_latex}}} = "
+                f"\\frac{{{demand}}}{{{resistance}}} = {u:.3f} {relation}$$")
+
+    # 6 -------------------------------------------------------------------------
+    def summary_section(self) -> Block:
+        d = self.design
+        out = heading("Summary")
+        if d.errors:
+            verdict = "NOT DESIGNED"
+            lines = ["The member could not be designed as described; see section 5."]
+        else:
+            from ..job.results import round_utilization
+
+            rows = [[ACTION_WORDS.get(c.check, c.check), c.combination, kd_cell(c), util_cell(c.utilization)]
+                    for c in d.governing_by_check().values()]
+            out += table(Table(["Check", "Governing combination", Cell.math("K_D"), "Utilization"], rows, "llrr"))
+            gov = d.governing
+            verdict = "PASSES" if d.status == "pass" else "DOES NOT PASS"
+            lines = [f"Governing check: {ACTION_WORDS.get(gov.check, gov.check).lower()}",
+                     f"Combination: {gov.combination}",
+                     f"Utilization: {round_utilization(gov.utilization):.3f}"]
+        body = "\\quad\n".join(f"\\mbox{{{escape(x)}}}" for x in lines)  # on one line under the verdict if they fit
+        return out + Block(
+            f"\\begin{{verdictbox}}\n{{\\Large {verdict}}}\\\\[2pt]\n{body}\n\\end{{verdictbox}}\n",
+            f"> **{verdict}**  \n> " + "  \n> ".join(md_escape(x) for x in lines) + "\n")
+
+    def cautions(self) -> Block:
+        warnings = self.design.data_warnings
+        listing = ""
+        md = ""
+        if warnings:
+            from .cautions import unverified_listing
+
+            described = frozenset(d.symbol for d in self.design.data_used if d.symbol != "K_D" and not
+                                  d.label.startswith(("NBC combination", "SLS combination")))  # in the factor table
+            listing, md = unverified_listing(self.design.data_used, described)
+        source, extra, extra_md = self._data_note()
+        listing, md = extra + listing, extra_md + md
+        codes = (f" Designed to CSA O86:{escape(self.codes.get('o86', '2019'))[-2:]} with loads combined per "
+                 f"NBC~{escape(self.codes.get('nbc', '2020'))} Part~4.")
+        clauses = (" The methods, clause numbers and tables used here follow CSA O86-14 (each data value names "
+                   "its edition); where O86:19 is known to have revised one of them, it is listed below.")
+        notes = ""
+        from ..engineering.edition import revision_notes
+
+        revised = revision_notes(self.design)
+        if revised:
+            items = "".join(f"\\item {caption_latex(r)}\n" for r in revised)
+            notes += ("\\par\\smallskip Earlier (O86-14) forms used where O86:19 revised the clause; verify them:\n"
+                      f"\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n")
+            md += "\n\nEarlier (O86-14) forms used where O86:19 revised the clause:\n" + "".join(
+                f"- {md_escape(r)}\n" for r in revised)
+        if self.design.warnings:
+            items = "".join(f"\\item {caption_latex(w)}\n" for w in self.design.warnings)
+            notes += f"\\par\\smallskip Notes on this member:\n\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n"
+            md += "\n\nNotes:\n" + "".join(f"- {md_escape(w)}\n" for w in self.design.warnings)
+        return Block(f"\\begin{{cautionbox}}\n{escape(CAUTION)}{codes}{escape(clauses)}{escape(source)}\n{notes}"
+                     f"{listing}\\end{{cautionbox}}\n",
+                     f"**Caution.** {md_escape(CAUTION)}{md_escape(source)}{md}\n")
+
+    def _data_note(self) -> tuple[str, str, str]:
+        """Which data the sheet used (the firm file: name, hash, checkers) and the firm's corrections."""
+        firm, values = self.data.firm, self.design.data_values
+        supplied = sum(1 for v in values if v.firm)
+        source = (f" Data: the built-in tables and {firm.description}; it supplies {supplied} of the "
+                  f"{len(values)} values used here." if firm else " Data: the built-in tables; no firm data file.")
+        if not self.design.data_warnings:
+            source += " No data value used here is unverified."
+        corrections = self.design.data_corrections
+        if not corrections:
+            return source, "", ""
+        items = "".join(f"\\item {escape(c)}\n" for c in corrections)
+        latex = ("\\par\\smallskip Firm values that differ from the built-in data (the firm value is used):\n"
+                 f"\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n")
+        md = "\n\nFirm values that differ from the built-in data:\n" + "".join(f"- {md_escape(c)}\n" for c in corrections)
+        return source, latex, md
+
+    def record(self) -> dict[str, Any]:
+        """The member's results.json entry, as a display bundle the runner cross-checks."""
+        from ..job.results import member_json
+
+        return {RESULT_MIME: member_json(self.design), "text/plain": f"result record for {self.design.mark}"}
+
+
+_SYMBOL = re.compile(r"(?<![A-Za-z0-9\\])([A-Za-z]+)_([A-Za-z0-9]+)(?![A-Za-z0-9])")
+
+
+def caption_latex(text: str) -> str:
+    """A caption with its O86 symbols (K_L, V_fd, f_b) set as maths; schedule column names stay text."""
+    out, pos = [], 0
+    for match in _SYMBOL.finditer(text):
+        head = match.group(1)
+        if head.islower() and len(head) > 1 and head != "phi":
+            continue  # a column name such as defl_L
+        out += [escape(text[pos:match.start()]), f"${symbol_latex(match.group(0))}$"]
+        pos = match.end()
+    return "".join(out) + escape(text[pos:])
+
+
+def entered_cell(m: Member) -> Cell:
+    """Cells the schedule wrote in another unit (12 ft, 4.5 kip), as written, beside the value used."""
+    from ..schedule.read import COLUMNS
+
+    latex, text = [], []
+    for name, written in m.entered.items():
+        unit = COLUMNS[name].compute
+        latex.append(f"\\texttt{{{escape(name)}}} {escape(written)} $= {format_value(m.values[name], unit)}$")
+        shown, shown_unit = to_display(m.values[name], unit)
+        text.append(f"{name} {written} = {format_number(shown, shown_unit)} {unit_text(shown_unit)}")
+    return Cell("; ".join(latex), md_escape("; ".join(text)))
+def branches(name: str, results: list[CheckResult]) -> list[CheckResult]:
+    """The results a sheet works in full: the governing one of each branch of the check.
+
+    Bending has two branches, positive and negative moment (top or bottom edge in compression, with its
+    own f_b and L_u); each that occurs is shown for the combination that governs it, worst first."""
+    if name != "bending":
+        return [max(results, key=lambda c: c.utilization)]
+    groups = [[c for c in results if (c.demand < 0) == negative] for negative in (False, True)]
+    return sorted((max(g, key=lambda c: c.utilization) for g in groups if g), key=lambda c: -c.utilization)
+
+
+def basis_cell(basis: str) -> Cell:
+    """The K_D basis with its symbols set as maths."""
+    latex = escape(basis).replace(r"X\_lt \textgreater{} X\_st", "$X_{lt} > X_{st}$")
+    return Cell(latex, md_escape(basis))
+
+
+def unit_text_of(effect: str) -> str:
+    return unit_text(to_display(1.0, EFFECT_UNITS[effect])[1])
+
+
+def num(value: float, unit: str) -> Cell:
+    """A result in a check's table; deflections (mm) to 0.1 mm, like forces to 0.1 kN."""
+    text = f"{value:.1f}" if unit == "mm" else format_number(value, unit)
+    return Cell(f"${text}$", text)
+
+
+def serviceability(c: CheckResult) -> bool:
+    return c.check.startswith("deflection")
+
+
+def kd_cell(c: CheckResult) -> Cell:
+    """K_D of a strength check; a dash for deflection, where K_D does not apply."""
+    if serviceability(c):
+        return Cell("--", "–")
+    return Cell(f"${format_number(c.K_D)}$", format_number(c.K_D))
+
+
+def util_cell(u: float) -> Cell:
+    from ..job.results import round_utilization
+
+    shown = f"{round_utilization(u):.3f}"
+    flag = "" if u <= 1.0 else " > 1"
+    return Cell(f"${shown}${flag}", f"{shown}{flag}")
