@@ -40,8 +40,9 @@ wheel-check: $(STAMP) system
 	$(PYTHON) -m venv build/wheel-check/venv
 	build/wheel-check/venv/bin/python -m pip install -q build/wheel-check/timbersheets-*.whl
 	cp -r $(DEMO) build/wheel-check/elsewhere/job
-	cd build/wheel-check/elsewhere && ../venv/bin/timbersheets run job --only C-3 --jobs 1 --out out \
-		&& test -s out/rev-A/sheets/C-3.pdf && echo "wheel-check: the installed wheel built a sheet"
+	# exit 1 says a member does not pass (the demo's P-4 is undersized on purpose); 2 and up are errors
+	cd build/wheel-check/elsewhere && { ../venv/bin/timbersheets run job --only C-3 --jobs 1 --out out; \
+		[ $$? -le 1 ]; } && test -s out/rev-A/sheets/C-3.pdf && echo "wheel-check: the installed wheel built a sheet"
 
 bench: $(STAMP) system
 	$(BIN)/python tools/bench.py
