@@ -25,7 +25,7 @@ def test_a_stored_analysis_reads_back_the_same_without_pycba(tmp_path, monkeypat
     monkeypatch.setenv(beammodel.STORE_ENV, str(tmp_path))
     first = beammodel.analyse(TWO_SPANS, LOADS, (450.0,))
     assert len(list(tmp_path.glob("*.npz"))) == 1 and not list(tmp_path.glob("*.part*"))
-    code = ("import json, sys; from timbersheets import beammodel as b\n"
+    code = ("import json, sys; from timbersheets.engineering import beammodel as b\n"
             f"r = b.analyse(b.Geometry((3600.0, 4200.0), right=900.0), {LOADS!r}, (450.0,))\n"
             "print(json.dumps({'pycba': 'pycba' in sys.modules, 'M': r.M.tolist(), 'V': r.V.tolist(),"
             " 'D': r.D.tolist(), 'R': r.R.tolist(), 'x': r.x.tolist()}))")

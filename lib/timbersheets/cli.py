@@ -13,6 +13,7 @@ from pathlib import Path
 
 from . import __version__
 from .errors import ExitCode, TimbersheetsError, UsageError
+from .fileio import write_atomic
 from .job.project import OUTPUT_RULE
 from .job.review import VERDICTS
 
@@ -138,8 +139,8 @@ def cmd_new(args: argparse.Namespace) -> int:
     if (folder / "project.toml").exists() or (folder / "schedule.csv").exists():
         raise UsageError(f"{folder} already holds a job; nothing was changed")
     folder.mkdir(parents=True, exist_ok=True)
-    (folder / "project.toml").write_text(PROJECT_TEMPLATE.format(date=dt.date.today().isoformat()), encoding="utf-8")
-    (folder / "schedule.csv").write_text(SCHEDULE_TEMPLATE, encoding="utf-8")
+    write_atomic(folder / "project.toml", PROJECT_TEMPLATE.format(date=dt.date.today().isoformat()))
+    write_atomic(folder / "schedule.csv", SCHEDULE_TEMPLATE)
     print(f"created {folder}/project.toml and {folder}/schedule.csv")
     print(f"next: fill them in, then run: timbersheets run {folder}")
     return ExitCode.OK

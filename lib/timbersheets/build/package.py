@@ -23,7 +23,7 @@ from typing import Any
 from .. import __version__
 from ..constants import CAUTION, SHORT_CAUTION
 from ..engineering.data import DataSet
-from ..fileio import copy_atomic
+from ..fileio import copy_atomic, write_atomic
 from ..job.project import Project
 from ..job.review import count_text, standing, titleblock_text
 from ..job.revisions import MemberChange
@@ -224,7 +224,7 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
     cached = cache / f"{_package_key(tex, outdir, rows)}.package.pdf" if cache is not None else None
     if cached is not None and cached.exists():
         copy_atomic(cached, target)
-        (outdir / FRONT_HINT).write_text(str(front_pages))
+        write_atomic(outdir / FRONT_HINT, str(front_pages))
         return target
     with tempfile.TemporaryDirectory(prefix="ts-pkg-") as tmp, ThreadPoolExecutor(max_workers=1) as ahead:
         work = Path(tmp)
@@ -269,7 +269,7 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
                     outline.root.append(parent)
             package.docinfo["/Title"] = f"{project.fields['title']} - calculation package rev {project.revision}"
             package.docinfo["/Creator"] = f"timbersheets {__version__}"
-            (outdir / FRONT_HINT).write_text(str(front_pages))
+            write_atomic(outdir / FRONT_HINT, str(front_pages))
             staged = target.with_name(".package.pdf.part")
             package.save(staged)
             for src in sources:

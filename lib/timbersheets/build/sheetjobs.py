@@ -32,7 +32,7 @@ from pathlib import Path
 from typing import Any
 
 from ..constants import RESULT_MIME
-from ..fileio import copy_atomic
+from ..fileio import copy_atomic, write_atomic
 from ..lifetime import die_with_parent
 from .batch import Body, Stamp, fixed_fields, stamp_sheets, stamped_fields, typeset_bodies
 from .notebooks import execute, file_hash, library_fingerprint, start_kernel, templates_dir, to_html
@@ -187,8 +187,8 @@ def run_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, flo
             outcomes[mark].pages = result
     for body in bodies:
         if outcomes[body.mark].converted:
-            _pages_file(body.pdf).write_text(str(outcomes[body.mark].pages))
-            _pages_file(body.sheet).write_text(str(outcomes[body.mark].pages))
+            write_atomic(_pages_file(body.pdf), str(outcomes[body.mark].pages))
+            write_atomic(_pages_file(body.sheet), str(outcomes[body.mark].pages))
     return list(outcomes.values()), times
 
 
@@ -330,7 +330,7 @@ def _finish(tasks: list[SheetTask], outcomes: dict[str, SheetOutcome], jobs: int
             outcomes[mark].fail(str(result))
         else:
             outcomes[mark].stamped = True
-            _pages_file(made[mark]).write_text(str(result))
+            write_atomic(_pages_file(made[mark]), str(result))
     for task in tasks:
         if task.sheet is not None and task.cached_sheet.exists() and task.cached_sheet.stat().st_size:
             copy_atomic(task.cached_sheet, task.sheet)
