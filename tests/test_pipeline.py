@@ -257,8 +257,9 @@ def test_no_page_holds_only_a_verdict_or_ends_with_a_heading(demo_run):
 #: checks on four, a member that combines axial force and bending on five.
 PAGE_LIMITS = {"axial": 2, "bending": 4, "combined": 5}
 #: Routines whose demo sheets are still longer (the most pages any demo member of the routine takes,
-#: measured; tension members 3, compression 5): their tables of every combination and check are the next step.
-OVER_LIMIT = {"axial": 5, "bending": 8, "combined": 7}
+#: measured; tension members 3, compression 4): every equation is shown with its numbers and every
+#: combination is tabled, which is what a checker needs; the next step would be fewer words, not fewer checks.
+OVER_LIMIT = {"axial": 4, "bending": 8, "combined": 7}
 
 
 @pytest.mark.parametrize("routine", [

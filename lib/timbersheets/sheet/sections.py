@@ -356,7 +356,8 @@ class Sheet:
 
             rows = [[ACTION_WORDS.get(c.check, c.check), c.combination, kd_cell(c), util_cell(c.utilization)]
                     for c in d.governing_by_check().values()]
-            out += table(Table(["Check", "Governing combination", Cell.math("K_D"), "Utilization"], rows, "llrr"))
+            if len(rows) > 1:  # with one check, its one row would say what the verdict box says
+                out += table(Table(["Check", "Governing combination", Cell.math("K_D"), "Utilization"], rows, "llrr"))
             gov = d.governing
             verdict = "PASSES" if d.status == "pass" else "DOES NOT PASS"
             lines = [f"Governing check: {ACTION_WORDS.get(gov.check, gov.check).lower()}",
