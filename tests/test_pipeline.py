@@ -94,6 +94,16 @@ def test_every_check_value_in_results_is_on_the_sheet(demo_run):
         assert verdict in text
 
 
+def test_no_sheet_prints_latex_markup(demo_run):
+    """What a sheet says is text, never its own markup: a cell escaped twice once printed
+    "1.25D + 1.5S \\tsfallback{−} 0.4W" in a beam model's table. Common practice: a sheet a
+    checker cannot read as written is a defect."""
+    report, results = demo_run
+    for member in results["members"]:
+        text = pdf_text(report.outdir / "sheets" / f"{member['mark']}.pdf")
+        assert not re.findall(r"\\[A-Za-z]+|\\_|\\\{|[{}]", text), (member["mark"], re.findall(r".{30}(?:\\[A-Za-z]+|[{}]).{10}", text)[:3])
+
+
 def test_package_pages_bookmarks_and_index(demo_run):
     report, results = demo_run
     package = report.outdir / "package.pdf"

@@ -59,7 +59,7 @@ def member_rows(m, section, checks: set[str] | None = None) -> list[list[object]
         lateral = lateral_support_words(m, model=True)
         bearing = (Cell(f"$l_b = {format_value(m.bearing, 'mm')}$ at every support", f"l_b = {m.bearing:g} mm")
                    if m.bearing is not None else bearing)
-        loading = f"beam model analysed with {escape(library())}, live and snow patterned (section 3)"
+        loading = f"beam model analysed with {library()}, live and snow patterned (section 3)"
         limits = limits if isinstance(limits, str) else Cell(f"span/{m.defl_L:g} live, span/{m.defl_total:g} "
                       "total; at an overhang tip twice the overhang over the same divisor",
                       f"span/{m.defl_L:g} live, span/{m.defl_total:g} total; overhang tips 2 × overhang / n")

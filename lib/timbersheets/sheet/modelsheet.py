@@ -32,10 +32,11 @@ def geometry_rows(m) -> list[list[object]]:
     text = f"spans {spans} m between support centres, {kind}" + (f"; {over}" if over else "") + \
         f"; total length {format_metres(g.length)} m"
     supports = ", ".join(f"R{j + 1} at {_m(s)} m" for j, s in enumerate(g.supports))
-    return [["Geometry", escape(text)],
-            ["Supports", escape(f"{supports} from the left end; held in position and against rotation about the "
-                                "member axis at each support; the support faces are taken at the centres (on the "
-                                "safe side for shear at d)")]]
+    # plain text: the table escapes each cell once (an escaped cell would print its own LaTeX)
+    return [["Geometry", text],
+            ["Supports", f"{supports} from the left end; held in position and against rotation about the "
+                         "member axis at each support; the support faces are taken at the centres (on the "
+                         "safe side for shear at d)"]]
 
 
 def loads_block(m) -> Block:
@@ -68,7 +69,7 @@ def loads_block(m) -> Block:
         for t, p in c.loads.items():
             if p:
                 at = Cell(f"${_m(c.at)}$", _m(c.at)) if c.at is not None else "axial"
-                rows.append([t, "carried", q(p, "N"), at, escape(f"{c.label}: {how} {c.source}, support {c.reaction}")])
+                rows.append([t, "carried", q(p, "N"), at, f"{c.label}: {how} {c.source}, support {c.reaction}"])
     if rows:
         out += para("The loads on the member (specified, by load type; positions from the member's left "
                     "end). A carried load is the named member's specified reaction of that type, unfactored and "
@@ -110,8 +111,8 @@ def forces_block(design) -> Block:
             key = (t.kind, t.region)
             if key not in best or abs(t.value) > abs(best[key][1].value):
                 best[key] = (case, t)
-    rows = [[escape(KIND_WORDS[t.kind]), escape(t.region), Cell(f"${_m(t.x)}$", _m(t.x)),
-             q(t.value, KIND_UNITS[t.kind]), escape(case.label), escape(t.arrangement or "as given")]
+    rows = [[KIND_WORDS[t.kind], t.region, Cell(f"${_m(t.x)}$", _m(t.x)),
+             q(t.value, KIND_UNITS[t.kind]), case.label, t.arrangement or "as given"]
             for case, t in best.values()]
     out += table(Table(["Effect", "Where", "x", "Value", "Combination", "Live/snow on"], rows, "llrrlX",
                        ["", "", "m", "kN·m or kN", "", ""]))

@@ -327,7 +327,7 @@ class Sheet:
             header.insert(1, "Where")
             units.insert(1, "")
             for row, c in zip(rows, all_cases):
-                row.insert(1, escape(c.where))
+                row.insert(1, c.where)
             return out + table(Table(header, rows, "lXrrrr", units))
         return out + table(Table(header, rows, "lrrrr", units))
 
