@@ -269,13 +269,17 @@ def scenarios(root: Path, lib: Path, members: int) -> tuple[list[tuple[str, floa
     # The checker's verdict on every member, no comment (a comment is printed in the sheet body):
     # ok where it passes, revise where it does not (ok on a failing member needs a comment).
     members = json.loads((out / "rev-B" / "results.json").read_text())["members"]
-    review = 0.0
+    review, commands = 0.0, 0
     for verdict, marks in (("ok", [m["mark"] for m in members if m["status"] == "pass"]),
                            ("revise", [m["mark"] for m in members if m["status"] != "pass"])):
         if marks:
             review += timed([exe, "review", str(job), *[a for m in marks for a in ("--mark", m)], "--by", "QC",
                              "--verdict", verdict, "--out", str(out)], lib)[0]
+            commands += 1
     step("review of all, then rerun", "B", review)
+    # the same, split: the review commands, and the rerun that prints the verdicts on the sheets
+    rows.append((f"  of which {commands} review commands", review, 0.0, ""))
+    rows.append(("  and the rerun", rows[-2][1] - review, rows[-2][2], ""))
     return rows, job, out
 
 
@@ -334,11 +338,13 @@ def main() -> int:
             print(line)
         print("  phases (run.log; sheet work is summed over the workers):")
         for name, _, _, phases in mine:
-            print(f"    {name:<28} {phases}")
+            if phases:
+                print(f"    {name:<28} {phases}")
         if base:
             print("  baseline phases:")
             for name, _, _, phases in base:
-                print(f"    {name:<28} {phases}")
+                if phases:
+                    print(f"    {name:<28} {phases}")
         print("  pages per member by type:")
         print("\n".join(pages_by_type(out, "B")))
         print("\n".join(sizing_times(job)))
