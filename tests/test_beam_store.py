@@ -11,6 +11,7 @@ import subprocess
 import sys
 
 import numpy as np
+import pytest
 
 from timbersheets.engineering import beammodel
 from timbersheets.engineering.beammodel import Geometry
@@ -54,3 +55,34 @@ def test_an_unreadable_entry_is_analysed_again(tmp_path, monkeypatch):
     entry.write_bytes(b"not an array file")
     again = beammodel.analyse(TWO_SPANS, LOADS)
     assert np.array_equal(again.M, good.M)
+
+
+@pytest.mark.pipeline
+def test_the_kernel_that_renders_a_beam_model_sheet_reads_the_run_s_store(tmp_path, monkeypatch):
+    """The run names its store before it starts its kernel (a kernel keeps the environment it was
+    launched with): the sheet of a beam-model member is rendered from the analysis the design
+    stored, and the kernel never imports PyCBA. Started once: a kernel launched before the store was
+    named would have to be started again, losing the head start it had while the members were designed."""
+    import shutil
+
+    from conftest import DEMO
+    from timbersheets.build import notebooks
+    from timbersheets.run.runner import RunOptions, run_job
+
+    monkeypatch.delenv(beammodel.STORE_ENV, raising=False)
+    notebooks._Kernel.shutdown()
+    launches = []
+    launch = notebooks._Kernel._launch.__func__
+    monkeypatch.setattr(notebooks._Kernel, "_launch",
+                        classmethod(lambda cls, *args: (launches.append(args), launch(cls, *args))[1]))
+    job = tmp_path / "job"
+    shutil.copytree(DEMO, job)
+    report = run_job(job, RunOptions(out=tmp_path / "out", only=["GR-1"], jobs=1, progress=False))
+    assert report.sheets["GR-1"].executed
+    assert list((tmp_path / "out" / ".cache" / "beam").glob("*.npz"))
+    seen = []
+    notebooks._Kernel.kc.execute_interactive(
+        "import os, sys; print('pycba' in sys.modules, os.environ.get('%s'))" % beammodel.STORE_ENV,
+        timeout=30, output_hook=lambda msg: seen.append(msg["content"].get("text", "")))
+    assert "".join(seen).split() == ["False", str(tmp_path / "out" / ".cache" / "beam")]
+    assert len(launches) == 1

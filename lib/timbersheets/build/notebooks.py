@@ -119,6 +119,11 @@ def start_kernel(cwd: Path | None = None) -> None:
     _Kernel.start("python3", str(cwd or os.getcwd()))
 
 
+def _own_environment() -> tuple:
+    """This program's variables in the environment (TIMBERSHEETS_*), which a kernel takes at launch."""
+    return tuple(sorted((k, v) for k, v in os.environ.items() if k.startswith("TIMBERSHEETS_")))
+
+
 class _Kernel:
     """The one kernel of a worker process, started on first use and reused.
 
@@ -130,6 +135,7 @@ class _Kernel:
     km = None
     kc = None
     cwd: str | None = None
+    env: tuple = ()  # the TIMBERSHEETS_* variables it was launched with (see _own_environment)
     warming: str | None = None  # msg_id of the warm-up imports, until the kernel is first used
     manager = None  # the KernelManager class (see _kernel_manager_class)
     starting = None  # the thread starting the kernel, until `get` joins it
@@ -150,13 +156,19 @@ class _Kernel:
             cls.manager = _kernel_manager_class()
 
         cls._join()
-        if cls.km is not None and (cls.cwd != cwd or not cls.km.is_alive()):
+        if cls.km is not None and not cls._fits(cwd):
             cls.shutdown()
         if cls.km is not None:
             return
-        cls.cwd = cwd
+        cls.cwd, cls.env = cwd, _own_environment()
         cls.starting = threading.Thread(target=cls._launch, args=(kernel_name, cwd), daemon=True)
         cls.starting.start()
+
+    @classmethod
+    def _fits(cls, cwd: str) -> bool:
+        """Whether the running kernel can serve a member run from `cwd` in this environment: a kernel
+        keeps the folder and the variables it was launched with (a later run's beam store)."""
+        return cls.cwd == cwd and cls.env == _own_environment() and cls.km.is_alive()
 
     @classmethod
     def _launch(cls, kernel_name: str, cwd: str) -> None:
@@ -187,7 +199,7 @@ class _Kernel:
     def get(cls, kernel_name: str, cwd: str):
         """The started kernel and its client, ready to run a member with nothing left from before."""
         cls._join()
-        if cls.km is not None and (cls.cwd != cwd or not cls.km.is_alive()):
+        if cls.km is not None and not cls._fits(cwd):
             cls.shutdown()
         if cls.km is None:
             cls.start(kernel_name, cwd)

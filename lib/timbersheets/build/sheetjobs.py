@@ -192,11 +192,11 @@ def run_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, flo
     return list(outcomes.values()), times
 
 
-def _start_worker(run: int) -> None:
+def _start_worker(run: int, cwd: str) -> None:
     """A pool worker of the run with pid `run`: dies with it (at once if it is already gone), and
-    boots its kernel before its first batch arrives."""
+    boots its kernel, in the folder the sheets run in, before its first batch arrives."""
     die_with_parent(run)
-    start_kernel()
+    start_kernel(Path(cwd))
 
 
 def _safe_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, float]]:
@@ -279,6 +279,7 @@ def _share_batches(pending: deque, workers: int, collect) -> None:
     its next batch the moment it finishes one (from the future's callback)."""
     total = len(pending)
     done: queue.Queue = queue.Queue()
+    cwd = str(pending[0][0].cwd)  # the job's folder: every sheet of a run executes there
 
     def feed(pool) -> None:
         try:
@@ -294,7 +295,7 @@ def _share_batches(pending: deque, workers: int, collect) -> None:
 
     context = multiprocessing.get_context("spawn")
     with ProcessPoolExecutor(max_workers=workers, mp_context=context, initializer=_start_worker,
-                             initargs=(os.getpid(),)) as pool:
+                             initargs=(os.getpid(), cwd)) as pool:
         for _ in range(workers):
             feed(pool)
         collected = 0

@@ -230,15 +230,18 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     """
     opts = opts or RunOptions(**kw)
     started = time.monotonic()
-    if opts.sheets:
-        start_kernel()  # it boots and imports in its own process while the members are designed
-    job = load_job(folder)
+    job = load_job(folder)  # read and validated; the members are designed when job.designs is first read
     project, schedule, data = job.project, job.schedule, job.data
     schedule.warnings += load_review_file(project.folder).problems
     check_only(project, schedule.entries, opts.only)
     jobdir = job_dir(project, opts.out)
     # beam-model analyses are kept in the job's cache, for this run, its kernels and the next run
     os.environ[BEAM_STORE_ENV] = str(jobdir / ".cache" / "beam")
+    if opts.sheets:
+        # started in the folder the sheets run in (sheet_tasks), after the store is named (a kernel keeps
+        # the folder and environment it was launched with; another would be started for the first member)
+        # and before the design: it boots and imports in its own process while the members are designed
+        start_kernel(project.folder.resolve())
     designs = job.designs
     prev_label = previous_revision(jobdir, project.revision)
     previous = load_results(jobdir / f"rev-{prev_label}") if prev_label else None
