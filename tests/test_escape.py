@@ -14,7 +14,7 @@ from timbersheets.sheet.tex import _DROP, _LATEX, _NATIVE, _SPACE, _covered_by_f
 
 pytestmark = pytest.mark.pipeline  # runs xelatex
 SHEET = Path(__file__).resolve().parent.parent / "templates" / "latex" / "sheet" / "preamble.tex.j2"  # the font set-up
-PREAMBLE_LINES = re.compile(r"^\\(newcommand\{\\tsfallback\}|tracinglostchars|newunicodechar).*$", re.M)
+PREAMBLE_LINES = re.compile(r"^\\(newfontfamily\\tsfallbackfont|newcommand\{\\tsfallback\}|tracinglostchars|newunicodechar).*$", re.M)
 MAPPED = {ord(m) for m in re.findall(r"\\newunicodechar\{(.)\}", SHEET.read_text(encoding="utf-8"))}
 
 
