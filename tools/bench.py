@@ -330,7 +330,7 @@ def main() -> int:
         head = f"  {'scenario':<28} {'this code':>10} {'peak MB':>8}"
         print(head + (f" {'baseline':>10} {'peak MB':>8}" if base else "") + "   target")
         for i, (name, took, peak, _) in enumerate(mine):
-            line = f"  {name:<28} {took:8.1f} s {peak:8.0f}"
+            line = f"  {name:<28} {took:8.1f} s " + (f"{peak:8.0f}" if peak else f"{'-':>8}")  # review: not measured
             if base:
                 line += f" {base[i][1]:8.1f} s {base[i][2]:8.0f}"
             target = TARGETS.get(name)
