@@ -116,6 +116,43 @@ def test_a_new_revision_with_one_change_typesets_one_body_and_restamps_all(batch
     assert re.search(r"Live \(use and occupancy\)\s+L\s+9\.0\s", body)  # the new body, not the old
 
 
+def test_sheets_restamped_while_another_executes_keep_relative_paths(tmp_path, monkeypatch):
+    """A new revision stamps the unchanged sheets in a thread while the changed member executes, and
+    papermill changes the process's folder while it executes: with `--out` given relative, a stamp
+    once opened a cached body by a relative path in the wrong folder and the run stopped (seen when
+    the execution outlasted the stamps' typesetting). The stamps handed to the thread name their
+    files by absolute paths, and this run stamps while the execution is in the job's folder."""
+    import os
+    import time
+
+    from timbersheets.build import sheetjobs
+
+    monkeypatch.chdir(tmp_path)
+    rows = [dict(r) for r in ROWS[:2]]
+    write_job(tmp_path / "job", rows)
+    assert main(["run", "job", "--out", "out", "--jobs", "1"]) in (0, 1)
+    stamp = sheetjobs.stamp_sheets
+    handed = []
+
+    def stamp_once_moved(stamps, runs=1):
+        handed.extend((s.body, s.pdf) for s in stamps)
+        deadline = time.monotonic() + 20
+        while Path(os.getcwd()) == tmp_path and time.monotonic() < deadline:
+            time.sleep(0.005)
+        return stamp(stamps, runs)
+
+    monkeypatch.setattr(sheetjobs, "stamp_sheets", stamp_once_moved)
+    rows[1]["P_L"] = "9"
+    write_job(tmp_path / "job", rows, revision="B")
+    second = run_job(Path("job"), RunOptions(out=Path("out"), progress=False, jobs=1))
+    assert second.executed == ["BA-2"] and sorted(second.stamped) == ["BA-1", "BA-2"]
+    assert all(o.error is None for o in second.sheets.values()), {m: o.error for m, o in second.sheets.items()}
+    assert handed and all(path.is_absolute() for pair in handed for path in pair), handed
+    for row in rows:
+        block = title_block(tmp_path / "out" / "rev-B" / "sheets" / f"{row['mark']}.pdf", 1)
+        assert re.search(r"(^|\s)B(\s|,|$)", block), (row["mark"], block)
+
+
 def test_a_sheet_that_cannot_be_typeset_leaves_the_batch_standing(tmp_path, monkeypatch):
     import nbformat
 

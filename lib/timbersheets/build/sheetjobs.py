@@ -259,13 +259,19 @@ def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool,
             step(task.mark)
     pending = deque(batches(work, jobs))
     total = len(pending)
+    # sheets that only need new stamps (a new revision, a review) are stamped meanwhile, in a thread:
+    # xelatex works outside this process, which mostly waits on its kernel while its batch executes
+    early = _stale_stamps([t for t in tasks if not _needs_work(t)], outcomes) if pending else []
+    stamping = _stamp_ahead(early, jobs) if early else None
     if jobs == 1 or total <= 1:
         while pending:
             collect(_safe_batch(pending.popleft()))
     else:
         _share_batches(pending, min(jobs - 1, total - 1), collect)
     bar.close()
-    started = time.monotonic()
+    started = time.monotonic()  # stamp: what is left of the stamping once the batches are done
+    if stamping is not None:
+        _apply_stamps(early, stamping.result(), outcomes)
     _finish(tasks, outcomes, jobs)
     times["stamp"] = time.monotonic() - started
     return {t.mark: outcomes[t.mark] for t in tasks}
@@ -318,20 +324,40 @@ def _share_batches(pending: deque, workers: int, collect) -> None:
             collected += 1
 
 
-def _finish(tasks: list[SheetTask], outcomes: dict[str, SheetOutcome], jobs: int = 1) -> None:
-    """Stamp, in one run, every PDF sheet whose stamped version is not cached; put every sheet in place."""
+def _stale_stamps(tasks: list[SheetTask], outcomes: dict[str, SheetOutcome]) -> list[Stamp]:
+    """The stamps to typeset for the PDF sheets among `tasks` whose stamped version is not cached."""
     pdf = [t for t in tasks if t.sheet is not None and t.fmt == "pdf" and t.cached_body.exists()]
     stale = [t for t in pdf if not outcomes[t.mark].stamped
              and (t.force or outcomes[t.mark].converted or not t.cached_sheet.exists())]
-    stamps = [Stamp(t.mark, t.cached_body, _read_pages(t.cached_body), stamped_fields(t.titleblock),
-                    t.cached_sheet) for t in stale]
+    # absolute: the stamps may be typeset in a thread while papermill has changed this process's folder
+    return [Stamp(t.mark, t.cached_body.absolute(), _read_pages(t.cached_body), stamped_fields(t.titleblock),
+                  t.cached_sheet.absolute()) for t in stale]
+
+
+def _stamp_ahead(stamps: list[Stamp], jobs: int):
+    """stamp_sheets in a thread; the future holds its result."""
+    from concurrent.futures import ThreadPoolExecutor
+
+    pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="stamps")
+    future = pool.submit(stamp_sheets, stamps, max(1, jobs - 1))  # the batches keep the other CPUs busy
+    pool.shutdown(wait=False)
+    return future
+
+
+def _apply_stamps(stamps: list[Stamp], results: dict, outcomes: dict[str, SheetOutcome]) -> None:
     made = {s.mark: s.pdf for s in stamps}
-    for mark, result in stamp_sheets(stamps, jobs).items() if stamps else ():
+    for mark, result in results.items():
         if isinstance(result, Exception):
             outcomes[mark].fail(str(result))
         else:
             outcomes[mark].stamped = True
             write_atomic(_pages_file(made[mark]), str(result))
+
+
+def _finish(tasks: list[SheetTask], outcomes: dict[str, SheetOutcome], jobs: int = 1) -> None:
+    """Stamp, in one run, every PDF sheet whose stamped version is not cached; put every sheet in place."""
+    stamps = _stale_stamps(tasks, outcomes)
+    _apply_stamps(stamps, stamp_sheets(stamps, jobs) if stamps else {}, outcomes)
     for task in tasks:
         if task.sheet is not None and task.cached_sheet.exists() and task.cached_sheet.stat().st_size:
             copy_atomic(task.cached_sheet, task.sheet)
