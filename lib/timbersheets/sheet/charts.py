@@ -24,19 +24,22 @@ def utilization_chart(members: list[dict[str, Any]], title: str) -> bytes:
     plain text, never parsed as mathematics. Members that do not pass are hatched,
     so the chart reads without colour.
     """
-    import matplotlib
-
-    matplotlib.use("Agg")
-    from matplotlib import pyplot as plt
+    # a bare Figure on an Agg canvas, as the diagrams: no pyplot (0.2 s more to import), no global state
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
 
     rows = sorted((m for m in members if _finite(m.get("utilization"))), key=lambda m: -m["utilization"])
     title = "".join(ch if ch.isprintable() else " " for ch in title[:MAX_TITLE + 1])
     title = title if len(title) <= MAX_TITLE else title[:MAX_TITLE - 3].rstrip() + "..."
     if len(rows) <= DETAIL_LIMIT:
-        fig, ax = plt.subplots(figsize=(6.3, min(max(1.6, 0.22 * len(rows) + 0.9), 9.0)), dpi=150)
+        fig = Figure(figsize=(6.3, min(max(1.6, 0.22 * len(rows) + 0.9), 9.0)), dpi=150)
+        FigureCanvasAgg(fig)
+        ax = fig.subplots()
         _bars(ax, rows)
     else:
-        fig, (top, low) = plt.subplots(2, 1, figsize=(6.3, 9.0), dpi=150, height_ratios=(1, 2.2))
+        fig = Figure(figsize=(6.3, 9.0), dpi=150)
+        FigureCanvasAgg(fig)
+        top, low = fig.subplots(2, 1, height_ratios=(1, 2.2))
         _distribution(top, rows)
         _bars(low, rows[:WORST], f"the {WORST} highest of {len(rows)} members")
         fails = [m["mark"] for m in rows if m["status"] != "pass"]
@@ -48,7 +51,6 @@ def utilization_chart(members: list[dict[str, Any]], title: str) -> bytes:
     fig.tight_layout(rect=(0, 0.04, 1, 0.97))
     buffer = io.BytesIO()
     fig.savefig(buffer, format="png")
-    plt.close(fig)
     return buffer.getvalue()
 
 
@@ -90,6 +92,9 @@ def _distribution(ax, rows: list[dict[str, Any]]) -> None:
             bar.set_hatch("////")
             bar.set_facecolor("white")
     ax.axvline(1.0, color="black", linewidth=1.2)
+    from matplotlib.ticker import MaxNLocator
+
+    ax.yaxis.set_major_locator(MaxNLocator(integer=True))  # a count of members: no 2.5 on the axis
     ax.set_ylabel("members", fontsize=8)
     ax.set_xlabel(f"governing utilization of all {len(rows)} members, in bands of 0.1", fontsize=8)
     ax.tick_params(labelsize=7)
