@@ -398,3 +398,16 @@ def test_review_findings_stay_unverified_and_disagreements_take_the_lower_value(
     assert e[("D.Fir-L", "24f-EX")]["value"] == "12800" and "13 100" in e[("D.Fir-L", "24f-EX")]["source"]
     assert e[("Spruce-Pine", "14t-E")]["value"] == "10300" and "10 700" in e[("Spruce-Pine", "14t-E")]["source"]
     assert all(e[k]["status"] == "memory-unverified" for k in (("D.Fir-L", "24f-EX"), ("Spruce-Pine", "14t-E")))
+
+
+def test_a_tension_member_without_net_area_says_it_was_designed_on_the_gross_area(tmp_path, data):
+    # Common practice: a tension member is connected, and its connections usually remove wood (bolt
+    # holes, daps). A blank net_area keeps the schedule's default A_n = A_g (no holes), the favourable
+    # reading, so the sheet says so; a row that gives net_area, even 1.0, is taken as stated.
+    (tmp_path / "a").mkdir()
+    (tmp_path / "b").mkdir()
+    blank = design_row(tmp_path / "a", data, type="tension", P_D="5")
+    stated = design_row(tmp_path / "b", data, type="tension", P_D="5", net_area="1.0")
+    assert blank.member.net_area == stated.member.net_area == 1.0
+    assert [w for w in blank.warnings if w.startswith("net area not given")], blank.warnings
+    assert not [w for w in stated.warnings if "net area" in w], stated.warnings

@@ -50,5 +50,12 @@ def check_tension(m: Context, case, T_f: float) -> CheckResult:
         calc_, clause = sawn_tension, SAWN_CLAUSE
     values = calc_(**given.values)
     steps = (Step(calc_, values),)
+    notes = given.notes
+    if "net_area" not in m.member.given:  # the favourable reading: say it, so the checker can refuse it
+        notes += (NET_AREA_NOT_GIVEN,)
     return result("tension", case, T_f, values["T_r"], "N", clause, steps, "T_f", "T_r", used=given.used,
-                  notes=given.notes)
+                  notes=notes)
+
+
+NET_AREA_NOT_GIVEN = ("net area not given (net_area blank): A_n is taken as the gross area, with no holes or "
+                      "notches; give net_area where the connections remove wood")
