@@ -50,6 +50,15 @@ def test_nothing_carries_over_between_members(tmp_path):
     assert printed(tmp_path / "c.ipynb").split()[0] == "0"
 
 
+
+@pytest.mark.pipeline
+def test_the_kernel_writes_no_input_history(tmp_path):
+    """IPython's history thread writes every cell to an SQLite file; on a sheet that was a quarter of
+    the kernel's time (measured, 30 members: 8.7 s to 6.5 s). The run's kernel keeps none."""
+    probe = notebook(tmp_path / "probe.ipynb", "print(get_ipython().history_manager.enabled)")
+    assert pipeline.execute(probe, tmp_path / "p.ipynb", {"mark": "P-1"}, tmp_path) is None
+    assert printed(tmp_path / "p.ipynb").split() == ["False"]
+
 def test_the_warm_up_imports_what_exists():
     """The imports a kernel runs when it starts (pipeline.WARM_UP) name modules that exist: a renamed
     module would otherwise only cost every run its head start, silently."""
