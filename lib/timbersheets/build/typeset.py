@@ -13,7 +13,10 @@ from pathlib import Path
 
 from ..errors import TimbersheetsError
 
-XELATEX = ["xelatex", "-interaction=nonstopmode", "-halt-on-error", "-no-shell-escape"]
+# xelatex's own driver command ("xdvipdfmx -q -E") with zlib level 6 for 9: half the driver's time
+# (a third of a sheet batch's TeX time goes to compressing streams and figures) for files about 2 % larger.
+XELATEX = ["xelatex", "-interaction=nonstopmode", "-halt-on-error", "-no-shell-escape",
+           "-output-driver=xdvipdfmx -q -E -z6"]
 TAIL_CHARS = 1500  # of the "!" error lines: enough for the failing command and its context
 
 
