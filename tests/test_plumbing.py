@@ -52,3 +52,20 @@ def test_an_internal_error_leaves_its_traceback_in_run_log(tmp_path, monkeypatch
     log = (report.outdir / "run.log").read_text(encoding="utf-8")
     assert "OK-1: traceback of the internal error" in log
     assert "Traceback (most recent call last)" in log and "in defective" in log
+
+
+def test_batches_share_the_heavy_sheets_and_keep_schedule_order():
+    """A schedule of ties then girders on two workers: each batch gets its share of both (the run
+    ends when the busiest worker does), every member once, and schedule order within a batch."""
+    from timbersheets.build.sheetjobs import SheetTask, batches
+
+    def task(mark: str, template: str) -> SheetTask:
+        return SheetTask(mark, Path(f"{template}.ipynb"), {}, {}, "", Path("."), Path(f"{mark}.ipynb"), None)
+
+    tasks = [task(f"T-{i}", "axial") for i in range(20)] + [task(f"G-{i}", "bending") for i in range(20)]
+    made = batches(tasks, 2)
+    assert len(made) == 2 and sorted(t.mark for b in made for t in b) == sorted(t.mark for t in tasks)
+    for batch in made:
+        assert sum(t.mark.startswith("G-") for t in batch) == 10
+        assert [tasks.index(t) for t in batch] == sorted(tasks.index(t) for t in batch)
+
