@@ -63,6 +63,17 @@ def reactions_json(d: MemberDesign) -> dict[str, dict[str, float]] | None:
     return {f"R{j}": {t: round_sig(v / 1000, "kN", 4) for t, v in by_type.items()} for j, by_type in reactions.items()}
 
 
+def governing_utilization(d: MemberDesign) -> float | None:
+    """The member's governing utilization as results.json gives it (None for a member in error)."""
+    gov = d.governing
+    return round_utilization(gov.utilization) if gov and not d.errors else None
+
+
+def chart_rows(designs: list[MemberDesign]) -> list[dict[str, Any]]:
+    """What the summary chart reads of each member (mark, utilization, status), as member_json gives it."""
+    return [{"mark": d.mark, "utilization": governing_utilization(d), "status": d.status} for d in designs]
+
+
 def member_json(d: MemberDesign, extra: dict[str, Any] | None = None) -> dict[str, Any]:
     gov = d.governing
     doc: dict[str, Any] = {
@@ -73,7 +84,7 @@ def member_json(d: MemberDesign, extra: dict[str, Any] | None = None) -> dict[st
         "status": d.status,
         "size": d.size,
         "inputs_hash": d.member.inputs_hash if d.member else None,
-        "utilization": round_utilization(gov.utilization) if gov and not d.errors else None,
+        "utilization": governing_utilization(d),
         "governing": ({"check": gov.check, "combination": gov.combination,
                        "K_D": None if gov.check.startswith("deflection") else round(gov.K_D, 3)}
                       if gov and not d.errors else None),

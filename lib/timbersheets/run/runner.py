@@ -28,10 +28,11 @@ from ..fileio import copy_atomic, remove_stale_parts, write_atomic
 from ..fileio import write_csv
 from ..job.load import load_job
 from ..job.project import Project
-from ..job.results import member_json, results_doc, write_results
+from ..job.results import chart_rows, member_json, results_doc, write_results
 from ..job.review import comment_text, latest, load_review_file, read_reviews, status, titleblock_text
 from ..job.revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
 from ..lifetime import pid_alive
+from ..sheet.charts import draw_ahead, write_chart
 from ..sheet.tex import escape
 from .keep import Carried, carry_package, carry_sheets, package_key, write_package_key
 
@@ -255,6 +256,8 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                            data_errors=[str(e) for e in data.firm.errors] if data.firm else [])
         every = sheet_tasks(project, designs, data, stage, opts, extra)
         tasks = every if not opts.only else [t for t in every if t.mark in set(opts.only)]
+        title = f"{project.fields['title']} rev {project.revision}: governing utilization"
+        chart = draw_ahead(chart_rows(designs), title, jobdir / ".cache") if tasks and opts.sheets else None
         if tasks and opts.sheets:
             mark = time.monotonic()
             report.sheets = run_sheets(tasks, opts.jobs, opts.progress, work)
@@ -271,10 +274,9 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         carry_sheets(every, final, stage, carried)
         key = package_key(doc, every)
         write_csv(stage / "diff.csv", DIFF_HEADER, diff_rows(changes))
-        from ..sheet.charts import write_chart
-
-        write_chart(stage / "summary.png", doc["members"],
-                    f"{project.fields['title']} rev {project.revision}: governing utilization", jobdir / ".cache")
+        if chart is not None:
+            chart.join()
+        write_chart(stage / "summary.png", doc["members"], title, jobdir / ".cache")
         if opts.sheets and opts.fmt == "pdf":
             from ..build.package import build_package
             from ..build.typeset import ConversionError

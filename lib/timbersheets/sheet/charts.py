@@ -102,14 +102,17 @@ def _distribution(ax, rows: list[dict[str, Any]]) -> None:
         ax.spines[side].set_visible(False)
 
 
-def write_chart(path: Path, members: list[dict[str, Any]], title: str, cache: Path | None = None) -> None:
-    """Write the chart; an identical chart drawn before is taken from `cache`."""
+def _chart_key(members: list[dict[str, Any]], title: str) -> str:
     import hashlib
     import json
 
-    key = hashlib.sha256(json.dumps([title, [(m["mark"], m.get("utilization"), m["status"]) for m in members]])
-                         .encode()).hexdigest()
-    cached = cache / f"chart-{key}.png" if cache else None
+    return hashlib.sha256(json.dumps([title, [(m["mark"], m.get("utilization"), m["status"]) for m in members]])
+                          .encode()).hexdigest()
+
+
+def write_chart(path: Path, members: list[dict[str, Any]], title: str, cache: Path | None = None) -> None:
+    """Write the chart; an identical chart drawn before (or ahead, see `draw_ahead`) is taken from `cache`."""
+    cached = cache / f"chart-{_chart_key(members, title)}.png" if cache else None
     if cached is not None and cached.exists():
         write_atomic(path, cached.read_bytes())
         return
@@ -117,3 +120,24 @@ def write_chart(path: Path, members: list[dict[str, Any]], title: str, cache: Pa
     if cached is not None:
         write_atomic(cached, png)
     write_atomic(path, png)
+
+
+def draw_ahead(members: list[dict[str, Any]], title: str, cache: Path):
+    """Draw the chart into `cache` in a thread, from the members as designed; returns the thread.
+
+    The run draws it while its sheets are made (its process mostly waits on kernels and TeX
+    then), and `write_chart` afterwards takes it from the cache when the members' results are
+    the same; a member whose sheet ended in error changes the chart, which is then drawn again."""
+    import threading
+
+    def draw() -> None:
+        cached = cache / f"chart-{_chart_key(members, title)}.png"
+        if not cached.exists():
+            try:
+                write_atomic(cached, utilization_chart(members, title))
+            except Exception:  # noqa: BLE001 - only a head start: write_chart draws it and reports
+                pass
+
+    thread = threading.Thread(target=draw, name="chart", daemon=True)
+    thread.start()
+    return thread
