@@ -77,12 +77,27 @@ def test_every_page_numbers_itself_n_of_N_and_bookmarks_land_on_first_pages(batc
     assert list(starts) == ["BA-1", "BA-2", "BA-3", "BA-4"]
 
 
-def test_a_review_restamps_every_sheet_and_typesets_no_body(batch_job):
+def test_a_review_restamps_every_sheet_and_typesets_no_body(batch_job, monkeypatch):
+    """Every sheet is restamped with the checker; a stamp page that several sheets show alike (the
+    same fields, page k of n) is typeset once."""
+    from timbersheets.build import batch
+
     job, out, _ = batch_job
     assert main(["review", str(job), "--all", "--by", "QZ", "--verdict", "ok", "--out", str(out)]) == 0
+    layers = []
+
+    def typeset_and_count(tex, work, name, what, files=None):
+        done = typeset(tex, work, name, what, files)
+        layers.append(len(PdfReader(str(done.pdf)).pages))
+        return done
+
+    typeset = batch.typeset
+    monkeypatch.setattr(batch, "typeset", typeset_and_count)
     after = run_job(job, RunOptions(out=out, progress=False, jobs=1))
     assert after.executed == [] and after.converted == []
     assert sorted(after.stamped) == ["BA-1", "BA-2", "BA-3", "BA-4"]
+    counts = {mark: len(PdfReader(str(out / "rev-A" / "sheets" / f"{mark}.pdf")).pages) for mark in after.stamped}
+    assert layers == [sum(set(counts.values()))], (layers, counts)  # one page per (k, n): the fields are alike
     for mark in ("BA-1", "BA-2", "BA-3", "BA-4"):
         sheet = out / "rev-A" / "sheets" / f"{mark}.pdf"
         for k in range(1, len(PdfReader(str(sheet)).pages) + 1):

@@ -183,16 +183,27 @@ def _lay_stamp(body: Path, layer_pages, target: Path) -> None:
 
 
 def _stamp_batch(stamps: list[Stamp]) -> dict[str, int]:
+    """The stamps' layer typeset once, then laid on each body.
+
+    A stamp page holds only the revision, date, checker and "k of n", so sheets with the same
+    fields and page count share their stamp pages: each different page is typeset once (a
+    review of 100 sheets: about 70 pages, not 470)."""
     import pikepdf
 
-    sheets = [{"pages": s.pages, **s.titleblock} for s in stamps]
+    where: dict[tuple, int] = {}  # (fields, k, n) -> its page in the layer
+    pages = []
+    for s in stamps:
+        fields = tuple(sorted(s.titleblock.items()))
+        for k in range(1, s.pages + 1):
+            if (fields, k, s.pages) not in where:
+                where[(fields, k, s.pages)] = len(pages)
+                pages.append({"s": s.titleblock, "page": k, "pages": s.pages})
     with tempfile.TemporaryDirectory(prefix="ts-stamp-") as tmp:
-        done = typeset(_stamp_template().render(sheets=sheets), Path(tmp), "stamps", "stamps")
+        done = typeset(_stamp_template().render(pages=pages), Path(tmp), "stamps", "stamps")
         with pikepdf.open(done.pdf) as layer:
-            start = 0
             for s in stamps:
-                _lay_stamp(s.body, layer.pages[start:start + s.pages], s.pdf)
-                start += s.pages
+                fields = tuple(sorted(s.titleblock.items()))
+                _lay_stamp(s.body, [layer.pages[where[(fields, k, s.pages)]] for k in range(1, s.pages + 1)], s.pdf)
     return {s.mark: s.pages for s in stamps}
 
 
