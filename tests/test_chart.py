@@ -35,3 +35,21 @@ def test_two_thousand_members_make_a_summary_of_bounded_size():
     """One bar a member would be a smear; the summary has the size of a page."""
     w, h = size(utilization_chart(members(2000), "job"))
     assert (w, h) == (945, 1350)  # 6.3 x 9.0 in at 150 dpi
+
+
+def test_a_chart_drawn_ahead_is_used_only_for_the_same_results(tmp_path):
+    """The run draws the chart from the designs while its sheets are made; a member whose sheet then
+    ends in error changes the chart, which must show that, not the chart drawn ahead."""
+    from timbersheets.sheet.charts import draw_ahead, write_chart
+
+    designed = members(6)
+    draw_ahead(designed, "job rev A", tmp_path / "cache").join()
+    ahead = list((tmp_path / "cache").glob("chart-*.png"))
+    assert len(ahead) == 1
+    write_chart(tmp_path / "same.png", designed, "job rev A", tmp_path / "cache")
+    assert (tmp_path / "same.png").read_bytes() == ahead[0].read_bytes()
+    final = [dict(m) for m in designed]
+    final[2].update(status="error", utilization=None)
+    write_chart(tmp_path / "final.png", final, "job rev A", tmp_path / "cache")
+    assert (tmp_path / "final.png").read_bytes() == utilization_chart(final, "job rev A")
+    assert (tmp_path / "final.png").read_bytes() != ahead[0].read_bytes()
