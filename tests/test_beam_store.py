@@ -9,6 +9,7 @@ import json
 import os
 import subprocess
 import sys
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -58,18 +59,25 @@ def test_an_unreadable_entry_is_analysed_again(tmp_path, monkeypatch):
 
 
 @pytest.mark.pipeline
-def test_the_kernel_that_renders_a_beam_model_sheet_reads_the_run_s_store(tmp_path, monkeypatch):
+@pytest.mark.parametrize("relative", [False, True], ids=["absolute-out", "relative-out"])
+def test_the_kernel_that_renders_a_beam_model_sheet_reads_the_run_s_store(tmp_path, monkeypatch, relative):
     """The run names its store before it starts its kernel (a kernel keeps the environment it was
     launched with): the sheet of a beam-model member is rendered from the analysis the design
     stored, and the kernel never imports PyCBA. Started once: a kernel launched before the store was
-    named would have to be started again, losing the head start it had while the members were designed."""
+    named would have to be started again, losing the head start it had while the members were designed.
+    With --out relative to where the run starts the store is named absolute: the kernel runs in the
+    job's folder, where the relative name would be another (new, empty) folder."""
     import shutil
 
     from conftest import DEMO
     from timbersheets.build import notebooks
     from timbersheets.run.runner import RunOptions, run_job
 
+    from timbersheets.engineering import beamdesign
+
     monkeypatch.delenv(beammodel.STORE_ENV, raising=False)
+    beammodel.region_responses.cache_clear()  # analysed afresh, so the design writes this run's store
+    beamdesign._model.cache_clear()
     notebooks._Kernel.shutdown()
     launches = []
     launch = notebooks._Kernel._launch.__func__
@@ -77,7 +85,9 @@ def test_the_kernel_that_renders_a_beam_model_sheet_reads_the_run_s_store(tmp_pa
                         classmethod(lambda cls, *args: (launches.append(args), launch(cls, *args))[1]))
     job = tmp_path / "job"
     shutil.copytree(DEMO, job)
-    report = run_job(job, RunOptions(out=tmp_path / "out", only=["GR-1"], jobs=1, progress=False))
+    monkeypatch.chdir(tmp_path)
+    out = Path("out") if relative else tmp_path / "out"
+    report = run_job(job, RunOptions(out=out, only=["GR-1"], jobs=1, progress=False))
     assert report.sheets["GR-1"].executed
     assert list((tmp_path / "out" / ".cache" / "beam").glob("*.npz"))
     seen = []
@@ -86,3 +96,4 @@ def test_the_kernel_that_renders_a_beam_model_sheet_reads_the_run_s_store(tmp_pa
         timeout=30, output_hook=lambda msg: seen.append(msg["content"].get("text", "")))
     assert "".join(seen).split() == ["False", str(tmp_path / "out" / ".cache" / "beam")]
     assert len(launches) == 1
+    assert not (job / "out").exists()  # nothing written into the job's folder

@@ -237,7 +237,8 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     check_only(project, schedule.entries, opts.only)
     jobdir = job_dir(project, opts.out)
     # beam-model analyses are kept in the job's cache, for this run, its kernels and the next run
-    os.environ[BEAM_STORE_ENV] = str(jobdir / ".cache" / "beam")
+    # (absolute: the kernels run in the job's folder, and papermill changes this process's folder)
+    os.environ[BEAM_STORE_ENV] = str((jobdir / ".cache" / "beam").absolute())
     if opts.sheets:
         # started in the folder the sheets run in (sheet_tasks), after the store is named (a kernel keeps
         # the folder and environment it was launched with; another would be started for the first member)
@@ -257,7 +258,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         every = sheet_tasks(project, designs, data, stage, opts, extra)
         tasks = every if not opts.only else [t for t in every if t.mark in set(opts.only)]
         title = f"{project.fields['title']} rev {project.revision}: governing utilization"
-        chart = draw_ahead(chart_rows(designs), title, jobdir / ".cache") if tasks and opts.sheets else None
+        chart = draw_ahead(chart_rows(designs), title, (jobdir / ".cache").absolute()) if tasks and opts.sheets else None
         if tasks and opts.sheets:
             mark = time.monotonic()
             report.sheets = run_sheets(tasks, opts.jobs, opts.progress, work)

@@ -130,6 +130,8 @@ def draw_ahead(members: list[dict[str, Any]], title: str, cache: Path):
     the same; a member whose sheet ended in error changes the chart, which is then drawn again."""
     import threading
 
+    cache = cache.absolute()  # the thread runs while papermill has changed this process's folder
+
     def draw() -> None:
         cached = cache / f"chart-{_chart_key(members, title)}.png"
         if not cached.exists():
