@@ -69,3 +69,29 @@ def test_batches_share_the_heavy_sheets_and_keep_schedule_order():
         assert sum(t.mark.startswith("G-") for t in batch) == 10
         assert [tasks.index(t) for t in batch] == sorted(tasks.index(t) for t in batch)
 
+
+
+def test_the_unit_registry_reads_pints_cache_and_survives_a_damaged_one(tmp_path):
+    """pint's parsed definitions are kept in a cache folder (0.18 s a process to 0.02 s); a cache
+    left damaged (a killed write) is not trusted: the registry is built from pint's files and
+    converts the same (1 kN·m = 10^6 N·mm, 1 kN/m = 1 N/mm: arithmetic of the SI prefixes)."""
+    import subprocess
+    import sys
+
+    probe = ("from timbersheets.engineering.units import registry\n"
+             "q = registry().Quantity\n"
+             "print(q(1, 'kN*m').to('N*mm').magnitude, q(1, 'kN/m').to('N/mm').magnitude)")
+    env = {**__import__("os").environ, "XDG_CACHE_HOME": str(tmp_path)}
+
+    def run() -> list[str]:
+        done = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True, env=env, check=True)
+        return done.stdout.split()
+
+    assert run() == ["1000000.0", "1.0"]
+    pickles = list((tmp_path / "timbersheets").rglob("*.pickle"))
+    assert pickles  # the cache was written
+    for path in pickles:
+        path.write_bytes(path.read_bytes()[:40])  # cut short, as by a killed write
+    assert run() == ["1000000.0", "1.0"]
+    assert run() == ["1000000.0", "1.0"]  # and the cache written anew
+    assert all(p.stat().st_size > 40 for p in (tmp_path / "timbersheets").rglob("*.pickle"))

