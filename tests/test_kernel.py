@@ -110,3 +110,20 @@ def test_a_kernel_outlives_the_thread_that_launched_it(tmp_path, monkeypatch):
     finally:
         pipeline._Kernel.shutdown()
         monkeypatch.undo()
+
+
+@pytest.mark.pipeline
+def test_a_sheet_without_a_diagram_never_imports_matplotlib(tmp_path):
+    """The kernel's warm-up leaves matplotlib out (0.3 s of its boot): a rerun whose changed member is
+    a tie or a column does not wait for it; a sheet with a diagram imports it when it draws."""
+    from conftest import member_row, write_job
+    from timbersheets.run.runner import RunOptions, run_job
+
+    pipeline._Kernel.shutdown()
+    job = write_job(tmp_path / "job", [member_row("T-9", type="tension", P_D="3")])
+    report = run_job(job, RunOptions(out=tmp_path / "out", jobs=1, progress=False))
+    assert report.sheets["T-9"].executed
+    seen = []
+    pipeline._Kernel.kc.execute_interactive("import sys; print('matplotlib' in sys.modules)", timeout=30,
+                                            output_hook=lambda msg: seen.append(msg["content"].get("text", "")))
+    assert "".join(seen).split() == ["False"]
