@@ -226,36 +226,45 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
         copy_atomic(cached, target)
         write_atomic(outdir / FRONT_HINT, str(front_pages))
         return target
-    with tempfile.TemporaryDirectory(prefix="ts-pkg-") as tmp, ThreadPoolExecutor(max_workers=1) as ahead:
+    with tempfile.TemporaryDirectory(prefix="ts-pkg-") as tmp, ThreadPoolExecutor(max_workers=2) as ahead:
         work = Path(tmp)
         sheet_pages = sum(r["pages"] for r in rows)
-        # the page stamps for the guessed front-matter length are typeset beside the front matter
+        # beside the front matter's xelatex run (for the guessed front-matter length): the page stamps
+        # for that length, and in this thread the sheets' pages gathered into the package body
         guessed = front_pages
         stamps = ahead.submit(_stamps, project, guessed + 1, guessed + sheet_pages, work, cache) if sheet_pages else None
-        for attempt in range(4):  # the front matter's length sets the page numbers it prints
-            if attempt:
-                tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
-            front, aux = _typeset(tex, work, "package")
-            with pikepdf.open(front) as typeset:
-                actual = len(typeset.pages)
-            if actual == front_pages:
-                break
-            front_pages = actual
-        total = front_pages + sum(r["pages"] for r in rows)
-        labels = {k: int(v) - 1 for k, v in re.findall(r"\\newlabel\{ts-(\w+)\}\{\{[^}]*\}\{(\d+)\}", aux)}
+        first_front = ahead.submit(_typeset, tex, work / "front", "package")
         sheets = [r for r in rows if r["sheet"]]
-        with pikepdf.open(front) as package:
+        with pikepdf.new() as package:
             sources = [pikepdf.open(r["sheet"]) for r in sheets]  # kept open until the package is saved
             for src in sources:
                 package.pages.extend(src.pages)
+            front, aux = first_front.result()
+            for attempt in range(4):  # the front matter's length sets the page numbers it prints
+                with pikepdf.open(front) as typeset:
+                    actual = len(typeset.pages)
+                if actual == front_pages:
+                    break
+                front_pages = actual
+                tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
+                front, aux = _typeset(tex, work / f"front-{attempt}", "package")
+            with pikepdf.open(front) as typeset:
+                front_pages = len(typeset.pages)  # the last one typeset, if it never settled
+            total = front_pages + sum(r["pages"] for r in rows)
+            labels = {k: int(v) - 1 for k, v in re.findall(r"\\newlabel\{ts-(\w+)\}\{\{[^}]*\}\{(\d+)\}", aux)}
+            sheets = [r for r in rows if r["sheet"]]
             if sheets:
                 made = stamps.result() if stamps is not None else None
                 if made is None or front_pages != guessed:
                     made = _stamps(project, front_pages + 1, total, work, cache)
                 overlay = pikepdf.open(made)
                 sources.append(overlay)
-                for k, page in enumerate(package.pages[front_pages:]):
+                for k, page in enumerate(package.pages):
                     page.add_overlay(overlay.pages[k])
+            cover = pikepdf.open(front)
+            sources.append(cover)
+            for i, page in enumerate(cover.pages):  # the few front pages go before the many sheet pages
+                package.pages.insert(i, page)
             with package.open_outline() as outline:
                 outline.root.append(pikepdf.OutlineItem("Cover", 0))
                 outline.root.append(pikepdf.OutlineItem("Index of members", labels.get("index", 1)))
