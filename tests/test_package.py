@@ -91,3 +91,63 @@ def test_index_fits_the_text_width(tmp_path):
     text = subprocess.run(["pdftotext", "-layout", str(tmp_path / "front.pdf"), "-"], capture_output=True,
                           text=True, check=True).stdout
     assert "verbatim" not in text and "Clubroom floor girder" in text
+
+
+@pytest.mark.pipeline
+def test_a_rerun_takes_its_front_matter_from_the_forecast_and_it_shows_the_new_results(tmp_path, monkeypatch):
+    """A rerun typesets the package's front matter in a thread while its sheets are made, from the
+    results as designed and the sheets' page counts as cached; the package then takes it from the
+    cache. It must still be the front matter of this run: the index shows the changed member's
+    new utilization, as results.json gives it."""
+    import threading
+
+    from timbersheets.build import package
+
+    job = write_job(tmp_path / "job", [member_row("FA-1"), member_row("FA-2", P_D="6", P_L="4")])
+    out = tmp_path / "out"
+    run_job(job, RunOptions(out=out, progress=False, jobs=1))
+    write_job(job, [member_row("FA-1"), member_row("FA-2", P_D="9", P_L="4")])
+    threads = []
+    typeset_front = package._typeset
+
+    def recorded(tex, work, name):
+        threads.append(threading.current_thread().name)
+        return typeset_front(tex, work, name)
+
+    monkeypatch.setattr(package, "_typeset", recorded)
+    report = run_job(job, RunOptions(out=out, progress=False, jobs=1))
+    assert report.executed == ["FA-2"]
+    assert threads and set(threads) == {"front matter"}, threads  # the package typeset none of its own
+    doc = json.loads((out / "rev-A" / "results.json").read_text())
+    new = next(m for m in doc["members"] if m["mark"] == "FA-2")["utilization"]
+    index = subprocess.run(["pdftotext", "-layout", "-f", "2", "-l", "2", str(out / "rev-A" / "package.pdf"), "-"],
+                           capture_output=True, text=True, check=True).stdout
+    line = next(ln for ln in index.splitlines() if ln.lstrip().startswith("FA-2"))
+    assert f"{new:.3f}" in line, line
+
+
+@pytest.mark.pipeline
+def test_a_forecast_that_a_sheet_proves_wrong_is_not_used(tmp_path, monkeypatch):
+    """The forecast takes every member as designed; a member whose notebook then fails is an error
+    of this run, and the package's index says so (the forecast's front matter is not used)."""
+    import nbformat
+
+    from timbersheets.build.notebooks import templates_dir
+
+    job = write_job(tmp_path / "job", [member_row("FB-1"), member_row("FB-2", P_D="6", P_L="4")])
+    out = tmp_path / "out"
+    run_job(job, RunOptions(out=out, progress=False, jobs=1))
+    templates = tmp_path / "templates"
+    shutil.copytree(templates_dir(), templates)
+    nb = nbformat.read(templates / "axial.ipynb", 4)
+    nb.cells.insert(5, nbformat.v4.new_code_cell('if member["mark"] == "FB-2":\n    raise RuntimeError("stopped")'))
+    nbformat.write(nb, templates / "axial.ipynb")
+    monkeypatch.setenv("TIMBERSHEETS_TEMPLATES", str(templates))
+    run_job(job, RunOptions(out=out, progress=False, jobs=1))
+    doc = json.loads((out / "rev-A" / "results.json").read_text())
+    assert next(m for m in doc["members"] if m["mark"] == "FB-2")["status"] == "error"
+    index = subprocess.run(["pdftotext", "-layout", "-f", "2", "-l", "2", str(out / "rev-A" / "package.pdf"), "-"],
+                           capture_output=True, text=True, check=True).stdout
+    lines = index.splitlines()
+    at = next(i for i, ln in enumerate(lines) if ln.lstrip().startswith("FB-2"))
+    assert " NOT" in lines[at] and "DESIGNED" in lines[at + 1], lines[at:at + 2]  # the verdict, in two lines

@@ -58,16 +58,18 @@ def _governing(m: dict[str, Any]) -> str:
 
 
 def member_rows(members: list[dict[str, Any]], outdir: Path, first: int = 1,
-                pages: dict[str, int] | None = None) -> tuple[list[dict], list[str]]:
+                pages: dict[str, int] | None = None, present: set[str] | None = None) -> tuple[list[dict], list[str]]:
     """Index rows; sheets start at package page `first` in member order.
 
     `pages` holds the page counts xelatex reported for the sheets (read from
-    the PDFs where it is missing)."""
+    the PDFs where it is missing). `present` names the members with a sheet, when the
+    sheets are not written yet (a forecast: `front_ahead`); else a sheet is one in `outdir`."""
     pages = pages or {}
     rows, notes = [], []
     page = first
     for i, m in enumerate(members):
         sheet = outdir / "sheets" / f"{m['mark']}.pdf"
+        exists = m["mark"] in present if present is not None else sheet.exists()
         note = (m.get("inputs") or {}).get("note") or m.get("type") or ""
         review = m.get("review") or {"status": "not-checked"}
         flags = []
@@ -82,8 +84,8 @@ def member_rows(members: list[dict[str, Any]], outdir: Path, first: int = 1,
             "verdict": VERDICT_TEX[m["status"]], "verdict_word": VERDICT[m["status"]],
             "checked": escape(titleblock_text(review)),
             "flag": escape("; ".join(flags)),
-            "sheet": sheet.resolve().as_posix() if sheet.exists() else "",
-            "pages": (pages.get(m["mark"]) or page_count(sheet)) if sheet.exists() else 0,
+            "sheet": sheet.resolve().as_posix() if exists else "",
+            "pages": (pages.get(m["mark"]) or page_count(sheet)) if exists else 0,
             "start": page,
         })
         page += rows[-1]["pages"]
@@ -138,10 +140,10 @@ def change_rows(changes: list[MemberChange]) -> list[dict[str, str]]:
 
 def package_tex(project: Project, doc: dict[str, Any], data: DataSet, outdir: Path,
                 changes: list[MemberChange], chart: str, front_pages: int = 2,
-                pages: dict[str, int] | None = None) -> tuple[str, list[dict]]:
+                pages: dict[str, int] | None = None, present: set[str] | None = None) -> tuple[str, list[dict]]:
     """The front matter's LaTeX, given how many pages it takes, and the index rows."""
     members = doc["members"]
-    rows, notes = member_rows(members, outdir, front_pages + 1, pages)
+    rows, notes = member_rows(members, outdir, front_pages + 1, pages, present)
     counts = {"total": len(members), "pass": 0, "fail": 0, "error": 0}
     for m in members:
         counts[m["status"]] += 1
@@ -168,6 +170,56 @@ def _typeset(tex: str, work: Path, name: str) -> tuple[Path, str]:
     done = typeset(tex, work, name, "package")
     aux = work / f"{name}.aux"
     return done.pdf, aux.read_text(encoding="utf-8", errors="replace") if aux.exists() else ""
+
+
+def _front(tex: str, chart: Path | None, work: Path, cache: Path | None) -> tuple[Path, str]:
+    """The front matter typeset: its PDF and its .aux text. The same source with the same chart,
+    typeset before (by an earlier run, or ahead by this one: `front_ahead`), comes from `cache`."""
+    if cache is None:
+        return _typeset(tex, work, "package")
+    digest = hashlib.sha256(tex.encode())
+    if chart is not None and chart.exists():
+        digest.update(chart.read_bytes())
+    pdf, aux = cache / f"{digest.hexdigest()}.front.pdf", cache / f"{digest.hexdigest()}.front.aux"
+    if pdf.exists() and aux.exists():
+        return pdf, aux.read_text(encoding="utf-8", errors="replace")
+    made, text = _typeset(tex, work, "package")
+    write_atomic(aux, text)
+    copy_atomic(made, pdf)
+    return made, text
+
+
+def _first_guess(hint: Path | None) -> int:
+    """The front matter's length in pages, as the revision folder `hint` last had it (else 2)."""
+    if hint is not None and (hint / FRONT_HINT).exists():
+        return int((hint / FRONT_HINT).read_text() or 2)
+    return 2
+
+
+def front_ahead(project: Project, doc: dict[str, Any], data: DataSet, outdir: Path, changes: list[MemberChange],
+                chart: Path, hint: Path | None, pages: dict[str, int], present: set[str], cache: Path) -> None:
+    """Typeset into `cache` the front matter and page stamps a package would have from a forecast of
+    the run: the results as designed, and each sheet's page count as cached or as last typeset.
+
+    The run calls this in a thread while its sheets are made; `build_package` then takes both from
+    the cache when its own source is the same (nothing in the forecast changed), and typesets them
+    itself when not. A wrong forecast costs only this thread's work."""
+    import pikepdf
+
+    chart_path = chart.resolve().as_posix() if chart.exists() else ""
+    front_pages = _first_guess(hint)
+    with tempfile.TemporaryDirectory(prefix="ts-front-") as tmp:
+        for attempt in range(4):
+            tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages, present)
+            front, _ = _front(tex, chart, Path(tmp) / f"front-{attempt}", cache)
+            with pikepdf.open(front) as typeset:
+                actual = len(typeset.pages)
+            if actual == front_pages:
+                break
+            front_pages = actual
+        sheet_pages = sum(r["pages"] for r in rows)
+        if sheet_pages and actual == front_pages:
+            _stamps(project, front_pages + 1, front_pages + sheet_pages, Path(tmp), cache)
 
 
 def _stamps(project: Project, first: int, total: int, work: Path, cache: Path | None) -> Path:
@@ -205,21 +257,21 @@ def _package_key(tex: str, outdir: Path, rows: list[dict]) -> str:
 
 def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: Path,
                   changes: list[MemberChange], hint: Path | None = None,
-                  pages: dict[str, int] | None = None, cache: Path | None = None) -> Path:
+                  pages: dict[str, int] | None = None, cache: Path | None = None, chart: Path | None = None) -> Path:
     """package.pdf in `outdir`: front matter typeset, sheets appended and stamped; written atomically.
 
     `hint` is the previous revision folder: its front-matter length is the first
     guess, which saves a second typesetting of the front matter on a rerun. A
-    package made of exactly the same parts before is taken from `cache`.
+    package made of exactly the same parts before is taken from `cache`. `chart` is the
+    summary chart to show (the run names its copy in the cache, by its content), else
+    `outdir`'s summary.png.
     """
     import pikepdf
 
     target = outdir / "package.pdf"
-    chart = outdir / "summary.png"
+    chart = chart if chart is not None and chart.exists() else outdir / "summary.png"
     chart_path = chart.resolve().as_posix() if chart.exists() else ""
-    front_pages = 2
-    if hint is not None and (hint / FRONT_HINT).exists():
-        front_pages = int((hint / FRONT_HINT).read_text() or 2)
+    front_pages = _first_guess(hint)
     tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
     cached = cache / f"{_package_key(tex, outdir, rows)}.package.pdf" if cache is not None else None
     if cached is not None and cached.exists():
@@ -233,7 +285,7 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
         # for that length, and in this thread the sheets' pages gathered into the package body
         guessed = front_pages
         stamps = ahead.submit(_stamps, project, guessed + 1, guessed + sheet_pages, work, cache) if sheet_pages else None
-        first_front = ahead.submit(_typeset, tex, work / "front", "package")
+        first_front = ahead.submit(_front, tex, chart, work / "front", cache)
         sheets = [r for r in rows if r["sheet"]]
         with pikepdf.new() as package:
             sources = [pikepdf.open(r["sheet"]) for r in sheets]  # kept open until the package is saved
@@ -247,7 +299,7 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
                     break
                 front_pages = actual
                 tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
-                front, aux = _typeset(tex, work / f"front-{attempt}", "package")
+                front, aux = _front(tex, chart, work / f"front-{attempt}", cache)
             with pikepdf.open(front) as typeset:
                 front_pages = len(typeset.pages)  # the last one typeset, if it never settled
             total = front_pages + sum(r["pages"] for r in rows)

@@ -128,6 +128,11 @@ def _read_pages(pdf: Path) -> int:
     return int(path.read_text()) if path.exists() else 0
 
 
+def cached_pages(task: SheetTask) -> int:
+    """The page count of the task's sheet as the cache holds it (its stamped sheet or its body), else 0."""
+    return _read_pages(task.cached_sheet) or _read_pages(task.cached_body)
+
+
 def _needs_body(task: SheetTask) -> bool:
     return task.sheet is not None and (task.force or not task.cached_body.exists())
 

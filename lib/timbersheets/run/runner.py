@@ -32,7 +32,7 @@ from ..job.results import chart_rows, member_json, results_doc, write_results
 from ..job.review import comment_text, latest, load_review_file, read_reviews, status, titleblock_text
 from ..job.revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
 from ..lifetime import pid_alive
-from ..sheet.charts import draw_ahead, write_chart
+from ..sheet.charts import chart_in, draw_ahead, write_chart
 from ..sheet.tex import escape
 from .keep import Carried, carry_package, carry_sheets, package_key, write_package_key
 
@@ -159,6 +159,46 @@ def cross_check(design: MemberDesign, outcome: SheetOutcome) -> None:
         design.errors.append("sheet: the notebook's result differs from the run's own calculation")
 
 
+def _front_ahead(project: Project, designs: list[MemberDesign], data: DataSet, warnings: list[str],
+                 extra: dict[str, dict], previous: dict | None, prev_label: str | None, tasks: list[SheetTask],
+                 earlier: list[Path], stage: Path, cache: Path, title: str, chart):
+    """Start typesetting the package's front matter in a thread, from a forecast of this run
+    (build.package.front_ahead): the results as designed, and each sheet's page count as the cache
+    holds it or as the sheet was last typeset (this revision's folder, then the previous one's).
+    None when a page count is not known (a first run): then there is nothing to forecast from."""
+    import threading
+
+    from ..build.package import front_ahead, page_count
+    from ..build.sheetjobs import cached_pages
+
+    pages: dict[str, int] = {}
+    for t in tasks:
+        if t.sheet is None:
+            continue
+        pages[t.mark] = cached_pages(t) or next(
+            (page_count(f / "sheets" / f"{t.mark}.pdf") for f in earlier if (f / "sheets" / f"{t.mark}.pdf").exists()), 0)
+        if not pages[t.mark]:
+            return None
+    doc = results_doc(project.name, project.revision, project.codes, designs, data.manifest(), data.hash,
+                      warnings, extra)
+    doc["previous_revision"] = prev_label
+    changes = diff(previous, doc) if previous else []
+    members = doc["members"]
+
+    def forecast() -> None:
+        try:
+            if chart is not None:
+                chart.join()
+            front_ahead(project, doc, data, stage, changes, chart_in(cache, members, title), earlier[0], pages,
+                        set(pages), cache)
+        except Exception:  # noqa: BLE001 - only a head start: build_package typesets what it needs
+            pass
+
+    thread = threading.Thread(target=forecast, name="front matter", daemon=True)
+    thread.start()
+    return thread
+
+
 def member_extras(project: Project, designs: list[MemberDesign], previous: dict | None) -> dict[str, dict]:
     """Per member: its inputs, the revision it changed since, and its review status."""
     reviews = latest(read_reviews(project.folder))
@@ -259,6 +299,10 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         tasks = every if not opts.only else [t for t in every if t.mark in set(opts.only)]
         title = f"{project.fields['title']} rev {project.revision}: governing utilization"
         chart = draw_ahead(chart_rows(designs), title, (jobdir / ".cache").absolute()) if tasks and opts.sheets else None
+        front = (_front_ahead(project, designs, data, warnings, extra, previous, prev_label, every,
+                              [final, *([jobdir / f"rev-{prev_label}"] if prev_label else [])], stage,
+                              (jobdir / ".cache").absolute(), title, chart)
+                 if tasks and opts.sheets and opts.fmt == "pdf" and not opts.only else None)
         if tasks and opts.sheets:
             mark = time.monotonic()
             report.sheets = run_sheets(tasks, opts.jobs, opts.progress, work)
@@ -277,7 +321,9 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         write_csv(stage / "diff.csv", DIFF_HEADER, diff_rows(changes))
         if chart is not None:
             chart.join()
-        write_chart(stage / "summary.png", doc["members"], title, jobdir / ".cache")
+        chart_file = write_chart(stage / "summary.png", doc["members"], title, jobdir / ".cache")
+        if front is not None:
+            front.join()
         if opts.sheets and opts.fmt == "pdf":
             from ..build.package import build_package
             from ..build.typeset import ConversionError
@@ -287,7 +333,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                 report.package = final / "package.pdf"
                 build_package(project, doc, data, stage, changes, hint=final,
                               pages={m: o.pages for m, o in report.sheets.items() if o.pages},
-                              cache=jobdir / ".cache")
+                              cache=jobdir / ".cache", chart=chart_file)
                 write_package_key(stage, key)
                 phases["package"] = time.monotonic() - mark
             except ConversionError as exc:

@@ -110,16 +110,23 @@ def _chart_key(members: list[dict[str, Any]], title: str) -> str:
                           .encode()).hexdigest()
 
 
-def write_chart(path: Path, members: list[dict[str, Any]], title: str, cache: Path | None = None) -> None:
-    """Write the chart; an identical chart drawn before (or ahead, see `draw_ahead`) is taken from `cache`."""
-    cached = cache / f"chart-{_chart_key(members, title)}.png" if cache else None
+def chart_in(cache: Path, members: list[dict[str, Any]], title: str) -> Path:
+    """Where the cache keeps the chart of these members under this title (named by what it shows)."""
+    return cache.absolute() / f"chart-{_chart_key(members, title)}.png"
+
+
+def write_chart(path: Path, members: list[dict[str, Any]], title: str, cache: Path | None = None) -> Path:
+    """Write the chart; an identical chart drawn before (or ahead, see `draw_ahead`) is taken from
+    `cache`. Returns the cache's copy (or `path` without a cache)."""
+    cached = chart_in(cache, members, title) if cache else None
     if cached is not None and cached.exists():
         write_atomic(path, cached.read_bytes())
-        return
+        return cached
     png = utilization_chart(members, title)
     if cached is not None:
         write_atomic(cached, png)
     write_atomic(path, png)
+    return cached or path
 
 
 def draw_ahead(members: list[dict[str, Any]], title: str, cache: Path):
@@ -130,10 +137,9 @@ def draw_ahead(members: list[dict[str, Any]], title: str, cache: Path):
     the same; a member whose sheet ended in error changes the chart, which is then drawn again."""
     import threading
 
-    cache = cache.absolute()  # the thread runs while papermill has changed this process's folder
+    cached = chart_in(cache, members, title)  # absolute: papermill changes this process's folder meanwhile
 
     def draw() -> None:
-        cached = cache / f"chart-{_chart_key(members, title)}.png"
         if not cached.exists():
             try:
                 write_atomic(cached, utilization_chart(members, title))
