@@ -250,8 +250,10 @@ def scenarios(root: Path, lib: Path, members: int) -> tuple[list[tuple[str, floa
     """The five scenarios on a fresh job, run with the library in `lib`: (name, seconds, peak MB, phases)."""
     job = build_job(root, members)
     out = root / "out"
-    exe = str(BIN / "timbersheets")
-    run = [exe, "run", str(job), "--out", str(out)]
+    # the command through `python -m timbersheets.cli`, which every checkout's cli.py runs as the
+    # program (a baseline's library may not have this one's console entry point)
+    exe = [str(BIN / "python"), "-m", "timbersheets.cli"]
+    run = [*exe, "run", str(job), "--out", str(out)]
     rows = []
 
     def step(name: str, rev: str, before: float = 0.0) -> None:
@@ -273,7 +275,7 @@ def scenarios(root: Path, lib: Path, members: int) -> tuple[list[tuple[str, floa
     for verdict, marks in (("ok", [m["mark"] for m in members if m["status"] == "pass"]),
                            ("revise", [m["mark"] for m in members if m["status"] != "pass"])):
         if marks:
-            review += timed([exe, "review", str(job), *[a for m in marks for a in ("--mark", m)], "--by", "QC",
+            review += timed([*exe, "review", str(job), *[a for m in marks for a in ("--mark", m)], "--by", "QC",
                              "--verdict", verdict, "--out", str(out)], lib)[0]
             commands += 1
     step("review of all, then rerun", "B", review)
