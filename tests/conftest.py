@@ -73,6 +73,21 @@ BASE = {"type": "compression", "material": "sawn", "species": "S-P-F", "grade": 
 
 
 
+def failing_templates(folder: Path, mark: str, monkeypatch, message: str = "stopped here") -> Path:
+    """A copy of the templates in `folder` whose axial notebook raises RuntimeError(`message`) for
+    member `mark` (a real failing execution, not a mock), in use through $TIMBERSHEETS_TEMPLATES."""
+    import nbformat
+
+    from timbersheets.build.notebooks import templates_dir
+
+    shutil.copytree(templates_dir(), folder)
+    nb = nbformat.read(folder / "axial.ipynb", 4)
+    nb.cells.insert(5, nbformat.v4.new_code_cell(f'if member["mark"] == {mark!r}:\n    raise RuntimeError({message!r})'))
+    nbformat.write(nb, folder / "axial.ipynb")
+    monkeypatch.setenv("TIMBERSHEETS_TEMPLATES", str(folder))
+    return folder
+
+
 def member_row(mark: str = "M-1", **cells: str) -> dict[str, str]:
     return {"mark": mark, **BASE, **cells}
 

@@ -17,7 +17,7 @@ from pathlib import Path
 import pytest
 from pypdf import PdfReader
 
-from conftest import member_row, write_job
+from conftest import failing_templates, member_row, write_job
 from timbersheets.cli import main
 from timbersheets.run.runner import RunOptions, run_job
 
@@ -197,14 +197,7 @@ def test_a_notebook_that_fails_leaves_the_other_sheets_standing_on_two_workers(t
     its notebook with the error marked, and its sheet says it is incomplete."""
     import nbformat
 
-    from timbersheets.build.notebooks import templates_dir
-
-    templates = tmp_path / "templates"
-    shutil.copytree(templates_dir(), templates)
-    nb = nbformat.read(templates / "axial.ipynb", 4)
-    nb.cells.insert(5, nbformat.v4.new_code_cell('if member["mark"] == "ERR-1":\n    raise RuntimeError("stopped here")'))
-    nbformat.write(nb, templates / "axial.ipynb")
-    monkeypatch.setenv("TIMBERSHEETS_TEMPLATES", str(templates))
+    failing_templates(tmp_path / "templates", "ERR-1", monkeypatch)
     marks = ["OK-1", "ERR-1", "OK-2", "OK-3"]
     job = write_job(tmp_path / "nb", [member_row(m) for m in marks])
     report = run_job(job, RunOptions(out=tmp_path / "out", progress=False, jobs=2))

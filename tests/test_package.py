@@ -10,7 +10,7 @@ from pathlib import Path
 
 import pytest
 
-from conftest import member_row, write_job
+from conftest import failing_templates, member_row, write_job
 from timbersheets.build.package import package_tex
 from timbersheets.build.typeset import typeset
 from timbersheets.engineering.data import DataSet
@@ -130,19 +130,10 @@ def test_a_rerun_takes_its_front_matter_from_the_forecast_and_it_shows_the_new_r
 def test_a_forecast_that_a_sheet_proves_wrong_is_not_used(tmp_path, monkeypatch):
     """The forecast takes every member as designed; a member whose notebook then fails is an error
     of this run, and the package's index says so (the forecast's front matter is not used)."""
-    import nbformat
-
-    from timbersheets.build.notebooks import templates_dir
-
     job = write_job(tmp_path / "job", [member_row("FB-1"), member_row("FB-2", P_D="6", P_L="4")])
     out = tmp_path / "out"
     run_job(job, RunOptions(out=out, progress=False, jobs=1))
-    templates = tmp_path / "templates"
-    shutil.copytree(templates_dir(), templates)
-    nb = nbformat.read(templates / "axial.ipynb", 4)
-    nb.cells.insert(5, nbformat.v4.new_code_cell('if member["mark"] == "FB-2":\n    raise RuntimeError("stopped")'))
-    nbformat.write(nb, templates / "axial.ipynb")
-    monkeypatch.setenv("TIMBERSHEETS_TEMPLATES", str(templates))
+    failing_templates(tmp_path / "templates", "FB-2", monkeypatch)
     run_job(job, RunOptions(out=out, progress=False, jobs=1))
     doc = json.loads((out / "rev-A" / "results.json").read_text())
     assert next(m for m in doc["members"] if m["mark"] == "FB-2")["status"] == "error"
