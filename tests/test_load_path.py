@@ -245,3 +245,19 @@ def test_overhang_with_length_equals_spans_with_overhang(tmp_path, data):
     assert d["A-1"].member.values["spans"] == (4000.0,)
     a, b = d["A-1"].governing, d["A-2"].governing
     assert (a.check, a.combination, a.demand) == (b.check, b.combination, b.demand)
+
+
+def test_the_members_a_review_names_hash_as_in_the_whole_job():
+    """A review checks that a member's inputs (with the loads it carries) are those of the last run;
+    it designs only the named members and what they carry, and must get the same inputs hash as the
+    design of the whole job, for a member that carries others and for one that does not."""
+    from conftest import DEMO
+    from timbersheets.job.load import load_job
+
+    whole = load_job(DEMO).members()
+    carrying = [m for m, member in whole.items() if member.values.get("carries")]
+    assert carrying  # the demo hands loads down its load path
+    for mark in carrying + ["T-1"]:
+        assert load_job(DEMO).members([mark])[mark].inputs_hash == whole[mark].inputs_hash, mark
+    both = load_job(DEMO).members([carrying[0], "T-1"])
+    assert sorted(both) == sorted([carrying[0], "T-1"])

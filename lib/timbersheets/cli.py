@@ -307,7 +307,7 @@ def cmd_review(args: argparse.Namespace) -> int:
     from .job.load import load_job
 
     # the inputs as the run hashed them: with the reactions each member carries
-    current = {mark: m.inputs_hash for mark, m in load_job(args.dir).members().items()}
+    current = {mark: m.inputs_hash for mark, m in load_job(args.dir).members(marks).items()}
     stale = [m for m in marks if current.get(m) != members[m].get("inputs_hash")]
     if stale:
         raise UsageError(f"the schedule changed after the last run for {', '.join(stale)}; "

@@ -28,10 +28,26 @@ class Job:
         """One design per schedule row, in schedule order, made on first use."""
         return design_all(self.schedule.entries, self.data, self.schedule.path.name)
 
-    def members(self) -> dict[str, Member]:
-        """Valid members by mark, with their carried loads filled in where the design resolved them."""
+    def members(self, marks: list[str] | None = None) -> dict[str, Member]:
+        """Valid members by mark, with their carried loads filled in where the design resolved them.
+
+        With `marks`, only those members and the ones they carry (and so on down) are designed and
+        returned: a member's design depends on nothing else, so each is the member the whole job's
+        design gives (a review of one member need not design a hundred)."""
         out = {m.mark: m for m in self.schedule.members}
-        out.update({d.mark: d.member for d in self.designs if d.member is not None and d.mark in out})
+        if marks is None:
+            designs = self.designs
+        else:
+            needed, todo = set(), [m for m in marks if m in out]
+            while todo:
+                mark = todo.pop()
+                if mark not in needed:
+                    needed.add(mark)
+                    todo += [c.mark for c in out[mark].values.get("carries", ()) if c.mark in out]
+            entries = [m for m in self.schedule.members if m.mark in needed]
+            designs = design_all(entries, self.data, self.schedule.path.name)
+            out = {k: v for k, v in out.items() if k in set(marks)}
+        out.update({d.mark: d.member for d in designs if d.member is not None and d.mark in out})
         return out
 
 
