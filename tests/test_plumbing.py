@@ -95,3 +95,7 @@ def test_the_unit_registry_reads_pints_cache_and_survives_a_damaged_one(tmp_path
     assert run() == ["1000000.0", "1.0"]
     assert run() == ["1000000.0", "1.0"]  # and the cache written anew
     assert all(p.stat().st_size > 40 for p in (tmp_path / "timbersheets").rglob("*.pickle"))
+    blocked = tmp_path / "a-file"
+    blocked.write_text("not a folder")
+    env["XDG_CACHE_HOME"] = str(blocked)  # no cache can be made there: the registry is built all the same
+    assert run() == ["1000000.0", "1.0"]

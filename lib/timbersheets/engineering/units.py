@@ -25,12 +25,15 @@ def registry() -> pint.UnitRegistry:
     Parsing pint's definitions takes about 0.18 s in every process (the run, its workers, each
     kernel); pint keeps the parsed definitions in a cache folder (keyed by the definition files),
     read back in 0.02 s. Where that folder cannot be used, the registry is built from the files."""
+    folder = None
     try:
-        ureg = pint.UnitRegistry(cache_folder=_cache_folder())
-    except Exception:  # noqa: BLE001 - an unwritable or damaged cache: the registry is built as pint ships it
+        folder = _cache_folder()
+        ureg = pint.UnitRegistry(cache_folder=folder)
+    except Exception:  # noqa: BLE001 - no home, an unwritable or a damaged cache: the registry as pint ships it
         import shutil
 
-        shutil.rmtree(_cache_folder(), ignore_errors=True)  # a damaged entry is written anew next time
+        if folder is not None:
+            shutil.rmtree(folder, ignore_errors=True)  # a damaged entry is written anew next time
         ureg = pint.UnitRegistry()
     ureg.formatter.default_format = "~"
     return ureg
