@@ -121,7 +121,7 @@ SPANS = [(7200, 30.4), (6000, 5.0), (3000, -2.0), (12000, 80.0), (4200, 0.8), (2
 @pytest.mark.parametrize("length, w", SPANS, ids=[f"{L}mm-{w}N/mm" for L, w in SPANS])
 def test_the_diagram_axes_sit_where_tight_layout_puts_them(length, w):
     """The shear and moment diagram places its axes from its tick labels' widths, not by matplotlib's
-    tight_layout (40 % of the diagram's time); the two must agree to the pixel, so nothing is clipped:
+    tight_layout (40 % of the diagram's time); the two must agree within a pixel, so nothing is clipped:
     spans from 0.6 m to 20 m, loads from none to 2000 N/mm, uplift, and spans ending on a tick."""
     from timbersheets.engineering.analysis import span_diagram
     from timbersheets.sheet import diagrams

@@ -95,7 +95,7 @@ def _side_by_side(fig, ax_v, ax_m) -> None:
     """Place the two axes where ``fig.tight_layout(pad=PAD, w_pad=W_PAD)`` would, from the widths of
     their tick labels: tight_layout measures every artist of the figure, 40 % of the diagram's time in
     a kernel. Left of each axes: its y tick labels, ticks and pads; right of it: the half of an x tick
-    label at its right end. tests/test_render.py holds the two layouts equal to the pixel."""
+    label at its right end. tests/test_render.py holds the two layouts within a pixel of each other."""
     renderer = fig.canvas.get_renderer()
     px = fig.dpi / 72
     pad, w_pad = (k * STYLE["font.size"] * px for k in (PAD, W_PAD))
