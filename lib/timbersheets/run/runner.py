@@ -298,10 +298,11 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         every = sheet_tasks(project, designs, data, stage, opts, extra)
         tasks = every if not opts.only else [t for t in every if t.mark in set(opts.only)]
         title = f"{project.fields['title']} rev {project.revision}: governing utilization"
-        chart = draw_ahead(chart_rows(designs), title, (jobdir / ".cache").absolute()) if tasks and opts.sheets else None
+        cache = (jobdir / ".cache").absolute()  # the threads below run while papermill changes the folder
+        chart = draw_ahead(chart_rows(designs), title, cache) if tasks and opts.sheets else None
         front = (_front_ahead(project, designs, data, warnings, extra, previous, prev_label, every,
                               [final, *([jobdir / f"rev-{prev_label}"] if prev_label else [])], stage,
-                              (jobdir / ".cache").absolute(), title, chart)
+                              cache, title, chart)
                  if tasks and opts.sheets and opts.fmt == "pdf" and not opts.only else None)
         if tasks and opts.sheets:
             mark = time.monotonic()
@@ -321,7 +322,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         write_csv(stage / "diff.csv", DIFF_HEADER, diff_rows(changes))
         if chart is not None:
             chart.join()
-        chart_file = write_chart(stage / "summary.png", doc["members"], title, jobdir / ".cache")
+        chart_file = write_chart(stage / "summary.png", doc["members"], title, cache)
         if front is not None:
             front.join()
         if opts.sheets and opts.fmt == "pdf":
@@ -333,7 +334,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                 report.package = final / "package.pdf"
                 build_package(project, doc, data, stage, changes, hint=final,
                               pages={m: o.pages for m, o in report.sheets.items() if o.pages},
-                              cache=jobdir / ".cache", chart=chart_file)
+                              cache=cache, chart=chart_file)
                 write_package_key(stage, key)
                 phases["package"] = time.monotonic() - mark
             except ConversionError as exc:
