@@ -38,7 +38,7 @@ def test_larger_net_area_never_resists_less(area, grow):
 @given(b=st.sampled_from([38, 89, 140, 191]), d=st.sampled_from([89, 140, 184, 235, 286]),
        L=st.floats(300, 6000), extra=st.sampled_from([0, 38, 51, 102]))
 def test_deeper_column_never_resists_less_about_x(b, d, L, extra):
-    args = dict(f_c=11.5, K_D=1.0, K_H=1.0, K_Sc=1.0, K_T=1.0, K_e=1.0, L_x=L, E_05=6500, K_SE=1.0, phi=0.8)
+    args = dict(F_c=11.5, K_T=1.0, K_e=1.0, L_x=L, E_05=6500, K_SE=1.0, phi=0.8)  # F_c = f_c with every K 1.0
     shallow = sawn_compression_x(d=d, A=b * d, **args)["P_rx"]
     deep = sawn_compression_x(d=d + extra, A=b * (d + extra), **args)["P_rx"]
     assert deep >= shallow * (1 - 1e-12)

@@ -26,9 +26,19 @@ class Step:
     calc: Calc
     values: dict[str, float]
     caption: str = ""
+    #: The calc whose results these equal term by term (the weak axis of a square column braced alike
+    #: about both axes): the sheet then gives each value beside its twin, on one line.
+    same_as: Calc | None = None
 
     def latex(self) -> str:
         """One display block per equation, so a page may break between them."""
+        if self.same_as is not None:
+            from ..calc import format_value
+
+            pairs = zip(self.calc.outputs, self.same_as.outputs, strict=True)
+            terms = [f"{_sym(own)} = {_sym(twin)} = "
+                     f"{format_value(self.values[own], self.calc.units.get(own, ''))}" for own, twin in pairs]
+            return "$$" + r",\quad ".join(terms) + "$$"
         return self.calc.latex_lines(self.values)
 
 

@@ -21,10 +21,15 @@ _SAWN = {"f_c": "MPa", "K_D": "", "K_H": "", "K_Sc": "", "K_T": "", "F_c": "MPa"
          "E_05": "MPa", "K_SE": "", "phi": "", "A": "mm**2"}
 
 
+@calc(units={"f_c": "MPa", "K_D": "", "K_H": "", "K_Sc": "", "K_T": "", "F_c": "MPa"}, clause=SAWN_CLAUSE)
+def sawn_compression_strength(f_c, K_D, K_H, K_Sc, K_T):
+    F_c = f_c * (K_D * K_H * K_Sc * K_T)
+    return locals()
+
+
 @calc(units={**_SAWN, "L_x": "mm", "d": "mm", "C_cx": "", "K_Zcx": "", "K_Cx": "", "P_rx": "N"},
       clause=SAWN_CLAUSE)
-def sawn_compression_x(f_c, K_D, K_H, K_Sc, K_T, K_e, L_x, d, E_05, K_SE, phi, A):
-    F_c = f_c * (K_D * K_H * K_Sc * K_T)
+def sawn_compression_x(F_c, K_T, K_e, L_x, d, E_05, K_SE, phi, A):
     C_cx = K_e * L_x / d
     K_Zcx = min(6.3 * (d * L_x) ** (-0.13), 1.3)
     K_Cx = (1.0 + F_c * K_Zcx * C_cx**3 / (35 * E_05 * K_SE * K_T)) ** (-1)
@@ -34,8 +39,7 @@ def sawn_compression_x(f_c, K_D, K_H, K_Sc, K_T, K_e, L_x, d, E_05, K_SE, phi, A
 
 @calc(units={**_SAWN, "L_y": "mm", "b": "mm", "C_cy": "", "K_Zcy": "", "K_Cy": "", "P_ry": "N"},
       clause=SAWN_CLAUSE)
-def sawn_compression_y(f_c, K_D, K_H, K_Sc, K_T, K_e, L_y, b, E_05, K_SE, phi, A):
-    F_c = f_c * (K_D * K_H * K_Sc * K_T)
+def sawn_compression_y(F_c, K_T, K_e, L_y, b, E_05, K_SE, phi, A):
     C_cy = K_e * L_y / b
     K_Zcy = min(6.3 * (b * L_y) ** (-0.13), 1.3)
     K_Cy = (1.0 + F_c * K_Zcy * C_cy**3 / (35 * E_05 * K_SE * K_T)) ** (-1)
@@ -80,8 +84,8 @@ def compression_resistance(m: Context, K_D: float) -> tuple[float, tuple[Step, .
                    K_e=m.K_e, E_05=m.f["E05"], K_SE=m.K_S["K_SE"], phi=m.phi["compression"], A=m.section.A)
     common = dict(given.values)
     steps = []
+    s = m.section
     if m.glulam:  # F_c and the volume size factor are the same about both axes: shown once
-        s = m.section
         shared = glulam_compression_factors(f_c=common.pop("f_c"), K_D=common.pop("K_D"), K_H=common.pop("K_H"),
                                             K_Sc=common.pop("K_Sc"), K_T=m.K_T, b=s.b / 1000, d=s.d / 1000,
                                             L=m.length / 1000)  # mm → m: Z in m³
@@ -89,9 +93,13 @@ def compression_resistance(m: Context, K_D: float) -> tuple[float, tuple[Step, .
         common.update(F_c=shared["F_c"], K_Zcg=shared["K_Zcg"])
         axes = ((glulam_compression_x, dict(L_x=m.L_x, d=s.d), "C_cx"),
                 (glulam_compression_y, dict(L_y=m.L_y, b=s.b), "C_cy"))
-    else:
-        axes = ((sawn_compression_x, dict(L_x=m.L_x, d=m.section.d), "C_cx"),
-                (sawn_compression_y, dict(L_y=m.L_y, b=m.section.b), "C_cy"))
+    else:  # F_c is the same about both axes: shown once
+        shared = sawn_compression_strength(f_c=common.pop("f_c"), K_D=common.pop("K_D"), K_H=common.pop("K_H"),
+                                           K_Sc=common.pop("K_Sc"), K_T=m.K_T)
+        steps.append(Step(sawn_compression_strength, shared, "strength, the same about both axes"))
+        common["F_c"] = shared["F_c"]
+        axes = ((sawn_compression_x, dict(L_x=m.L_x, d=s.d), "C_cx"),
+                (sawn_compression_y, dict(L_y=m.L_y, b=s.b), "C_cy"))
     limits = []  # the slenderness limit, read once per axis checked
     for (calc_, geometry, slender), axis in zip(axes, ("x", "y"), strict=True):
         if min(v for k, v in geometry.items() if k.startswith("L_")) <= 0:
@@ -105,7 +113,9 @@ def compression_resistance(m: Context, K_D: float) -> tuple[float, tuple[Step, .
                               "Brace the member or choose a larger section")
         caption = ("buckling about the strong axis x (across d)" if axis == "x"
                    else "buckling about the weak axis y (across b)")
-        steps.append(Step(calc_, values, caption))
+        same = axis == "y" and s.b == s.d and m.L_y == m.L_x and steps[-1].calc is axes[0][0]
+        steps.append(Step(calc_, values, caption + (": b = d and L_y = L_x, so every value is that about x"
+                                                     if same else ""), same_as=axes[0][0] if same else None))
     resistances = [st.values.get("P_rx", st.values.get("P_ry")) for st in steps]
     if not any(r is not None for r in resistances):
         raise DesignError(m.mark, "is braced about both axes (Lx = Ly = 0); give the unbraced length of at least one")
