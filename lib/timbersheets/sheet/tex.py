@@ -169,6 +169,9 @@ class Table:
         body = [" & ".join(as_cell(c).latex for c in row) + r" \\" for row in self.rows]
         wrapping = [a for a in align if a in _WRAPPING]
         if len(self.rows) >= BREAKABLE_ROWS and wrapping in ([], ["X"], ["W", "N"]):  # what \tsbreakable sizes
+            # The last row ends with a bare \cr: supertabular's \\ asks, after every row, whether another
+            # would fit, and after the last would start a page holding only the repeated header.
+            body[-1] = body[-1].removesuffix(r" \\") + r" \cr"
             return ("\\par\n\\tsbreakable{" + align + "}{\n" + "\n".join(head) + "}{\n" + "\n".join(body)
                     + "}\n\\par\n")
         width = "{\\linewidth}" if env == "tabularx" else ""
