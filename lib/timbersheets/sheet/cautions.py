@@ -50,7 +50,10 @@ def _text(qualifier: str) -> tuple[str, str]:
     return "".join(latex) + escape(qualifier[pos:]), "".join(md) + md_escape(qualifier[pos:])
 
 
-def _source(d: Datum) -> tuple[str, str]:
+def _source(d: Datum, tabled: bool = False) -> tuple[str, str]:
+    """Where to check the value: its table and data file; the file alone when the factor table names the table."""
+    if tabled:
+        return f"\\texttt{{{escape(d.file)}}}", f"`{d.file}`"
     return (f"{escape(d.table)}; data file \\texttt{{{escape(d.file)}}}",
             f"{md_escape(d.table)}; data file `{d.file}`")
 
@@ -58,8 +61,8 @@ def _source(d: Datum) -> tuple[str, str]:
 def unverified_items(used: list[Datum], described: frozenset[str] = frozenset()) -> list[tuple[str, str]]:
     """(LaTeX, Markdown) per unverified value used; the load combinations together in one item.
 
-    A symbol in `described` (the sheet's factor table gives its meaning) is named without
-    its meaning again."""
+    A symbol in `described` (the sheet's factor table gives its meaning and table) is named
+    without them again: its case and data file."""
     items: dict[str, tuple[str, str]] = {}
     combos: dict[str, Datum] = {}
     for d in used:
@@ -68,13 +71,13 @@ def unverified_items(used: list[Datum], described: frozenset[str] = frozenset())
         if d.label.startswith("NBC combination "):
             combos.setdefault(d.label.split(" ", 2)[2], d)
             continue
-        src_latex, src_md = _source(d)
+        symbol = d.symbol or d.label.split(" ")[0]
+        src_latex, src_md = _source(d, symbol in described)
         if d.label.startswith("SLS combination "):
             check, load = d.label.split(" ")[2:4]
             words = f"Serviceability load factor on {load} for {ACTION_WORDS.get(check, check).lower()}"
             items[d.warning] = (f"{escape(words)} ({src_latex})", f"{md_escape(words)} ({src_md})")
             continue
-        symbol = d.symbol or d.label.split(" ")[0]
         sym = f"${symbol_latex(symbol)}$"
         what = "" if symbol in described else meaning(symbol)
         q_latex, q_md = _text(_qualifier(d.label, symbol))
