@@ -126,7 +126,8 @@ def test_package_pages_bookmarks_and_index(demo_run):
 def test_latex_in_user_text_prints_literally(tmp_path):
     from timbersheets.sheet.tex import _covered_by_fallback
 
-    note = r"\input{/etc/passwd} 100% & #1_a $x$ ~^ ✓ ᐃᖃᓗᐃᑦ 😀"
+    # long enough that the member table gives it whole (a note that fits the title block is only there)
+    note = r"\input{/etc/passwd} 100% & #1_a $x$ ~^ ✓ ᐃᖃᓗᐃᑦ 😀" + " and words to pass the title block's length" * 2
     job = write_job(tmp_path / "esc", [member_row("E-1", note=note)],
                     extra='[data]\n')
     (job / "project.toml").write_text((job / "project.toml").read_text().replace('title = "Test job"',

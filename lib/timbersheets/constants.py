@@ -9,6 +9,10 @@ from __future__ import annotations
 CAUTION = ("This calculation must be reviewed and sealed by a licensed professional engineer before it is "
            "used. The codes and editions adopted by the authority having jurisdiction govern.")
 
+#: The longest member note the title block shows whole; a longer one is cut there and given whole in the
+#: sheet's member table.
+TITLE_NOTE_CHARS = 90
+
 #: The same caution for a page foot (sheet title block, package pages).
 SHORT_CAUTION = ("Review and seal by a licensed professional engineer required; the codes adopted by the "
                  "authority having jurisdiction govern.")

@@ -18,7 +18,7 @@ from pathlib import Path
 from .. import __version__
 from ..build.notebooks import start_kernel, templates_dir
 from ..build.sheetjobs import SheetOutcome, SheetTask, run_sheets
-from ..constants import SHORT_CAUTION
+from ..constants import SHORT_CAUTION, TITLE_NOTE_CHARS
 from ..engineering.beammodel import STORE_ENV as BEAM_STORE_ENV
 from ..engineering.data import DataSet
 from ..engineering.design import MemberDesign
@@ -111,7 +111,8 @@ def titleblock(project: Project, design: MemberDesign, data: DataSet, checked: s
     f = project.fields
     m = design.member
     description = (m.note if m and m.note else f"{m.type} member" if m else "")
-    short = description if len(description) <= 90 else description[:87].rstrip() + "..."
+    short = (description if len(description) <= TITLE_NOTE_CHARS
+             else description[:TITLE_NOTE_CHARS - 3].rstrip() + "...")
     raw = {
         "project": f["title"], "number": f["number"], "location": f["location"], "client": f["client"],
         "mark": design.mark, "description": short, "date": f["date"],
