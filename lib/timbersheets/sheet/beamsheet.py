@@ -17,6 +17,7 @@ from ..engineering.ownweight import gives_line_loads
 from ..engineering.units import to_display
 from ..errors import TimbersheetsError
 from .blocks import Block, heading, math_block, para, q, table
+from .tabled import checks_by_name, shared_table_checks
 from .tex import Cell, Table, escape
 
 
@@ -130,12 +131,16 @@ def forces_block(design) -> Block:
                 "Simply supported span under the uniform factored load w_f: M_f at midspan, V_f and Q_f at the "
                 "supports, V_fd at d from the end of the span.")
     out += force_equations(forces[0]) if forces else Block("", "")
-    header = ["Combination", Cell.math("w_f"), Cell.math("M_f"), Cell.math("V_f"), Cell.math("V_{fd}"),
-              Cell.math("Q_f")]
-    units = ["", "kN/m", "kN·m", "kN", "kN", "kN"]
-    rows = [[f.case.label, q(f.w_f, "N/mm"), q(f.M_f, "N*mm"), q(f.V_f, "N"), q(f.V_fd, "N"), q(f.R_f, "N")]
-            for f in forces]
-    out += table(Table(header, rows, "l" + "r" * (len(header) - 1), units))
+    if {"bending", "shear"} <= set(shared_table_checks(checks_by_name(design))):
+        out += para("Each combination's $w_f$ is in the table above; its moment, the shear each check uses and "
+                    "the reaction are in the table that ends section 5.")
+    else:
+        header = ["Combination", Cell.math("w_f"), Cell.math("M_f"), Cell.math("V_f"), Cell.math("V_{fd}"),
+                  Cell.math("Q_f")]
+        units = ["", "kN/m", "kN·m", "kN", "kN", "kN"]
+        rows = [[f.case.label, q(f.w_f, "N/mm"), q(f.M_f, "N*mm"), q(f.V_f, "N"), q(f.V_fd, "N"), q(f.R_f, "N")]
+                for f in forces]
+        out += table(Table(header, rows, "l" + "r" * (len(header) - 1), units))
     if any(f.R_f < 0 for f in forces):
         out += para("A negative $Q_f$ is uplift at the supports: no bearing demand, but the connections must hold "
                     "the member down (not checked on this sheet).")

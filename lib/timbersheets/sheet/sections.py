@@ -12,7 +12,7 @@ import re
 from pathlib import Path
 from typing import Any
 
-from ..constants import CAUTION, RESULT_MIME
+from ..constants import CAUTION, RESULT_MIME, TITLE_NOTE_CHARS
 from ..engineering.calc import format_number, format_value, unit_latex, unit_text
 from ..engineering.checks import CheckResult
 from ..engineering.data import DataSet
@@ -24,6 +24,7 @@ from ..engineering.units import to_display
 from ..schedule.read import Member
 from .blocks import Block, heading, math_block, para, q, table
 from .symbols import ACTION_WORDS, meaning, symbol_latex, symbol_unit
+from .tabled import SHARED_TABLE_CHECKS, checks_by_name, serviceability, shared_table_checks
 from .tex import Cell, Table, escape, md_escape
 
 LOAD_NAMES = {"D": "Dead", "L": "Live (use and occupancy)", "S": "Snow (with rain)", "W": "Wind", "E": "Earthquake"}
@@ -78,7 +79,7 @@ class Sheet:
             rows += [row for name, row in (("length", length), ("net-area", net_area)) if self.kind.shows(name)]
         if m.entered:
             rows.append(["As entered", entered_cell(m)])
-        if m.note:
+        if len(m.note or "") > TITLE_NOTE_CHARS:  # a shorter note is whole in the title block
             rows.append(["Note", m.note])
         rows.append(["Schedule", f"row {m.row}"])
         return heading("Member") + table(Table(["Item", "Value"], rows, "lX"))
@@ -154,15 +155,13 @@ class Sheet:
                              DURATION_CLASS[t] + " term"])
             if t == "D":
                 rows += self.own_weight_rows(effects)
-        sense = ("Line loads act downward on the span, negative values upward (uplift); moments and shears are "
-                 "the frame model's, by load type." if self.kind.axial is None else
-                 "Positive axial force acts in the member's own sense (tension for a tension member, compression "
-                 "otherwise).")
+        sense = ("Line loads act downward, negative values upward (uplift); moments and shears are the frame "
+                 "model's." if self.kind.axial is None else
+                 "Positive axial force acts in the member's sense (tension for a tension member, else compression).")
         weight = self.design.context.own_weight if self.design.context else None
-        own = ("The tool adds the member's own weight to the dead load D, as its own line (worked below); "
-               "every combination's D includes it." if weight else
+        own = ("The member's own weight is added to D as its own line (worked below)." if weight else
                "The schedule's dead load includes the member's own weight (self_weight = no); the tool adds none.")
-        intro = para("Specified loads from the schedule, including importance factors, by load type (NBC "
+        intro = para("Specified loads from the schedule by load type, importance factors included (NBC "
                      f"{escape(self.codes.get('nbc', '2020'))} Part 4). {escape(own)} {sense}")
         from .modelsheet import loads_block
 
@@ -204,15 +203,12 @@ class Sheet:
         for case in d.cases:
             rows.append([case.combination.id, case.label, *[q(case.factored[e], EFFECT_UNITS[e]) for e in effects],
                          Cell(f"${format_number(case.K_D)}$", format_number(case.K_D)), basis_cell(case.basis)])
-        intro = para(f"ULS load combinations of NBC {escape(self.codes.get('nbc', '2020'))} Table 4.1.3.2.-A, "
-                     "numbered as its cases, "
-                     "each principal load with and without its companion loads; 0.9D only where a load acts "
-                     "against the dead load; combinations that repeat another are left out. "
-                     "$K_D$ by the duration class of the principal load (CSA O86-14 5.3.2, Table 5.1), one value "
-                     "for every resistance of the combination. In a live- or snow-principal combination, each "
-                     "effect that carries live or snow load is tested by 5.3.2.3 and the lowest value is used; an "
-                     "effect from dead load alone is checked long-term in the dead-only combination (1.4D with "
-                     "0.65 is the more severe case).",
+        intro = para(f"ULS combinations of NBC {escape(self.codes.get('nbc', '2020'))} Table 4.1.3.2.-A by its "
+                     "case numbers: each principal load with and without companions, 0.9D only where a load "
+                     "opposes the dead load, repeats left out. $K_D$ by the principal load's duration class "
+                     "(CSA O86-14 5.3.2, Table 5.1), one per combination; with L or S principal, each effect that "
+                     "carries L or S is tested by 5.3.2.3 and the lowest value used (dead load alone is checked "
+                     "in 1.4D, $K_D = 0.65$).",
                      "ULS load combinations of NBC Table 4.1.3.2.-A; K_D by the principal load (CSA O86 5.3.2), one "
                      "value per combination.")
         if self.m.live_use == "storage" and any(self.m.values[f"{e}_L"] for e in EFFECTS):
@@ -233,8 +229,7 @@ class Sheet:
         if reduced:  # the rule once, then each combination's K_D (a few lines each, not a paragraph)
             words = "; ".join(f"${symbol_latex(k)}$ is {v}" for k, v in KD_SYMBOLS.items())
             out += para("Where the long-term (dead) part exceeds the standard-term part, $K_D$ follows CSA O86-14 "
-                        f"5.3.2.3 ({words}; O86's own letters for these are those of the schedule's live and snow "
-                        "load columns, hence new names).")
+                        f"5.3.2.3 ({words}; named anew, as O86's letters are the schedule's load columns).")
         for case in reduced:
             unit = EFFECT_UNITS[case.kd_effect]
             latex = kd_permanent.latex(case.kd_values, units={"X_lt": unit, "X_st": unit})
@@ -279,11 +274,10 @@ class Sheet:
         for name, value in given:
             rows.append([Cell.math(symbol_latex(name)), Cell(f"${format_number(value)}$", format_number(value)),
                          meaning(name), "schedule", "as given"])
-        intro = para(f"Specified strengths for {escape(d.context.strengths.description) if d.context else ''}, "
-                     "modification factors and resistance factors used by the checks below, with the table "
-                     "each comes from. Values marked unverified were recorded from memory or secondary sources "
-                     "(lib/timbersheets/data/README.md lists each) and await checking against a licensed copy of "
-                     "the standard.")
+        intro = para(f"Strengths for {escape(d.context.strengths.description) if d.context else ''} and the "
+                     "factors the checks use, each with its source. Unverified values were recorded from memory "
+                     "or secondary sources (lib/timbersheets/data/README.md) and await checking against a licensed "
+                     "copy of the standard.")
         return heading("Material and modification factors") + intro + table(
             Table(["Symbol", "Value", "Meaning", "Source", "Data status"], rows, "lrWNl"))
 
@@ -295,11 +289,43 @@ class Sheet:
             items = "".join(f"\\item {escape(e)}\n" for e in d.errors)
             return out + Block(f"\\begin{{itemize}}\n{items}\\end{{itemize}}\n",
                                "".join(f"- {md_escape(e)}\n" for e in d.errors))
-        for name, gov in d.governing_by_check().items():
-            out += self._check_block(name, gov, [c for c in d.checks if c.check == name])
+        governing = d.governing_by_check()
+        cases = checks_by_name(d)
+        shared = shared_table_checks(cases)
+        for name, gov in governing.items():
+            out += self._check_block(name, gov, cases[name], tabled=name not in shared)
+        if shared:
+            # the heading keeps with the table's header and first rows (a breaking table starts on a new
+            # page when those do not fit, which would leave the heading alone)
+            out += Block("\\tsneedspace{9\\baselineskip}\n", "") + heading("Every combination", 2)
+            names = list(shared)
+            for k in range(0, len(names), SHARED_TABLE_CHECKS):
+                out += self._shared_table([cases[n] for n in names[k:k + SHARED_TABLE_CHECKS]], governing)
         return out
 
-    def _check_block(self, name: str, gov: CheckResult, all_cases: list[CheckResult]) -> Block:
+    @staticmethod
+    def _shared_table(columns: list[list[CheckResult]], governing: dict[str, CheckResult]) -> Block:
+        """One row per combination: K_D, then each check's effect, resistance and utilization."""
+        header: list[object] = ["Combination", Cell.math("K_D")]
+        units: list[object] = ["", ""]
+        for results in columns:
+            gov = governing[results[0].check]
+            header += [Cell.math(gov.demand_symbol_latex), Cell.math(gov.resistance_symbol_latex),
+                       Cell(f"${gov.demand_symbol_latex}/{gov.resistance_symbol_latex}$",
+                            f"{gov.demand_symbol}/{gov.resistance_symbol}")]
+            units += [unit_text(gov.unit), unit_text(gov.unit), ""]
+        by_check = [{c.combination: c for c in results} for results in columns]
+        rows = []
+        for label in dict.fromkeys(c.combination for results in columns for c in results):
+            row = [checked.get(label) for checked in by_check]
+            cells: list[object] = [label, kd_cell(next(c for c in row if c is not None))]
+            for c in row:  # a check not made under this combination (no uplift at a bearing): a dash
+                cells += ([num(c.demand, c.unit), num(c.resistance, c.unit), util_cell(c.utilization)]
+                          if c is not None else [Cell("--", "–")] * 3)
+            rows.append(cells)
+        return table(Table(header, rows, "l" + "r" * (len(header) - 1), units))
+
+    def _check_block(self, name: str, gov: CheckResult, all_cases: list[CheckResult], tabled: bool = True) -> Block:
         out = heading(f"{ACTION_WORDS.get(name, name)} ({gov.clause})", 2)
         shown = branches(name, all_cases)
         for result in shown:
@@ -309,12 +335,15 @@ class Sheet:
                        "Positive moment (top edge in compression)") + ", shown in full for the combination that "
                       "governs it" if len(shown) > 1 else "Shown in full for the governing combination")
             at = f" at {escape(result.where)}" if result.where else ""
-            out += para(f"{branch} {escape(result.combination)}{at} ({kd}); every combination is listed after.")
+            listed = "listed after" if tabled else "in the table that ends section 5"
+            out += para(f"{branch} {escape(result.combination)}{at} ({kd}); every combination is {listed}.")
             for step in result.steps:
                 if step.caption:
                     out += para(f"\\emph{{{caption_latex(step.caption)}}}", f"*{md_escape(step.caption)}*")
                 out += math_block(step.latex())
             out += math_block(self._utilization_latex(result))
+        if not tabled:
+            return out
         unit = gov.unit
         header = ["Combination", Cell.math("K_D"), Cell.math(gov.demand_symbol_latex),
                   Cell.math(gov.resistance_symbol_latex), "Utilization"]
@@ -477,10 +506,6 @@ def num(value: float, unit: str) -> Cell:
     """A result in a check's table; deflections (mm) to 0.1 mm, like forces to 0.1 kN."""
     text = f"{value:.1f}" if unit == "mm" else format_number(value, unit)
     return Cell(f"${text}$", text)
-
-
-def serviceability(c: CheckResult) -> bool:
-    return c.check.startswith("deflection")
 
 
 def kd_cell(c: CheckResult) -> Cell:
