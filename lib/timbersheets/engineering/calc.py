@@ -20,6 +20,7 @@ from __future__ import annotations
 import ast
 import inspect
 import math
+import re
 import textwrap
 from collections.abc import Callable, Mapping
 from functools import cached_property
@@ -92,7 +93,7 @@ class Calc:
         for name, value in values.items():
             shown[name] = Shown(format_value(value, declared.get(name, ""), precision))
         config = dict(global_config._config)
-        return latex(source if source is not None else self.source, shown, "", config, precision, False)
+        return result_beside(latex(source if source is not None else self.source, shown, "", config, precision, False))
 
     def formula(self, *names: str) -> str:
         """The equations of `names` (all when none) as symbols only, one display block: the same source
@@ -257,3 +258,37 @@ def format_value(value: float, compute_unit: str, sig: int = 3) -> str:
 def shown_unit(compute_unit: str) -> str:
     """Display unit for a compute unit (re-exported for sheets)."""
     return display_unit(compute_unit)
+
+
+#: The widest row, in characters as printed (see :func:`printed_width`), that a result may join. A
+#: one-line equation of 58 such characters fills about four fifths of the sheet's text width.
+RESULT_ROW_CHARS = 60
+
+# handcalcs' long form: the symbols, then "\\&= numbers", then "\\&= result" on a row of its own
+_LONG_TAIL = re.compile(r"\\\\(&= [^\n]*?) \\\\&= ([^\n&]*?)\s*\\\\\s*\n\\end\{aligned\}")
+
+
+def result_beside(tex: str) -> str:
+    """handcalcs' long form with the result moved up beside the substituted numbers, where the two fit
+    on one row: ``K = min(…) \\ = min(6.3 · …) = 1.10`` in two rows instead of three."""
+    def join(match: re.Match) -> str:
+        numbers, value = match.group(1), match.group(2).strip()
+        if printed_width(f"{numbers} = {value}") > RESULT_ROW_CHARS:
+            return match.group(0)
+        return f"\\\\{numbers} = {value}\n\\end{{aligned}}"
+
+    return _LONG_TAIL.sub(join, tex)
+
+
+def printed_width(tex: str) -> int:
+    """About how many characters wide a row of maths prints: units and operator names as their letters,
+    a command (\\cdot, \\phi) as one, a simple fraction as its longer part; braces, spaces, sub- and
+    superscript marks as nothing. Nested fractions count both parts: on the safe, wide side."""
+    def plain(t: str) -> str:
+        t = re.sub(r"\\mathrm\{([^}]*)\}", r"\1", t)
+        t = re.sub(r"\\(left|right|operatorname)\b", "", t)
+        t = re.sub(r"\\[a-zA-Z]+", "x", t)
+        return re.sub(r"\\ |[{}\s&^_]", "", t)
+
+    t = re.sub(r"\\frac\{([^{}]*)\}\{([^{}]*)\}", lambda m: "x" * max(len(plain(m.group(1))), len(plain(m.group(2)))), tex)
+    return len(plain(t))

@@ -50,37 +50,58 @@ def _text(qualifier: str) -> tuple[str, str]:
     return "".join(latex) + escape(qualifier[pos:]), "".join(md) + md_escape(qualifier[pos:])
 
 
+def _file(name: str) -> tuple[str, str]:
+    return f"\\texttt{{{escape(name)}}}", f"`{name}`"
+
+
 def _source(d: Datum, tabled: bool = False) -> tuple[str, str]:
     """Where to check the value: its table and data file; the file alone when the factor table names the table."""
     if tabled:
-        return f"\\texttt{{{escape(d.file)}}}", f"`{d.file}`"
-    return (f"{escape(d.table)}; data file \\texttt{{{escape(d.file)}}}",
-            f"{md_escape(d.table)}; data file `{d.file}`")
+        return _file(d.file)
+    return (f"{escape(d.table)}; data file {_file(d.file)[0]}", f"{md_escape(d.table)}; data file {_file(d.file)[1]}")
 
 
 def unverified_items(used: list[Datum], described: frozenset[str] = frozenset()) -> list[tuple[str, str]]:
-    """(LaTeX, Markdown) per unverified value used; the load combinations together in one item.
+    """(LaTeX, Markdown) per unverified value used; the load combinations together in one item, and the
+    serviceability load factors in one.
 
-    A symbol in `described` (the sheet's factor table gives its meaning and table) is named
-    without them again: its case and data file."""
-    items: dict[str, tuple[str, str]] = {}
+    A symbol in `described` (the sheet's factor table gives its meaning and table) is named without
+    them again: its case and data file, and symbols of one case from one file share an item
+    (K_Sb, K_Sv, K_SE: sawn small dry service)."""
+    items: dict[object, tuple[str, str]] = {}
+    shared: dict[tuple[str, str], list[str]] = {}  # (case, file) → symbols, for those the factor table gives
+    case_md: dict[str, str] = {}
+    sls: dict[str, list[str]] = {}  # load → checks
+    sls_datum: Datum | None = None
     combos: dict[str, Datum] = {}
+    seen: set[str] = set()
     for d in used:
-        if d.verified or d.warning in items:
+        if d.verified or d.warning in seen:
             continue
+        seen.add(d.warning)
         if d.label.startswith("NBC combination "):
             combos.setdefault(d.label.split(" ", 2)[2], d)
             continue
-        symbol = d.symbol or d.label.split(" ")[0]
-        src_latex, src_md = _source(d, symbol in described)
         if d.label.startswith("SLS combination "):
             check, load = d.label.split(" ")[2:4]
-            words = f"Serviceability load factor on {load} for {ACTION_WORDS.get(check, check).lower()}"
-            items[d.warning] = (f"{escape(words)} ({src_latex})", f"{md_escape(words)} ({src_md})")
+            sls.setdefault(load, []).append(ACTION_WORDS.get(check, check).lower().removeprefix("deflection under "))
+            sls_datum = sls_datum or d
+            items.setdefault("sls", ("", ""))  # its place in the list
             continue
+        symbol = d.symbol or d.label.split(" ")[0]
         sym = f"${symbol_latex(symbol)}$"
-        what = "" if symbol in described else meaning(symbol)
         q_latex, q_md = _text(_qualifier(d.label, symbol))
+        if symbol in described and not q_latex.startswith("="):
+            key = (q_latex, d.file)
+            if key not in shared:
+                shared[key] = []
+                items[key] = ("", "")
+            if sym not in shared[key]:
+                shared[key].append(sym)
+            case_md[q_latex] = q_md
+            continue
+        src_latex, src_md = _source(d, symbol in described)
+        what = "" if symbol in described else meaning(symbol)
         if q_latex.startswith("="):  # E05 = 0.87 E of …: the rule itself, after the symbol (again)
             if not what:
                 items[d.warning] = (f"{sym} {q_latex} ({src_latex})", f"{sym} {q_md} ({src_md})")
@@ -89,6 +110,15 @@ def unverified_items(used: list[Datum], described: frozenset[str] = frozenset())
         head_latex = sym + (f", {escape(what)}" if what else "") + (f": {q_latex}" if q_latex else "")
         head_md = sym + (f", {md_escape(what)}" if what else "") + (f": {q_md}" if q_md else "")
         items[d.warning] = (f"{head_latex} ({src_latex})", f"{head_md} ({src_md})")
+    for (q_latex, file), symbols in shared.items():
+        q_md = case_md[q_latex]
+        items[(q_latex, file)] = (", ".join(symbols) + (f": {q_latex}" if q_latex else "") + f" ({_file(file)[0]})",
+                                  ", ".join(symbols) + (f": {q_md}" if q_md else "") + f" ({_file(file)[1]})")
+    if sls_datum is not None:
+        src_latex, src_md = _source(sls_datum)
+        words = "Serviceability load factor " + "; ".join(
+            f"on {load} for deflection under {' and '.join(checks)}" for load, checks in sls.items())
+        items["sls"] = (f"{escape(words)} ({src_latex})", f"{md_escape(words)} ({src_md})")
     if combos:
         first = next(iter(combos.values()))
         src_latex, src_md = _source(first)

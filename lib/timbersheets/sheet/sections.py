@@ -411,12 +411,12 @@ class Sheet:
         listing, md = extra + listing, extra_md + md
         codes = (f" Designed to CSA O86:{escape(self.codes.get('o86', '2019'))[-2:]} with loads combined per "
                  f"NBC~{escape(self.codes.get('nbc', '2020'))} Part~4.")
-        clauses = (" The methods, clause numbers and tables used here follow CSA O86-14 (each data value names "
-                   "its edition); where O86:19 is known to have revised one of them, it is listed below.")
-        notes = ""
         from ..engineering.edition import revision_notes
 
         revised = revision_notes(self.design)
+        clauses = (" Methods, clause numbers and tables follow CSA O86-14 (each data value names its edition)"
+                   + ("; those O86:19 is known to have revised are listed below." if revised else "."))
+        notes = ""
         if revised:
             items = "".join(f"\\item {caption_latex(r)}\n" for r in revised)
             notes += ("\\par\\smallskip Earlier (O86-14) forms used where O86:19 revised the clause; verify them:\n"
