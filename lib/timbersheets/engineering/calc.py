@@ -113,9 +113,15 @@ class Calc:
         """The equation of `name` as symbols, for running text (no $ signs): e.g. ``E_{S} = E \\cdot …``."""
         return self.formula_lines(name).replace("&=", "=").replace("\\;", "").strip()
 
-    def latex_lines(self, values: Mapping[str, float], units: Mapping[str, str] | None = None) -> str:
-        """Like :meth:`latex`, one display block per statement."""
-        return "\n".join(self.latex(values, units=units, source=ast.unparse(s)) for s in self.statements)
+    def latex_lines(self, values: Mapping[str, float], units: Mapping[str, str] | None = None,
+                    numbers_only: bool = False) -> str:
+        """Like :meth:`latex`, one display block per statement.
+
+        With `numbers_only` an equation that handcalcs sets on several rows loses its symbolic row
+        (``K = numbers = result``): for a calc whose symbols the sheet has just shown with another
+        calc of the same form (the weak axis after the strong)."""
+        blocks = (self.latex(values, units=units, source=ast.unparse(s)) for s in self.statements)
+        return "\n".join(numbers_row(b) if numbers_only else b for b in blocks)
 
 
 _parses_remembered = False
@@ -278,6 +284,14 @@ def result_beside(tex: str) -> str:
         return f"\\\\{numbers} = {value}\n\\end{{aligned}}"
 
     return _LONG_TAIL.sub(join, tex)
+
+
+def numbers_row(tex: str) -> str:
+    """An equation block without its symbolic row when it has more than one row (``A &= sym \\ &= nums``
+    becomes ``A &= nums``); a one-row equation stays as it is."""
+    head, sep, rest = tex.partition("&=")
+    _, newline, tail = rest.partition("\\\\&=")
+    return f"{head}&={tail}" if sep and newline and tail else tex
 
 
 def printed_width(tex: str) -> int:

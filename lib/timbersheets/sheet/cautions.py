@@ -58,7 +58,7 @@ def _source(d: Datum, tabled: bool = False) -> tuple[str, str]:
     """Where to check the value: its table and data file; the file alone when the factor table names the table."""
     if tabled:
         return _file(d.file)
-    return (f"{escape(d.table)}; data file {_file(d.file)[0]}", f"{md_escape(d.table)}; data file {_file(d.file)[1]}")
+    return f"{escape(d.table)}; {_file(d.file)[0]}", f"{md_escape(d.table)}; {_file(d.file)[1]}"
 
 
 def unverified_items(used: list[Datum], described: frozenset[str] = frozenset()) -> list[tuple[str, str]]:
@@ -116,13 +116,13 @@ def unverified_items(used: list[Datum], described: frozenset[str] = frozenset())
                                   ", ".join(symbols) + (f": {q_md}" if q_md else "") + f" ({_file(file)[1]})")
     if sls_datum is not None:
         src_latex, src_md = _source(sls_datum)
-        words = "Serviceability load factor " + "; ".join(
+        words = "serviceability load factor " + "; ".join(
             f"on {load} for deflection under {' and '.join(checks)}" for load, checks in sls.items())
         items["sls"] = (f"{escape(words)} ({src_latex})", f"{md_escape(words)} ({src_md})")
     if combos:
         first = next(iter(combos.values()))
         src_latex, src_md = _source(first)
-        words = f"Load factors of combinations {', '.join(combos)} (numbered as in the load combinations table)"
+        words = f"load factors of NBC cases {', '.join(combos)}"
         items["combinations"] = (f"{escape(words)} ({src_latex})", f"{md_escape(words)} ({src_md})")
     return list(items.values())
 

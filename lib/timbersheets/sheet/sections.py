@@ -270,14 +270,14 @@ class Sheet:
             rows.append([Cell.math(symbol_latex(datum.symbol)), Cell(f"${value}$", value),
                          meaning(datum.symbol) or datum.label, where, status])
         m = self.m
+        # the factors the schedule gives are in the member table (section 1): named here in a few words
         given = (("K_H", m.K_H), ("K_T", m.K_T)) + ((("K_e", m.Ke),) if self.kind.shows("length") else ())
-        for name, value in given:
-            rows.append([Cell.math(symbol_latex(name)), Cell(f"${format_number(value)}$", format_number(value)),
-                         meaning(name), "schedule", "as given"])
+        named = [(f"${symbol_latex(n)}$ ({meaning(n)})", f"${symbol_latex(n)}$ ({meaning(n)})") for n, _ in given]
+        words = ", ".join(t for t, _ in named[:-1]) + " and " + named[-1][0]
         intro = para(f"Strengths for {escape(d.context.strengths.description) if d.context else ''} and the "
-                     "factors the checks use, each with its source. Unverified values were recorded from memory "
-                     "or secondary sources (lib/timbersheets/data/README.md) and await checking against a licensed "
-                     "copy of the standard.")
+                     "factors the checks use, each with its source; " + words + " are the schedule's "
+                     "(section 1). Unverified values were recorded from memory or secondary sources "
+                     "(lib/timbersheets/data/README.md) and await checking against a licensed copy of the standard.")
         return heading("Material and modification factors") + intro + table(
             Table(["Symbol", "Value", "Meaning", "Source", "Data status"], rows, "lrWNl"))
 
@@ -418,14 +418,12 @@ class Sheet:
                    + ("; those O86:19 is known to have revised are listed below." if revised else "."))
         notes = ""
         if revised:
-            items = "".join(f"\\item {caption_latex(r)}\n" for r in revised)
-            notes += ("\\par\\smallskip Earlier (O86-14) forms used where O86:19 revised the clause; verify them:\n"
-                      f"\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n")
+            notes += _listed(("Earlier (O86-14) form used where O86:19 revised the clause; verify it:",
+                              "Earlier (O86-14) forms used where O86:19 revised the clause; verify them:"), revised)
             md += "\n\nEarlier (O86-14) forms used where O86:19 revised the clause:\n" + "".join(
                 f"- {md_escape(r)}\n" for r in revised)
         if self.design.warnings:
-            items = "".join(f"\\item {caption_latex(w)}\n" for w in self.design.warnings)
-            notes += f"\\par\\smallskip Notes on this member:\n\\begin{{itemize}}\\small\n{items}\\end{{itemize}}\n"
+            notes += _listed(("Note on this member:", "Notes on this member:"), self.design.warnings)
             md += "\n\nNotes:\n" + "".join(f"- {md_escape(w)}\n" for w in self.design.warnings)
         return Block(f"\\begin{{cautionbox}}\n{escape(CAUTION)}{codes}{escape(clauses)}{escape(source)}\n{notes}"
                      f"{listing}\\end{{cautionbox}}\n",
@@ -453,6 +451,16 @@ class Sheet:
         from ..job.results import member_json
 
         return {RESULT_MIME: member_json(self.design), "text/plain": f"result record for {self.design.mark}"}
+
+
+def _listed(heads: tuple[str, str], items: list[str]) -> str:
+    """A caution's items under their head: one item run in after the head (a list's spacing for one line
+    is most of a line), more as a list."""
+    if len(items) == 1:
+        text = caption_latex(items[0])
+        return f"\\par\\smallskip {heads[0]} {text}{'' if text.endswith(('.', ')')) else '.'}\n"
+    body = "".join(f"\\item {caption_latex(item)}\n" for item in items)
+    return f"\\par\\smallskip {heads[1]}\n\\begin{{itemize}}\\small\n{body}\\end{{itemize}}\n"
 
 
 _SYMBOL = re.compile(r"(?<![A-Za-z0-9\\])([A-Za-z]+)_([A-Za-z0-9]+)(?![A-Za-z0-9])")

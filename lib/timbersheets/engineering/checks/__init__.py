@@ -29,6 +29,9 @@ class Step:
     #: The calc whose results these equal term by term (the weak axis of a square column braced alike
     #: about both axes): the sheet then gives each value beside its twin, on one line.
     same_as: Calc | None = None
+    #: The calc's symbolic rows are left out: the sheet has just shown the same equations (the weak
+    #: axis after the strong), so each multi-row equation is given as its numbers and result.
+    numbers_only: bool = False
 
     def latex(self) -> str:
         """One display block per equation, so a page may break between them."""
@@ -39,7 +42,7 @@ class Step:
             terms = [f"{_sym(own)} = {_sym(twin)} = "
                      f"{format_value(self.values[own], self.calc.units.get(own, ''))}" for own, twin in pairs]
             return "$$" + r",\quad ".join(terms) + "$$"
-        return self.calc.latex_lines(self.values)
+        return self.calc.latex_lines(self.values, numbers_only=self.numbers_only)
 
 
 @dataclass(frozen=True)

@@ -113,9 +113,13 @@ def compression_resistance(m: Context, K_D: float) -> tuple[float, tuple[Step, .
                               "Brace the member or choose a larger section")
         caption = ("buckling about the strong axis x (across d)" if axis == "x"
                    else "buckling about the weak axis y (across b)")
-        same = axis == "y" and s.b == s.d and m.L_y == m.L_x and steps[-1].calc is axes[0][0]
-        steps.append(Step(calc_, values, caption + (": b = d and L_y = L_x, so every value is that about x"
-                                                     if same else ""), same_as=axes[0][0] if same else None))
+        after_x = axis == "y" and steps[-1].calc is axes[0][0]
+        same = after_x and s.b == s.d and m.L_y == m.L_x
+        if same:
+            caption += ": b = d and L_y = L_x, so every value is that about x"
+        elif after_x:
+            caption += ": the equations about x with b and L_y, in numbers"
+        steps.append(Step(calc_, values, caption, same_as=axes[0][0] if same else None, numbers_only=after_x))
     resistances = [st.values.get("P_rx", st.values.get("P_ry")) for st in steps]
     if not any(r is not None for r in resistances):
         raise DesignError(m.mark, "is braced about both axes (Lx = Ly = 0); give the unbraced length of at least one")
