@@ -148,3 +148,20 @@ def test_the_diagram_axes_sit_where_tight_layout_puts_them(length, w):
     for ours, theirs in zip(mine, tight):
         for a, b, size in zip(ours, theirs, (width, height, width, height)):
             assert abs(a - b) * size <= 1.0, (mine, tight)
+
+
+def test_weak_axis_after_the_strong_gives_numbers_and_results_only():
+    # O86-14 7.5.6.5 (memory, unverified): K_C has the same form about both axes, with b and L_y about y;
+    # shown in symbols about x, the y equations need only their numbers (common practice in hand calcs).
+    from timbersheets.engineering.checks.compression import sawn_compression_y
+
+    values = sawn_compression_y(F_c=9.9, K_T=1.0, K_e=1.0, L_y=3000.0, b=140.0, E_05=5000.0, K_SE=1.0,
+                                phi=0.8, A=140.0 * 191.0)
+    full = sawn_compression_y.latex_lines(values)
+    numbers = Step(sawn_compression_y, values, numbers_only=True).latex()
+    assert "35 \\cdot E_{05}" in full and "35 \\cdot E_{05}" not in numbers  # the symbolic row is gone
+    assert "35 \\cdot 5000" in numbers  # its numbers stay
+    for name in ("C_{cy}", "K_{Zcy}", "K_{Cy}", "P_{ry}"):  # every variable still computed on the page
+        assert f"{name} &=" in numbers
+    # C_cy = 1.0 · 3000 / 140 = 21.4 (hand arithmetic): a one-row equation keeps its symbols
+    assert "\\frac{ L_{y} }{ b }" in numbers and "21.4" in numbers
