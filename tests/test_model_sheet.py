@@ -49,7 +49,9 @@ def test_simple_span_sheet_gives_the_reactions_a_carrier_takes(tmp_path, data):
     sheet = sheet_for(tmp_path, data, "RB-1")
     forces = sheet.combinations_section().latex
     # the closed forms are the design's own Calcs, rendered as symbols: M_f = w_f L²/8, Q_f = w_f L/2
-    assert r"M_{f} &= w_{f} \cdot \frac{ \left( L \right) ^{ 2 } }{ 8 }" in forces
-    assert r"Q_{f} &= w_{f} \cdot \frac{ L }{ 2 }" in forces
+    # (in the text: each check then works its force out with numbers)
+    assert r"$M_{f} = w_{f} \cdot \frac{ \left( L \right) ^{ 2 } }{ 8 }$" in forces
+    assert r"$Q_{f} = w_{f} \cdot \frac{ L }{ 2 }$" in forces
+    assert r"M_{f} &= w_{f} \cdot \frac{ \left( L \right) ^{ 2 } }{ 8 }" in sheet.checks_section().latex
     assert "for $w_f$: D 3.6, S 9.0 kN" in forces
     assert "R1 = R2 = w L / 2 by load type: D 3.6, S 9.0 kN" in sheet.combinations_section().markdown

@@ -7,8 +7,8 @@ analysis functions the design used.
 
 from __future__ import annotations
 
-from ..engineering.analysis import (combination_label, loading_mode, member_forces, service_cases, sls_combinations, sls_deflection,
-                       span_diagram, udl_reaction)
+from ..engineering.analysis import (combination_label, loading_mode, member_forces, service_cases, sls_combinations,
+                                    sls_deflection, span_diagram, udl_moment, udl_reaction, udl_shear)
 from ..engineering.beamdesign import is_model, reactions_by_type
 from ..engineering.calc import format_metres, format_number, format_value
 from ..engineering.checks.bending import bottom_edge_words
@@ -124,17 +124,22 @@ def forces_block(design) -> Block:
         return out + para("Moments and shears from the frame model, combined by the factors of each combination "
                           "(the table above) and used as given; the reaction at a support is taken as the shear.")
     forces = [member_forces(m, ctx.section.d, case, "line") for case in design.cases]
-    out += para(f"Simply supported span $L = {format_value(m.length, 'mm')}$ under the uniform factored load "
-                "$w_f$: the moment $M_f$ at midspan, the shear $V_f$ and the reaction $Q_f$ at the supports, and "
-                "the shear $V_{fd}$ at distance $d$ from the end of the span, the one the check uses (on the safe "
-                "side of measuring $d$ from the face of the support):",
-                "Simply supported span under the uniform factored load w_f: M_f at midspan, V_f and Q_f at the "
+    span = f"Simply supported span $L = {format_value(m.length, 'mm')}$ under the uniform factored load $w_f$"
+    words_md = ("Simply supported span under the uniform factored load w_f: M_f at midspan, V_f and Q_f at the "
                 "supports, V_fd at d from the end of the span.")
-    out += force_equations(forces[0]) if forces else Block("", "")
     if {"bending", "shear"} <= set(shared_table_checks(checks_by_name(design))):
-        out += para("Each combination's $w_f$ is in the table above; its moment, the shear each check uses and "
-                    "the reaction are in the table that ends section 5.")
+        # each check works its force out with numbers (section 5): the equations here in the text, not displayed
+        out += para(f"{span}: the moment ${udl_moment.inline('M_f')}$ at midspan; the shear "
+                    f"${udl_shear.inline('V_f')}$ and the reaction ${udl_reaction.inline('Q_f')}$ at the supports; "
+                    f"the shear ${udl_shear.inline('V_fd')}$ at distance $d$ from the end of the span, the one the "
+                    "check uses (on the safe side of measuring $d$ from the face of the support). Each "
+                    "combination's $w_f$ is in the table above; each check works its force out for its governing "
+                    "combination, and the table that ends section 5 gives them for every combination.", words_md)
     else:
+        out += para(f"{span}: the moment $M_f$ at midspan, the shear $V_f$ and the reaction $Q_f$ at the "
+                    "supports, and the shear $V_{fd}$ at distance $d$ from the end of the span, the one the check "
+                    "uses (on the safe side of measuring $d$ from the face of the support):", words_md)
+        out += force_equations(forces[0]) if forces else Block("", "")
         header = ["Combination", Cell.math("w_f"), Cell.math("M_f"), Cell.math("V_f"), Cell.math("V_{fd}"),
                   Cell.math("Q_f")]
         units = ["", "kN/m", "kN·m", "kN", "kN", "kN"]
@@ -181,10 +186,16 @@ def serviceability_block(design, data) -> Block:
     if not cases:
         return out + para("Deflection is not checked: the member carries no dead, live or snow load, and wind and "
                           "earthquake are not included in the serviceability combinations.")
+    def carries(*types: str) -> bool:
+        return any(m.values.get(f"{kind}_{t}") for t in types for kind in ("w", "M", "V"))
+
     intro = (f"Deflection under specified (unfactored) loads, with ${sls_deflection.inline('E_S')}$ and no $K_D$: "
-             f"{sls_words(data)}. Snow is taken at its full specified value, the roof's live load: a conservative "
-             "choice against the NBC 2020 SLS companion factors, recorded as unverified. Wind and earthquake are "
-             "not gravity loads on the span and are left out.")
+             f"{sls_words(data)}.")
+    if carries("S"):  # said only where it applies: a sheet without snow has no choice to explain
+        intro += (" Snow is taken at its full specified value, the roof's live load: a conservative choice against "
+                  "the NBC 2020 SLS companion factors, recorded as unverified.")
+    if carries("W", "E"):
+        intro += " Wind and earthquake are not gravity loads on the span and are left out."
     if mode == "forces":
         intro += " The strength checks use the frame model's forces; the line loads serve deflection only."
     rows = []

@@ -65,12 +65,12 @@ def unverified_items(used: list[Datum], described: frozenset[str] = frozenset())
     """(LaTeX, Markdown) per unverified value used; the load combinations together in one item, and the
     serviceability load factors in one.
 
-    A symbol in `described` (the sheet's factor table gives its meaning and table) is named without
-    them again: its case and data file, and symbols of one case from one file share an item
-    (K_Sb, K_Sv, K_SE: sawn small dry service)."""
+    A symbol in `described` (the sheet's factor table gives its meaning, value and table) is named by
+    its data file only, symbols of one file in one item (K_Sb, K_Sv, K_SE (service_factors.csv)): the
+    row it was read from is the member's own case (species, grade, size, service, support), which the
+    member table states."""
     items: dict[object, tuple[str, str]] = {}
-    shared: dict[tuple[str, str], list[str]] = {}  # (case, file) → symbols, for those the factor table gives
-    case_md: dict[str, str] = {}
+    shared: dict[str, list[str]] = {}  # file → symbols, for those the factor table gives
     sls: dict[str, list[str]] = {}  # load → checks
     sls_datum: Datum | None = None
     combos: dict[str, Datum] = {}
@@ -92,13 +92,11 @@ def unverified_items(used: list[Datum], described: frozenset[str] = frozenset())
         sym = f"${symbol_latex(symbol)}$"
         q_latex, q_md = _text(_qualifier(d.label, symbol))
         if symbol in described and not q_latex.startswith("="):
-            key = (q_latex, d.file)
-            if key not in shared:
-                shared[key] = []
-                items[key] = ("", "")
-            if sym not in shared[key]:
-                shared[key].append(sym)
-            case_md[q_latex] = q_md
+            if d.file not in shared:
+                shared[d.file] = []
+                items[("file", d.file)] = ("", "")  # its place in the list
+            if sym not in shared[d.file]:
+                shared[d.file].append(sym)
             continue
         src_latex, src_md = _source(d, symbol in described)
         what = "" if symbol in described else meaning(symbol)
@@ -110,14 +108,13 @@ def unverified_items(used: list[Datum], described: frozenset[str] = frozenset())
         head_latex = sym + (f", {escape(what)}" if what else "") + (f": {q_latex}" if q_latex else "")
         head_md = sym + (f", {md_escape(what)}" if what else "") + (f": {q_md}" if q_md else "")
         items[d.warning] = (f"{head_latex} ({src_latex})", f"{head_md} ({src_md})")
-    for (q_latex, file), symbols in shared.items():
-        q_md = case_md[q_latex]
-        items[(q_latex, file)] = (", ".join(symbols) + (f": {q_latex}" if q_latex else "") + f" ({_file(file)[0]})",
-                                  ", ".join(symbols) + (f": {q_md}" if q_md else "") + f" ({_file(file)[1]})")
+    for file, symbols in shared.items():
+        items[("file", file)] = (", ".join(symbols) + f" ({_file(file)[0]})", ", ".join(symbols) + f" ({_file(file)[1]})")
     if sls_datum is not None:
         src_latex, src_md = _source(sls_datum)
-        words = "serviceability load factor " + "; ".join(
-            f"on {load} for deflection under {' and '.join(checks)}" for load, checks in sls.items())
+        words = "SLS load factor " + "; ".join(
+            f"on {load} (deflection under {' and '.join(c.removesuffix(' load') for c in checks)} load)"
+            for load, checks in sls.items())
         items["sls"] = (f"{escape(words)} ({src_latex})", f"{md_escape(words)} ({src_md})")
     if combos:
         first = next(iter(combos.values()))
@@ -128,7 +125,7 @@ def unverified_items(used: list[Datum], described: frozenset[str] = frozenset())
 
 
 #: The head of the sheet's list; every value in it was recorded from memory.
-LISTING_HEAD = "Data values used here that are not yet verified against the standard (memory, unverified): "
+LISTING_HEAD = "Values used here that are not yet verified against the standard (recorded from memory): "
 
 
 def unverified_listing(used: list[Datum], described: frozenset[str] = frozenset()) -> tuple[str, str]:
@@ -144,5 +141,6 @@ def unverified_listing(used: list[Datum], described: frozenset[str] = frozenset(
     # "NBC 2020", "Table 7.3", "O86-14" kept on one line: a run-in line never starts with a bare number
     latex = re.sub(r"\b(NBC|Table|Cl\.) (?=\d)", r"\1~", "; ".join(item for item, _ in entries))
     latex = re.sub(r"\b([A-Z]+\d+-\d+)\b", r"\\mbox{\1}", latex)
-    return (f"\\par\\smallskip {escape(LISTING_HEAD)}{latex}.\n",
+    # ragged right: file names do not hyphenate, and a justified line would open wide gaps before them
+    return (f"\\par\\smallskip {{\\raggedright {escape(LISTING_HEAD)}{latex}.\\par}}\n",
             "\n\n" + md_escape(LISTING_HEAD) + "\n" + "".join(f"- {text}\n" for _, text in entries))

@@ -335,14 +335,24 @@ class Sheet:
                        "Positive moment (top edge in compression)") + ", shown in full for the combination that "
                       "governs it" if len(shown) > 1 else "Shown in full for the governing combination")
             at = f" at {escape(result.where)}" if result.where else ""
-            listed = "listed after" if tabled else "in the table that ends section 5"
-            out += para(f"{branch} {escape(result.combination)}{at} ({kd}); every combination is {listed}.")
-            for step in result.steps:
-                if step.caption:
-                    out += para(f"\\emph{{{caption_latex(step.caption)}}}", f"*{md_escape(step.caption)}*")
+            alone = tabled and len(all_cases) == 1  # a one-row table would repeat the lines above it
+            if alone:
+                branch = "Shown in full for its one combination"
+            listed = "" if alone else "; every combination is " + (
+                "listed after" if tabled else "in the table that ends section 5")
+            intro = f"{branch} {escape(result.combination)}{at} ({kd}){listed}."
+            for k, step in enumerate(result.steps):
+                caption = (f"\\emph{{{caption_latex(step.caption)}}}", f"*{md_escape(step.caption)}*") \
+                    if step.caption else ("", "")
+                if k == 0:  # the first caption runs on after the intro: one paragraph, not two short ones
+                    out += para(f"{intro} {caption[0]}".strip(), f"{intro}\n\n{caption[1]}".strip())
+                elif step.caption:
+                    out += para(*caption)
                 out += math_block(step.latex())
+            if not result.steps:
+                out += para(intro)
             out += math_block(self._utilization_latex(result))
-        if not tabled:
+        if not tabled or len(all_cases) == 1:
             return out
         unit = gov.unit
         header = ["Combination", Cell.math("K_D"), Cell.math(gov.demand_symbol_latex),
