@@ -55,8 +55,8 @@ def worked_on_sheet(text: str, check: dict) -> bool:
     """Whether a check made under one combination only (no table: it would repeat the lines above it)
     is worked for that combination, its ratio printed with the demand and resistance around it."""
     words = " ".join(text.split())
-    if f"its one combination {check['combination']} " not in words:
-        return False
+    if f"its one combination {check['combination']} " not in words and f"load {check['combination']}: " not in words:
+        return False  # neither the intro nor a deflection's load names the combination
     lines = text.splitlines()
     relation = "≤" if check["utilization"] <= 1.0 else ">"
     for i, line in enumerate(lines):

@@ -114,13 +114,14 @@ class Calc:
         return self.formula_lines(name).replace("&=", "=").replace("\\;", "").strip()
 
     def latex_lines(self, values: Mapping[str, float], units: Mapping[str, str] | None = None,
-                    numbers_only: bool = False) -> str:
-        """Like :meth:`latex`, one display block per statement.
+                    numbers_only: bool = False, names: tuple[str, ...] = ()) -> str:
+        """Like :meth:`latex`, one display block per statement (those assigning `names`, when given).
 
         With `numbers_only` an equation that handcalcs sets on several rows loses its symbolic row
         (``K = numbers = result``): for a calc whose symbols the sheet has just shown with another
         calc of the same form (the weak axis after the strong)."""
-        blocks = (self.latex(values, units=units, source=ast.unparse(s)) for s in self.statements)
+        chosen = [s for s in self.statements if not names or s.targets[0].id in names]  # type: ignore[union-attr]
+        blocks = (self.latex(values, units=units, source=ast.unparse(s)) for s in chosen)
         return "\n".join(numbers_row(b) if numbers_only else b for b in blocks)
 
 

@@ -292,7 +292,14 @@ class Sheet:
         governing = d.governing_by_check()
         cases = checks_by_name(d)
         shared = shared_table_checks(cases)
+        pair = [cases.get(n, []) for n in ("deflection-live", "deflection-total")]
+        together = all(len(p) == 1 and not p[0].where for p in pair) and \
+            pair[0][0].steps[0].values["E_S"] == pair[1][0].steps[0].values["E_S"]
         for name, gov in governing.items():
+            if together and name.startswith("deflection"):
+                if name == "deflection-live":
+                    out += self._deflection_block(pair[0][0], pair[1][0])
+                continue
             out += self._check_block(name, gov, cases[name], tabled=name not in shared)
         if shared:
             # the heading keeps with the table's header and first rows (a breaking table starts on a new
@@ -369,6 +376,21 @@ class Sheet:
                 row.insert(1, c.where)
             return out + table(Table(header, rows, "lXrrrr", units))
         return out + table(Table(header, rows, "lrrrr", units))
+
+    def _deflection_block(self, live: CheckResult, total: CheckResult) -> Block:
+        """Both deflection checks, each made under its one SLS combination, under one heading: the stiffness
+        E_S they share worked once, then each deflection against its limit."""
+        out = heading(f"Deflection under live and total load ({live.clause})", 2)
+        out += para("Each shown in full for its one combination (specified loads; $K_D$ does not apply to "
+                    "stiffness), with the stiffness both use:")
+        for k, result in enumerate((live, total)):
+            step = result.steps[0]
+            if k == 0:
+                out += math_block(step.calc.latex_lines(step.values, names=("E_S",)))
+            out += para(f"\\emph{{{caption_latex(step.caption)}}}", f"*{md_escape(step.caption)}*")
+            out += math_block(step.calc.latex_lines(step.values, names=("Delta", "Delta_lim")))
+            out += math_block(self._utilization_latex(result))
+        return out
 
     @staticmethod
     def _utilization_latex(c: CheckResult) -> str:
