@@ -62,7 +62,7 @@ def test_cautions_name_combinations_as_the_combination_table_numbers_them(demo_m
     sheet = sheet_of(demo_members["G-1"])
     table = sheet.combinations_section().latex
     caution = sheet.cautions().latex
-    listed = re.search(r"NBC cases ([0-9a-z, ]+) \(NBC", caution)
+    listed = re.search(r"NBC cases ([0-9a-z, ]+) \(", caution)
     assert listed, caution
     numbers = listed.group(1).split(", ")
     body = table[table.index("\\midrule"):table.index("\\bottomrule")]  # the first table

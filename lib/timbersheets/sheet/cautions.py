@@ -12,7 +12,7 @@ from __future__ import annotations
 import re
 
 from ..engineering.data import Datum
-from .symbols import ACTION_WORDS, meaning, symbol_latex
+from .symbols import meaning, symbol_latex
 from .tex import escape, md_escape
 
 #: Data-file names that appear in labels, in words.
@@ -71,7 +71,7 @@ def unverified_items(used: list[Datum], described: frozenset[str] = frozenset())
     member table states."""
     items: dict[object, tuple[str, str]] = {}
     shared: dict[str, list[str]] = {}  # file → symbols, for those the factor table gives
-    sls: dict[str, list[str]] = {}  # load → checks
+    sls: dict[str, None] = {}  # the loads whose SLS factors are used, in order
     sls_datum: Datum | None = None
     combos: dict[str, Datum] = {}
     seen: set[str] = set()
@@ -83,8 +83,7 @@ def unverified_items(used: list[Datum], described: frozenset[str] = frozenset())
             combos.setdefault(d.label.split(" ", 2)[2], d)
             continue
         if d.label.startswith("SLS combination "):
-            check, load = d.label.split(" ")[2:4]
-            sls.setdefault(load, []).append(ACTION_WORDS.get(check, check).lower().removeprefix("deflection under "))
+            sls[d.label.split(" ")[3]] = None
             sls_datum = sls_datum or d
             items.setdefault("sls", ("", ""))  # its place in the list
             continue
@@ -110,15 +109,15 @@ def unverified_items(used: list[Datum], described: frozenset[str] = frozenset())
         items[d.warning] = (f"{head_latex} ({src_latex})", f"{head_md} ({src_md})")
     for file, symbols in shared.items():
         items[("file", file)] = (", ".join(symbols) + f" ({_file(file)[0]})", ", ".join(symbols) + f" ({_file(file)[1]})")
+    # the combination tables of sections 3 and 3.2 name their NBC table and mark the unverified rows:
+    # the list names the data file
     if sls_datum is not None:
-        src_latex, src_md = _source(sls_datum)
-        words = "SLS load factor " + "; ".join(
-            f"on {load} (deflection under {' and '.join(c.removesuffix(' load') for c in checks)} load)"
-            for load, checks in sls.items())
+        src_latex, src_md = _source(sls_datum, tabled=True)
+        words = f"SLS load factor{'s' if len(sls) > 1 else ''} on {', '.join(sls)}"
         items["sls"] = (f"{escape(words)} ({src_latex})", f"{md_escape(words)} ({src_md})")
     if combos:
         first = next(iter(combos.values()))
-        src_latex, src_md = _source(first)
+        src_latex, src_md = _source(first, tabled=True)
         words = f"load factors of NBC cases {', '.join(combos)}"
         items["combinations"] = (f"{escape(words)} ({src_latex})", f"{md_escape(words)} ({src_md})")
     return list(items.values())
