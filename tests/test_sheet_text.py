@@ -152,3 +152,13 @@ def test_a_column_is_not_said_to_be_held_against_rotation_at_bearings(demo_membe
     for mark in ("S-2", "C-4", "TC-1"):
         assert "rotation at the bearings" not in sheet_of(demo_members[mark]).member_section().latex
     assert "against rotation at the bearings" in sheet_of(demo_members["J-1"]).member_section().latex
+
+
+def test_a_caption_keeps_with_the_equations_it_introduces(demo_members):
+    # common practice: a caption at the foot of a page whose equations start the next reads as a caption
+    # of nothing; every caption paragraph of section 5 forbids the break before its equations
+    checks = sheet_of(demo_members["RB-1"]).checks_section().latex
+    captions = re.findall(r"\\emph\{[^\n]*\n", checks)
+    assert len(captions) >= 8, captions
+    for line in captions:
+        assert line.rstrip().endswith("\\par\\nopagebreak"), line

@@ -40,6 +40,12 @@ def table(t: Table) -> Block:
     return Block(t.latex(), t.markdown())
 
 
+def caption_para(text_latex: str, text_md: str | None = None) -> Block:
+    """A paragraph that introduces the equations after it: no page break between them (a caption at the
+    foot of a page, its equations on the next, reads as a caption of nothing)."""
+    return Block(text_latex + "\\par\\nopagebreak\n\n", (text_md if text_md is not None else text_latex) + "\n\n")
+
+
 def math_block(latex: str) -> Block:
     return Block(latex + "\n", latex + "\n")
 

@@ -34,7 +34,8 @@ _WRAP = {"emph": "em", "textit": "em", "textbf": "strong", "texttt": "code", "te
 #: Layout commands that carry nothing a browser needs.
 _SILENT = {"par", "noindent", "raggedright", "raggedleft", "centering", "arraybackslash", "smallskip", "medskip",
            "bigskip", "footnotesize", "small", "normalsize", "scriptsize", "tiny", "large", "Large", "LARGE",
-           "huge", "toprule", "midrule", "bottomrule", "hline", "linewidth", "boldmath", "itshape", "bfseries"}
+           "huge", "toprule", "midrule", "bottomrule", "hline", "linewidth", "boldmath", "itshape", "bfseries",
+           "nopagebreak"}
 _BREAK = "\x00par\x00"
 
 

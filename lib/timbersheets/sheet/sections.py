@@ -22,7 +22,7 @@ from ..engineering.membertypes import MemberType, member_type
 from ..engineering.sizing import design_sized
 from ..engineering.units import to_display
 from ..schedule.read import Member
-from .blocks import Block, heading, math_block, para, q, table
+from .blocks import Block, caption_para, heading, math_block, para, q, table
 from .symbols import ACTION_WORDS, meaning, symbol_latex, symbol_unit
 from .tabled import SHARED_TABLE_CHECKS, checks_by_name, serviceability, shared_table_checks
 from .tex import Cell, Table, escape, md_escape
@@ -352,9 +352,9 @@ class Sheet:
                 caption = (f"\\emph{{{caption_latex(step.caption)}}}", f"*{md_escape(step.caption)}*") \
                     if step.caption else ("", "")
                 if k == 0:  # the first caption runs on after the intro: one paragraph, not two short ones
-                    out += para(f"{intro} {caption[0]}".strip(), f"{intro}\n\n{caption[1]}".strip())
+                    out += caption_para(f"{intro} {caption[0]}".strip(), f"{intro}\n\n{caption[1]}".strip())
                 elif step.caption:
-                    out += para(*caption)
+                    out += caption_para(*caption)
                 out += math_block(step.latex())
             if not result.steps:
                 out += para(intro)
@@ -381,13 +381,13 @@ class Sheet:
         """Both deflection checks, each made under its one SLS combination, under one heading: the stiffness
         E_S they share worked once, then each deflection against its limit."""
         out = heading(f"Deflection under live and total load ({live.clause})", 2)
-        out += para("Each shown in full for its one combination (specified loads; $K_D$ does not apply to "
-                    "stiffness), with the stiffness both use:")
+        out += caption_para("Each shown in full for its one combination (specified loads; $K_D$ does not apply "
+                            "to stiffness), with the stiffness both use:")
         for k, result in enumerate((live, total)):
             step = result.steps[0]
             if k == 0:
                 out += math_block(step.calc.latex_lines(step.values, names=("E_S",)))
-            out += para(f"\\emph{{{caption_latex(step.caption)}}}", f"*{md_escape(step.caption)}*")
+            out += caption_para(f"\\emph{{{caption_latex(step.caption)}}}", f"*{md_escape(step.caption)}*")
             out += math_block(step.calc.latex_lines(step.values, names=("Delta", "Delta_lim")))
             out += math_block(self._utilization_latex(result))
         return out
