@@ -9,6 +9,7 @@ its checker, and numbers itself n of N).
 
 from __future__ import annotations
 
+import json
 import re
 import shutil
 import subprocess
@@ -204,6 +205,11 @@ def test_a_notebook_that_fails_leaves_the_other_sheets_standing_on_two_workers(t
     assert sorted(report.executed) == sorted(marks)
     failed = next(d for d in report.designs if d.mark == "ERR-1")
     assert any("RuntimeError: stopped here" in e for e in failed.errors)
+    # results.json is made before the sheets (the package's forecast): a failed sheet remakes it
+    results = {m["mark"]: m for m in json.loads((report.outdir / "results.json").read_text())["members"]}
+    assert results["ERR-1"]["status"] == "error" and results["ERR-1"]["utilization"] is None
+    assert any("RuntimeError: stopped here" in e for e in results["ERR-1"]["errors"])
+    assert results["OK-1"]["status"] != "error"
     kept = nbformat.read(report.outdir / "notebooks" / "ERR-1.ipynb", 4)
     assert any(o.get("output_type") == "error" for c in kept.cells if c.cell_type == "code" for o in c.outputs)
     for mark in ("OK-1", "OK-2", "OK-3"):

@@ -70,6 +70,40 @@ def test_batches_share_the_heavy_sheets_and_keep_schedule_order():
         assert [tasks.index(t) for t in batch] == sorted(tasks.index(t) for t in batch)
 
 
+def test_a_cached_notebooks_record_is_read_once_then_kept_beside_it(tmp_path):
+    """The result record a cached notebook displayed is parsed from the notebook once (a few hundred
+    kB of JSON a member, on every rerun), then read from the small record file kept beside it; a
+    forced rerun reads the notebook again."""
+    import dataclasses
+    import json
+
+    from timbersheets.build.notebooks import templates_dir
+    from timbersheets.build.sheetjobs import SheetOutcome, SheetTask, _take_notebook
+    from timbersheets.constants import RESULT_MIME
+
+    def notebook(status: str) -> str:
+        return json.dumps({"cells": [{"cell_type": "code", "outputs": [
+            {"output_type": "display_data", "data": {RESULT_MIME: {"mark": "T-1", "status": status}}}]}]})
+
+    cache = tmp_path / "cache"
+    cache.mkdir()
+    task = SheetTask("T-1", templates_dir() / "axial.ipynb", {"mark": "T-1"}, {}, "", cache, tmp_path / "rev" / "T-1.ipynb", None)
+    task.cached_notebook.write_text(notebook("pass"))
+    first = SheetOutcome("T-1")
+    _take_notebook(task, first)
+    assert first.record == {"mark": "T-1", "status": "pass"} and first.error is None
+    assert json.loads(task.notebook.read_text()) == json.loads(notebook("pass"))
+    # the record file, not the notebook, answers the next time
+    task.cached_notebook.write_text(notebook("fail"))
+    again = SheetOutcome("T-1")
+    _take_notebook(task, again)
+    assert again.record["status"] == "pass"
+    forced = dataclasses.replace(task, force=True)
+    rerun = SheetOutcome("T-1")
+    _take_notebook(forced, rerun)
+    assert rerun.record["status"] == "fail"
+
+
 
 def test_the_unit_registry_reads_pints_cache_and_survives_a_damaged_one(tmp_path):
     """pint's parsed definitions are kept in a cache folder (0.18 s a process to 0.02 s); a cache

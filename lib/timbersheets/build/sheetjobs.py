@@ -146,9 +146,22 @@ def _needs_work(task: SheetTask) -> bool:
     return task.sheet is not None and not task.cached_sheet.exists() and not task.cached_body.exists()
 
 
+def _record_file(notebook: Path) -> Path:
+    return notebook.with_name(notebook.name + ".record")
+
+
 def _take_notebook(task: SheetTask, outcome: SheetOutcome) -> None:
+    """The cached notebook into the revision, with its result record: read once from the notebook
+    (a few hundred kB of JSON), then from the small record file kept beside it in the cache."""
     copy_atomic(task.cached_notebook, task.notebook)
+    kept = _record_file(task.cached_notebook)
+    if kept.exists() and not task.force:
+        saved = json.loads(kept.read_text(encoding="utf-8"))
+        outcome.record, outcome.error = saved["record"], saved["error"]
+        return
     outcome.record, outcome.error = read_record(task.notebook)
+    if not outcome.error:
+        write_atomic(kept, json.dumps({"record": outcome.record, "error": outcome.error}))
 
 
 def run_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, float]]:
@@ -172,6 +185,7 @@ def run_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, flo
             continue
         if outcome.error:
             task.cached_notebook.unlink(missing_ok=True)  # never serve a failed run from the cache
+            _record_file(task.cached_notebook).unlink(missing_ok=True)
     times["execute"] = time.monotonic() - started
     ready = [t for t in tasks if t.notebook.exists() and t.sheet is not None]
     if ready and ready[0].fmt == "html":

@@ -148,20 +148,20 @@ def sheet_tasks(project: Project, designs: list[MemberDesign], data: DataSet, ou
     return tasks
 
 
-def cross_check(design: MemberDesign, outcome: SheetOutcome) -> None:
-    """The sheet's own result record must equal the run's: else the member is an error."""
+def cross_check(design: MemberDesign, outcome: SheetOutcome, mine: dict | None = None) -> None:
+    """The sheet's own result record must equal the run's (`mine`: the member's results.json entry,
+    made here when not given): else the member is an error."""
     if outcome.error:
         design.errors.append(f"sheet: {outcome.error}")
         return
-    mine = member_json(design)
+    mine = mine if mine is not None else member_json(design)
     theirs = outcome.record or {}
     keys = ("status", "utilization", "governing", "checks")
     if any(mine.get(k) != theirs.get(k) for k in keys):
         design.errors.append("sheet: the notebook's result differs from the run's own calculation")
 
 
-def _front_ahead(project: Project, designs: list[MemberDesign], data: DataSet, warnings: list[str],
-                 extra: dict[str, dict], previous: dict | None, prev_label: str | None, tasks: list[SheetTask],
+def _front_ahead(project: Project, doc: dict, changes: list, data: DataSet, tasks: list[SheetTask],
                  earlier: list[Path], stage: Path, cache: Path, title: str, chart):
     """Start typesetting the package's front matter in a thread, from a forecast of this run
     (build.package.front_ahead): the results as designed, and each sheet's page count as the cache
@@ -180,10 +180,6 @@ def _front_ahead(project: Project, designs: list[MemberDesign], data: DataSet, w
             (page_count(f / "sheets" / f"{t.mark}.pdf") for f in earlier if (f / "sheets" / f"{t.mark}.pdf").exists()), 0)
         if not pages[t.mark]:
             return None
-    doc = results_doc(project.name, project.revision, project.codes, designs, data.manifest(), data.hash,
-                      warnings, extra)
-    doc["previous_revision"] = prev_label
-    changes = diff(previous, doc) if previous else []
     members = doc["members"]
 
     def forecast() -> None:
@@ -301,7 +297,12 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         title = f"{project.fields['title']} rev {project.revision}: governing utilization"
         cache = (jobdir / ".cache").absolute()  # the threads below run while papermill changes the folder
         chart = draw_ahead(chart_rows(designs), title, cache) if tasks and opts.sheets else None
-        front = (_front_ahead(project, designs, data, warnings, extra, previous, prev_label, every,
+        # results.json as designed: the front matter's forecast, and the final one unless a sheet disagrees
+        doc = results_doc(project.name, project.revision, project.codes, designs, data.manifest(), data.hash,
+                          warnings, extra)
+        doc["previous_revision"] = prev_label
+        changes = diff(previous, doc) if previous else []
+        front = (_front_ahead(project, doc, changes, data, every,
                               [final, *([jobdir / f"rev-{prev_label}"] if prev_label else [])], stage,
                               cache, title, chart)
                  if tasks and opts.sheets and opts.fmt == "pdf" and not opts.only else None)
@@ -309,14 +310,16 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
             mark = time.monotonic()
             report.sheets = run_sheets(tasks, opts.jobs, opts.progress, work)
             phases["sheets"] = time.monotonic() - mark
-            for d in designs:
+            before = sum(len(d.errors) for d in designs)
+            for d, mine in zip(designs, doc["members"]):
                 if d.mark in report.sheets:
-                    cross_check(d, report.sheets[d.mark])
-        doc = results_doc(project.name, project.revision, project.codes, designs, data.manifest(), data.hash,
-                          warnings, extra)
-        doc["run_at"] = dt.datetime.now().isoformat(timespec="seconds")
-        doc["previous_revision"] = prev_label
-        changes = diff(previous, doc) if previous else []
+                    cross_check(d, report.sheets[d.mark], mine)
+            if sum(len(d.errors) for d in designs) != before:  # a sheet failed or disagreed: that member is an error
+                doc = results_doc(project.name, project.revision, project.codes, designs, data.manifest(),
+                                  data.hash, warnings, extra)
+                doc["previous_revision"] = prev_label
+                changes = diff(previous, doc) if previous else []
+        doc = {**doc, "run_at": dt.datetime.now().isoformat(timespec="seconds")}  # the forecast's thread reads its own
         carried = Carried()
         carry_sheets(every, final, stage, carried)
         key = package_key(doc, every)
