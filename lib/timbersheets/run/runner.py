@@ -297,11 +297,15 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         title = f"{project.fields['title']} rev {project.revision}: governing utilization"
         cache = (jobdir / ".cache").absolute()  # the threads below run while papermill changes the folder
         chart = draw_ahead(chart_rows(designs), title, cache) if tasks and opts.sheets else None
+
+        def results_now() -> tuple[dict, list]:
+            doc = results_doc(project.name, project.revision, project.codes, designs, data.manifest(), data.hash,
+                              warnings, extra)
+            doc["previous_revision"] = prev_label
+            return doc, diff(previous, doc) if previous else []
+
         # results.json as designed: the front matter's forecast, and the final one unless a sheet disagrees
-        doc = results_doc(project.name, project.revision, project.codes, designs, data.manifest(), data.hash,
-                          warnings, extra)
-        doc["previous_revision"] = prev_label
-        changes = diff(previous, doc) if previous else []
+        doc, changes = results_now()
         front = (_front_ahead(project, doc, changes, data, every,
                               [final, *([jobdir / f"rev-{prev_label}"] if prev_label else [])], stage,
                               cache, title, chart)
@@ -315,10 +319,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                 if d.mark in report.sheets:
                     cross_check(d, report.sheets[d.mark], mine)
             if sum(len(d.errors) for d in designs) != before:  # a sheet failed or disagreed: that member is an error
-                doc = results_doc(project.name, project.revision, project.codes, designs, data.manifest(),
-                                  data.hash, warnings, extra)
-                doc["previous_revision"] = prev_label
-                changes = diff(previous, doc) if previous else []
+                doc, changes = results_now()
         doc = {**doc, "run_at": dt.datetime.now().isoformat(timespec="seconds")}  # the forecast's thread reads its own
         carried = Carried()
         carry_sheets(every, final, stage, carried)
