@@ -151,11 +151,11 @@ def _record_file(notebook: Path) -> Path:
 
 
 def _take_notebook(task: SheetTask, outcome: SheetOutcome) -> None:
-    """The cached notebook into the revision, with its result record: read once from the notebook
-    (a few hundred kB of JSON), then from the small record file kept beside it in the cache."""
+    """The cached notebook into the revision, with its result record: read from the notebook when it
+    was just executed (a few hundred kB of JSON), else from the small record file kept beside it."""
     copy_atomic(task.cached_notebook, task.notebook)
     kept = _record_file(task.cached_notebook)
-    if kept.exists() and not task.force:
+    if kept.exists() and not outcome.executed:
         saved = json.loads(kept.read_text(encoding="utf-8"))
         outcome.record, outcome.error = saved["record"], saved["error"]
         return

@@ -28,7 +28,7 @@ from ..fileio import copy_atomic, remove_stale_parts, write_atomic
 from ..fileio import write_csv
 from ..job.load import load_job
 from ..job.project import Project
-from ..job.results import chart_rows, member_json, results_doc, write_results
+from ..job.results import chart_rows, results_doc, write_results
 from ..job.review import comment_text, latest, load_review_file, read_reviews, status, titleblock_text
 from ..job.revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
 from ..lifetime import pid_alive
@@ -148,17 +148,17 @@ def sheet_tasks(project: Project, designs: list[MemberDesign], data: DataSet, ou
     return tasks
 
 
-def cross_check(design: MemberDesign, outcome: SheetOutcome, mine: dict | None = None) -> None:
-    """The sheet's own result record must equal the run's (`mine`: the member's results.json entry,
-    made here when not given): else the member is an error."""
+def cross_check(design: MemberDesign, outcome: SheetOutcome, mine: dict) -> bool:
+    """The sheet's own result record must equal the run's (`mine`, the member's results.json entry):
+    else the member is an error. Whether they agree."""
     if outcome.error:
         design.errors.append(f"sheet: {outcome.error}")
-        return
-    mine = mine if mine is not None else member_json(design)
+        return False
     theirs = outcome.record or {}
-    keys = ("status", "utilization", "governing", "checks")
-    if any(mine.get(k) != theirs.get(k) for k in keys):
+    if any(mine.get(k) != theirs.get(k) for k in ("status", "utilization", "governing", "checks")):
         design.errors.append("sheet: the notebook's result differs from the run's own calculation")
+        return False
+    return True
 
 
 def _front_ahead(project: Project, doc: dict, changes: list, data: DataSet, tasks: list[SheetTask],
@@ -314,11 +314,9 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
             mark = time.monotonic()
             report.sheets = run_sheets(tasks, opts.jobs, opts.progress, work)
             phases["sheets"] = time.monotonic() - mark
-            before = sum(len(d.errors) for d in designs)
-            for d, mine in zip(designs, doc["members"]):
-                if d.mark in report.sheets:
-                    cross_check(d, report.sheets[d.mark], mine)
-            if sum(len(d.errors) for d in designs) != before:  # a sheet failed or disagreed: that member is an error
+            agreed = [cross_check(d, report.sheets[d.mark], mine)
+                      for d, mine in zip(designs, doc["members"]) if d.mark in report.sheets]
+            if not all(agreed):  # a sheet failed or disagreed: that member is an error
                 doc, changes = results_now()
         doc = {**doc, "run_at": dt.datetime.now().isoformat(timespec="seconds")}  # the forecast's thread reads its own
         carried = Carried()
