@@ -26,8 +26,8 @@ from functools import lru_cache, partial
 from pathlib import Path
 from typing import Callable, TypeVar
 
-from .notebooks import templates_dir, to_latex
-from .typeset import ConversionError, typeset
+from .notebooks import file_hash, templates_dir, to_latex
+from .typeset import ConversionError, is_warm, typeset, warm_up
 
 STAMPED = ("revision", "date", "checked")  # title-block fields set by the stamp, not the body
 BEGIN, END = "%% timbersheets member begin", "%% timbersheets member end"
@@ -136,7 +136,8 @@ def stamp_sheets(stamps: list[Stamp], runs: int = 1) -> dict[str, int | Conversi
 
     A new revision re-stamps every sheet: up to `runs` xelatex runs at once (one per CPU the
     run may use), each with an equal share of the pages."""
-    runs = max(1, min(runs, len(stamps) // STAMP_SHARE))
+    # one run when one is waiting with the preamble read: its TeX time is then the pages alone
+    runs = 1 if is_warm(sheet_preamble()) else max(1, min(runs, len(stamps) // STAMP_SHARE))
     if runs == 1:
         return _one_by_one(stamps, _stamp_batch, lambda s: s.mark, "title block")
     from concurrent.futures import ThreadPoolExecutor
@@ -162,6 +163,22 @@ def _environment():
         block_start_string="((*", block_end_string="*))", variable_start_string="(((",
         variable_end_string=")))", comment_start_string="((=", comment_end_string="=))",
         autoescape=False, undefined=jinja2.StrictUndefined, keep_trailing_newline=True)
+
+
+def sheet_preamble() -> str:
+    """The preamble of every sheet batch and stamp document (what precedes \\begin{document})."""
+    path = templates_dir() / "latex" / "sheet" / "preamble.tex.j2"
+    return _preamble(str(path), file_hash(path))
+
+
+@lru_cache(maxsize=2)
+def _preamble(path: str, version: str) -> str:
+    return _environment().get_template(Path(path).name).render()
+
+
+def warm_sheets() -> None:
+    """An xelatex run in this process that has read the sheets' preamble, for the next batch or stamps."""
+    warm_up(sheet_preamble())
 
 
 def _stamp_template():

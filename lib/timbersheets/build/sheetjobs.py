@@ -34,7 +34,7 @@ from typing import Any
 from ..constants import RESULT_MIME
 from ..fileio import copy_atomic, write_atomic
 from ..lifetime import die_with_parent
-from .batch import Body, Stamp, fixed_fields, stamp_sheets, stamped_fields, typeset_bodies
+from .batch import Body, Stamp, fixed_fields, stamp_sheets, stamped_fields, typeset_bodies, warm_sheets
 from .notebooks import execute, file_hash, library_fingerprint, start_kernel, templates_dir, to_html
 
 BATCH = 20  # members per xelatex run at most: the ~0.7 s of preamble and fonts spread over 20 sheets
@@ -146,6 +146,12 @@ def _needs_work(task: SheetTask) -> bool:
     return task.sheet is not None and not task.cached_sheet.exists() and not task.cached_body.exists()
 
 
+def will_typeset(tasks: list[SheetTask]) -> bool:
+    """Whether a PDF body or title-block stamp of `tasks` is not in the cache (TeX will run)."""
+    return any(t.fmt == "pdf" and (_needs_body(t) or t.force or not t.cached_notebook.exists()
+                                   or not t.cached_sheet.exists()) for t in tasks if t.sheet is not None)
+
+
 def _record_file(notebook: Path) -> Path:
     return notebook.with_name(notebook.name + ".record")
 
@@ -171,6 +177,8 @@ def run_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, flo
     seconds spent per phase."""
     times: dict[str, float] = {}
     outcomes = {t.mark: SheetOutcome(t.mark) for t in tasks}
+    if will_typeset(tasks):
+        warm_sheets()  # xelatex reads the preamble while the notebooks execute
     started = time.monotonic()
     for task in tasks:
         outcome = outcomes[task.mark]
@@ -276,18 +284,18 @@ def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool,
             times[phase] = times.get(phase, 0.0) + seconds
 
     work = [t for t in tasks if _needs_work(t)]
-    for task in tasks:  # the rest come from the cache, without a worker
-        if not _needs_work(task):
-            outcome = SheetOutcome(task.mark)
-            _take_notebook(task, outcome)
-            outcomes[task.mark] = outcome
-            step(task.mark)
+    cached = [t for t in tasks if not _needs_work(t)]  # these come from the cache, without a worker
+    outcomes.update((t.mark, SheetOutcome(t.mark)) for t in cached)
     pending = deque(batches(work, jobs))
     total = len(pending)
     # sheets that only need new stamps (a new revision, a review) are stamped meanwhile, in a thread:
-    # xelatex works outside this process, which mostly waits on its kernel while its batch executes
-    early = _stale_stamps([t for t in tasks if not _needs_work(t)], outcomes) if pending else []
+    # xelatex works outside this process, which copies the cached notebooks, then mostly waits on its
+    # kernel while its batch executes
+    early = _stale_stamps(cached, outcomes)
     stamping = _stamp_ahead(early, jobs) if early else None
+    for task in cached:
+        _take_notebook(task, outcomes[task.mark])
+        step(task.mark)
     if jobs == 1 or total <= 1:
         while pending:
             collect(_safe_batch(pending.popleft()))

@@ -16,8 +16,10 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from .. import __version__
+from ..build.batch import warm_sheets
 from ..build.notebooks import start_kernel, templates_dir
-from ..build.sheetjobs import SheetOutcome, SheetTask, run_sheets
+from ..build.sheetjobs import SheetOutcome, SheetTask, run_sheets, will_typeset
+from ..build.typeset import discard_waiting
 from ..constants import SHORT_CAUTION, TITLE_NOTE_CHARS
 from ..engineering.beammodel import STORE_ENV as BEAM_STORE_ENV
 from ..engineering.data import DataSet
@@ -294,6 +296,8 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                            data_errors=[str(e) for e in data.firm.errors] if data.firm else [])
         every = sheet_tasks(project, designs, data, stage, opts, extra)
         tasks = every if not opts.only else [t for t in every if t.mark in set(opts.only)]
+        if opts.sheets and will_typeset(tasks):  # xelatex reads the preamble while the run goes on
+            warm_sheets()
         title = f"{project.fields['title']} rev {project.revision}: governing utilization"
         cache = (jobdir / ".cache").absolute()  # the threads below run while papermill changes the folder
         chart = draw_ahead(chart_rows(designs), title, cache) if tasks and opts.sheets else None
@@ -372,6 +376,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         swap_into_place(stage, final)
     finally:
         shutil.rmtree(stage, ignore_errors=True)
+        discard_waiting()
     return report
 
 
