@@ -173,6 +173,7 @@ def sheet_preamble() -> str:
 
 @lru_cache(maxsize=2)
 def _preamble(path: str, version: str) -> str:
+    """Rendered once per version (hash) of the file."""
     return _environment().get_template(Path(path).name).render()
 
 

@@ -17,6 +17,7 @@ process dies, which ends it too).
 from __future__ import annotations
 
 import atexit
+import os
 import shutil
 import subprocess
 import tempfile
@@ -53,8 +54,8 @@ class Typeset:
 BEGIN_DOCUMENT = "\\begin{document}"
 # the primitive \input (LaTeX's \input opens a file twice: once to see that it exists)
 READ_REST = "\\csname @@input\\endcsname /dev/stdin\n"
-READ_ALL = "timbersheets-input-complete"
-LOST_TO_BOM_CHECK = "\n" * 4  # typed out after the last line handed over
+READ_ALL = "timbersheets-input-complete"  # typed out after the last line handed over
+LOST_TO_BOM_CHECK = "\n" * 4
 
 
 class _Waiting:
@@ -97,7 +98,11 @@ _lock = threading.Lock()
 
 
 def warm_up(preamble: str) -> None:
-    """Have a run waiting with `preamble` read (one at most: a second would only take CPU time)."""
+    """Have a run waiting with `preamble` read (one at most: a second would only take CPU time).
+
+    Where there is no /dev/stdin (Windows), nothing waits and every run starts afresh."""
+    if not os.path.exists("/dev/stdin"):
+        return
     with _lock:
         if not any(w.preamble == _key(preamble) and w.proc.poll() is None for w in _waiting):
             _waiting.append(_Waiting(preamble))
