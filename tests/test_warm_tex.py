@@ -1,7 +1,6 @@
 """A waiting xelatex run (typeset.warm_up) typesets what a fresh run does, and fails as one does.
 
-Real xelatex throughout. The page text is read back with pikepdf-independent pdftotext
-(poppler), the tool a checker would use.
+Real xelatex throughout; the page text is read back with pdftotext (poppler).
 """
 
 from __future__ import annotations

@@ -147,9 +147,9 @@ def _needs_work(task: SheetTask) -> bool:
 
 
 def will_typeset(tasks: list[SheetTask]) -> bool:
-    """Whether a PDF body or title-block stamp of `tasks` is not in the cache (TeX will run)."""
-    return any(t.fmt == "pdf" and (_needs_body(t) or t.force or not t.cached_notebook.exists()
-                                   or not t.cached_sheet.exists()) for t in tasks if t.sheet is not None)
+    """Whether a PDF sheet of `tasks` is not in the cache as stamped, or its notebook is to run (TeX will)."""
+    return any(t.fmt == "pdf" and (t.force or not t.cached_notebook.exists() or not t.cached_sheet.exists())
+               for t in tasks if t.sheet is not None)
 
 
 def _record_file(notebook: Path) -> Path:
