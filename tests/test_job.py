@@ -27,3 +27,34 @@ def test_size_command_sizes_with_the_carried_loads_as_the_run_does(tmp_path, cap
     assert words[1] == ran.size
     # the same utilization: without the carried reaction the post would show about a quarter of it
     assert float(words[words.index("utilization") + 1]) == round(ran.governing.utilization, 3)
+
+
+def test_a_kept_search_is_used_only_for_the_same_inputs(tmp_path, monkeypatch):
+    """The run keeps each sizing search (deterministic in the member's inputs, the data and the library)
+    and a rerun reads it; a member whose inputs change, here through the reaction it carries, is
+    searched again, and every run's choice is the one a search without the store makes."""
+    from timbersheets.engineering.sizing import STORE_ENV, design_sized
+
+    monkeypatch.setenv(STORE_ENV, "")  # restored after the test (the run sets it for its own process)
+    job = write_job(tmp_path / "job", [BEAM, POST])
+    store = tmp_path / "out" / ".cache" / "sizing"
+
+    def run() -> tuple[str, dict]:
+        report = run_job(job, RunOptions(out=tmp_path / "out", sheets=False, progress=False))
+        post = next(d for d in report.designs if d.mark == "C-9")
+        return post.size, post.sizing.to_json()
+
+    def searched() -> tuple[str, dict]:
+        monkeypatch.setenv(STORE_ENV, "")
+        post = design_sized(load_job(job).members()["C-9"], load_job(job).data)
+        return post.size, post.sizing.to_json()
+
+    first = run()
+    assert len(list(store.glob("*.json"))) == 1
+    assert run() == first == searched()
+    # four times the live load on the beam: the post carries 48 kN live, not 12 (R1 = w·L/2)
+    heavier = write_job(tmp_path / "job", [{**BEAM, "w_L": "24.0"}, POST])
+    assert heavier == job
+    second = run()
+    assert len(list(store.glob("*.json"))) == 2
+    assert second == searched() != first

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import csv
+import hashlib
 import io
 import json
 import math
@@ -13,6 +14,7 @@ import stat
 import tempfile
 from collections.abc import Iterator
 from contextlib import contextmanager
+from functools import lru_cache
 from pathlib import Path
 from typing import Any, BinaryIO
 
@@ -128,3 +130,28 @@ def write_csv(path: Path, header: list[str], rows: list[list[Any]]) -> None:
     for row in rows:
         writer.writerow([spreadsheet_safe(v) for v in row])
     write_atomic(path, buffer.getvalue())
+
+
+def file_hash(path: Path) -> str:
+    """SHA-256 of a file, read once per version of it (templates are hashed for every member)."""
+    st = path.stat()
+    return _file_hash(str(path), st.st_mtime_ns, st.st_size)
+
+
+@lru_cache(maxsize=64)
+def _file_hash(path: str, mtime_ns: int, size: int) -> str:
+    return hashlib.sha256(Path(path).read_bytes()).hexdigest()
+
+
+@lru_cache(maxsize=1)
+def library_fingerprint() -> str:
+    """A hash of the library's own source and data: any change re-executes members (and re-sizes them)."""
+    from . import __version__
+
+    root = Path(__file__).resolve().parent
+    digest = hashlib.sha256(__version__.encode())
+    for path in sorted(root.rglob("*")):
+        if path.suffix in (".py", ".csv", ".toml") and "__pycache__" not in path.parts:
+            digest.update(path.relative_to(root).as_posix().encode())
+            digest.update(path.read_bytes())
+    return digest.hexdigest()

@@ -26,7 +26,8 @@ from functools import lru_cache, partial
 from pathlib import Path
 from typing import Callable, TypeVar
 
-from .notebooks import file_hash, templates_dir, to_latex
+from ..fileio import file_hash
+from .notebooks import templates_dir, to_latex
 from .typeset import ConversionError, is_warm, typeset, warm_up
 
 STAMPED = ("revision", "date", "checked")  # title-block fields set by the stamp, not the body

@@ -7,7 +7,6 @@ error marked in place by papermill, before the failure is reported.
 
 from __future__ import annotations
 
-import hashlib
 import importlib.resources
 import os
 from functools import lru_cache
@@ -37,31 +36,6 @@ def templates_dir() -> Path:
     if not (installed / "latex").is_dir():
         raise TimbersheetsError(f"the templates are missing from {installed}; reinstall timbersheets")
     return installed
-
-
-def file_hash(path: Path) -> str:
-    """SHA-256 of a file, read once per version of it (templates are hashed for every member)."""
-    stat = path.stat()
-    return _file_hash(str(path), stat.st_mtime_ns, stat.st_size)
-
-
-@lru_cache(maxsize=64)
-def _file_hash(path: str, mtime_ns: int, size: int) -> str:
-    return hashlib.sha256(Path(path).read_bytes()).hexdigest()
-
-
-@lru_cache(maxsize=1)
-def library_fingerprint() -> str:
-    """A hash of the library's own source and data: any change re-executes members."""
-    from .. import __version__
-
-    root = Path(__file__).resolve().parents[1]
-    digest = hashlib.sha256(__version__.encode())
-    for path in sorted(root.rglob("*")):
-        if path.suffix in (".py", ".csv", ".toml") and "__pycache__" not in path.parts:
-            digest.update(path.relative_to(root).as_posix().encode())
-            digest.update(path.read_bytes())
-    return digest.hexdigest()
 
 
 @lru_cache(maxsize=16)

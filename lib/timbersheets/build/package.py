@@ -23,13 +23,13 @@ from typing import Any
 from .. import __version__
 from ..constants import CAUTION, SHORT_CAUTION
 from ..engineering.data import DataSet
-from ..fileio import copy_atomic, write_atomic
+from ..fileio import copy_atomic, library_fingerprint, write_atomic
 from ..job.project import Project
 from ..job.review import count_text, standing, titleblock_text
 from ..job.revisions import MemberChange
 from ..sheet.symbols import ACTION_WORDS
 from ..sheet.tex import escape
-from .notebooks import library_fingerprint, templates_dir
+from .notebooks import templates_dir
 from .typeset import layout_environment, typeset
 
 VERDICT = {"pass": "passes", "fail": "does not pass", "error": "not designed"}

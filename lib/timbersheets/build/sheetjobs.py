@@ -32,10 +32,10 @@ from pathlib import Path
 from typing import Any
 
 from ..constants import RESULT_MIME
-from ..fileio import copy_atomic, write_atomic
+from ..fileio import copy_atomic, file_hash, library_fingerprint, write_atomic
 from ..lifetime import die_with_parent
 from .batch import Body, Stamp, fixed_fields, stamp_sheets, stamped_fields, typeset_bodies, warm_sheets
-from .notebooks import execute, file_hash, library_fingerprint, start_kernel, templates_dir, to_html
+from .notebooks import execute, start_kernel, templates_dir, to_html
 
 BATCH = 20  # members per xelatex run at most: the ~0.7 s of preamble and fonts spread over 20 sheets
 STAMP_LAYOUTS = ("stamp.tex.j2", "stampfields.tex.j2")  # a stamped sheet's key covers both

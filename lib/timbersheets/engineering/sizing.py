@@ -9,10 +9,15 @@ rendering), so the chosen section is exactly what the sheet will then verify.
 
 from __future__ import annotations
 
+import hashlib
+import json
 import math
+import os
 from dataclasses import dataclass, field
+from pathlib import Path
 
 from ..errors import DesignError, TimbersheetsError
+from ..fileio import library_fingerprint, write_atomic
 from .data import DataSet
 from .design import MemberDesign, build_context, design_function, design_member, load_cases
 from .materials import sawn_table_grade
@@ -170,9 +175,70 @@ def size(member: Member, data: DataSet, design) -> Sizing:
     return result
 
 
+STORE_ENV = "TIMBERSHEETS_SIZING_STORE"  # a folder of kept searches, set by the run for itself and its kernels
+
+
+def _kept_path(member: Member, data: DataSet) -> Path | None:
+    """Where the search for exactly this member is kept, or None when no store is set.
+
+    A search designs the member with every candidate section (about 50 ms a member, and the demo's
+    largest glulam columns try 15); it is deterministic in the member's inputs, the data and the
+    library, so a run keeps it under their hash and a rerun reads it instead of searching again."""
+    folder = os.environ.get(STORE_ENV)
+    if not folder:
+        return None
+    key = json.dumps([member.inputs_hash, data.hash, library_fingerprint()])
+    return Path(folder) / f"{hashlib.sha256(key.encode()).hexdigest()}.json"
+
+
+def _candidate_record(c: Candidate | None) -> list | None:
+    if c is None:
+        return None
+    s = c.section
+    return [s.ply_b, s.d, s.plies, c.utilization if math.isfinite(c.utilization) else None, c.governing]
+
+
+def _candidate(record: list | None) -> Candidate | None:
+    if record is None:
+        return None
+    ply_b, d, plies, utilization, governing = record
+    return Candidate(Section(float(ply_b), float(d), int(plies)),
+                     math.inf if utilization is None else float(utilization), str(governing))
+
+
+def _read_kept(path: Path) -> Sizing | None:
+    try:
+        kept = json.loads(path.read_text(encoding="utf-8"))
+        return Sizing(_candidate(kept["chosen"]), [_candidate(c) for c in kept["runners_up"]], int(kept["searched"]),
+                      _candidate(kept["best"]), str(kept["constraints"]))
+    except (OSError, ValueError, KeyError, TypeError):
+        return None  # not there, or unreadable: searched again
+
+
+def _keep(path: Path, result: Sizing) -> None:
+    record = {"chosen": _candidate_record(result.chosen), "runners_up": [_candidate_record(c) for c in result.runners_up],
+              "searched": result.searched, "best": _candidate_record(result.best), "constraints": result.constraints}
+    try:
+        write_atomic(path, json.dumps(record))
+    except TimbersheetsError:
+        pass  # a store that cannot be written costs only the time of searching again
+
+
+def kept_size(member: Member, data: DataSet, kind: MemberType) -> Sizing:
+    """:func:`size` for the member type `kind`, read from the run's store when this search was kept there."""
+    path = _kept_path(member, data)
+    kept = _read_kept(path) if path is not None else None
+    if kept is not None:
+        return kept
+    result = size(member, data, design_function(kind))
+    if path is not None:
+        _keep(path, result)
+    return result
+
+
 def sized_section(member: Member, data: DataSet, kind: MemberType, outcome: MemberDesign) -> Section:
     """The section the search chose; when none passes, the best one found (the member then fails)."""
-    outcome.sizing = size(member, data, design_function(kind))
+    outcome.sizing = kept_size(member, data, kind)
     chosen = outcome.sizing.chosen
     if chosen is not None:
         return chosen.section

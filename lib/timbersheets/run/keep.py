@@ -20,10 +20,10 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from ..build.notebooks import file_hash, templates_dir
+from ..build.notebooks import templates_dir
 from ..build.package import FRONT_HINT
 from ..build.sheetjobs import SheetTask
-from ..fileio import copy_atomic
+from ..fileio import copy_atomic, file_hash
 
 FORMATS = ("pdf", "html")
 PACKAGE_KEY = ".package-key"

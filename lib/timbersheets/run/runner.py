@@ -22,6 +22,7 @@ from ..build.sheetjobs import SheetOutcome, SheetTask, run_sheets, will_typeset
 from ..build.typeset import discard_waiting
 from ..constants import SHORT_CAUTION, TITLE_NOTE_CHARS
 from ..engineering.beammodel import STORE_ENV as BEAM_STORE_ENV
+from ..engineering.sizing import STORE_ENV as SIZING_STORE_ENV
 from ..engineering.data import DataSet
 from ..engineering.design import MemberDesign
 from ..engineering.membertypes import member_types
@@ -278,6 +279,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     # beam-model analyses are kept in the job's cache, for this run, its kernels and the next run
     # (absolute: the kernels run in the job's folder, and papermill changes this process's folder)
     os.environ[BEAM_STORE_ENV] = str((jobdir / ".cache" / "beam").absolute())
+    os.environ[SIZING_STORE_ENV] = str((jobdir / ".cache" / "sizing").absolute())  # searches, the same way
     if opts.sheets:
         # started in the folder the sheets run in (sheet_tasks), after the store is named (a kernel keeps
         # the folder and environment it was launched with; another would be started for the first member)
