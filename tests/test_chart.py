@@ -53,3 +53,27 @@ def test_a_chart_drawn_ahead_is_used_only_for_the_same_results(tmp_path):
     write_chart(tmp_path / "final.png", final, "job rev A", tmp_path / "cache")
     assert (tmp_path / "final.png").read_bytes() == utilization_chart(final, "job rev A")
     assert (tmp_path / "final.png").read_bytes() != ahead[0].read_bytes()
+
+
+def test_a_bar_ends_at_its_utilization_on_the_axis():
+    """A bar's length is its utilization on the x axis: the member at 0.5 ends halfway from the axis
+    to the 1.0 line, the member at 1.0 on it (read from the pixels of the PNG; the chart is drawn
+    directly, so this is what an engineer reads off it)."""
+    from PIL import Image
+
+    rows = [{"mark": "A", "utilization": 1.0, "status": "pass"}, {"mark": "B", "utilization": 0.5, "status": "pass"}]
+    image = Image.open(io.BytesIO(utilization_chart(rows, "job"))).convert("L")
+    w, h = image.size
+    px = image.load()
+    grey = [[x for x in range(w) if px[x, y] == 191] for y in range(h)]  # the bars' fill
+    spans = sorted({(xs[0], xs[-1]) for xs in grey if len(xs) > 20})
+    assert len(spans) == 2, spans
+    (start_b, end_b), (start_a, end_a) = sorted(spans, key=lambda s: s[1])
+    assert start_a == start_b  # both from the axis
+    axis = start_a - 1
+    line = [x for x in range(w) if all(px[x, y] < 60 for y in range(h // 2 - 3, h // 2 + 3))]
+    one = [x for x in line if x > axis + 5]  # the 1.0 line, three pixels wide
+    assert one, line
+    centre = sum(one) / len(one)
+    assert abs(end_a + 1 - centre) <= 2.5
+    assert abs((end_b + 1 - axis) - (centre - axis) / 2) <= 2.5

@@ -57,7 +57,7 @@ def check_package() -> Finding:
     from .. import __version__
 
     missing = []
-    for name in ("pint", "handcalcs", "papermill", "nbconvert", "nbformat", "ipykernel", "matplotlib", "pikepdf"):
+    for name in ("pint", "handcalcs", "papermill", "nbconvert", "nbformat", "ipykernel", "matplotlib", "PIL", "pikepdf"):
         try:
             __import__(name)
         except ImportError:
