@@ -27,6 +27,7 @@ from pathlib import Path
 from typing import Callable, TypeVar
 
 from ..fileio import file_hash
+from .layers import Layer, lay, prepare
 from .notebooks import templates_dir, to_latex
 from .typeset import ConversionError, is_warm, typeset, warm_up
 
@@ -123,7 +124,7 @@ def _typeset_batch(bodies: list[Body], times: dict[str, float]) -> dict[str, int
                 start = end
             for body in bodies:  # the stamp pages follow the last body, in the same order
                 if body.stamp is not None:
-                    _lay_stamp(body.pdf, batch.pages[start:start + pages[body.mark]], body.sheet)
+                    _lay_stamp(body.pdf, [prepare(p) for p in batch.pages[start:start + pages[body.mark]]], body.sheet)
                     start += pages[body.mark]
     times["split"] = times.get("split", 0.0) + time.monotonic() - split
     return pages
@@ -191,13 +192,14 @@ def _stamp_fields():
     return _environment().get_template("stampfields.tex.j2")
 
 
-def _lay_stamp(body: Path, layer_pages, target: Path) -> None:
-    """Lay stamp pages (one per body page, in order) onto the body PDF; save as `target`."""
+def _lay_stamp(body: Path, layer_pages: list[Layer], target: Path) -> None:
+    """Lay stamp pages (one per body page, in order, each prepared by `layers.prepare`) onto the body
+    PDF; save as `target`."""
     import pikepdf
 
     with pikepdf.open(body) as sheet:
         for page, stamp in zip(sheet.pages, layer_pages, strict=True):
-            page.add_overlay(stamp)
+            lay(sheet, page, stamp)
         _save(sheet, target)
 
 
@@ -220,9 +222,10 @@ def _stamp_batch(stamps: list[Stamp]) -> dict[str, int]:
     with tempfile.TemporaryDirectory(prefix="ts-stamp-") as tmp:
         done = typeset(_stamp_template().render(pages=pages), Path(tmp), "stamps", "stamps")
         with pikepdf.open(done.pdf) as layer:
+            prepared = [prepare(page) for page in layer.pages]  # once: sheets share their stamp pages
             for s in stamps:
                 fields = tuple(sorted(s.titleblock.items()))
-                _lay_stamp(s.body, [layer.pages[where[(fields, k, s.pages)]] for k in range(1, s.pages + 1)], s.pdf)
+                _lay_stamp(s.body, [prepared[where[(fields, k, s.pages)]] for k in range(1, s.pages + 1)], s.pdf)
     return {s.mark: s.pages for s in stamps}
 
 

@@ -29,6 +29,7 @@ from ..job.review import count_text, standing, titleblock_text
 from ..job.revisions import MemberChange
 from ..sheet.symbols import ACTION_WORDS
 from ..sheet.tex import escape
+from .layers import lay, prepare
 from .notebooks import templates_dir
 from .typeset import layout_environment, typeset
 
@@ -311,8 +312,9 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
                     made = _stamps(project, front_pages + 1, total, work, cache)
                 overlay = pikepdf.open(made)
                 sources.append(overlay)
+                layers = [prepare(page) for page in overlay.pages]
                 for k, page in enumerate(package.pages):
-                    page.add_overlay(overlay.pages[k])
+                    lay(package, page, layers[k])
             cover = pikepdf.open(front)
             sources.append(cover)
             for i, page in enumerate(cover.pages):  # the few front pages go before the many sheet pages
