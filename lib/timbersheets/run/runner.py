@@ -37,7 +37,8 @@ from ..job.revisions import DIFF_HEADER, diff, diff_rows, load_results, previous
 from ..lifetime import pid_alive
 from ..sheet.charts import chart_in, draw_ahead, write_chart
 from ..sheet.tex import escape
-from .keep import Carried, carry_package, carry_sheets, package_key, write_package_key
+from .keep import (Carried, carry_package, carry_sheets, inputs_key, notebooks_kept, package_key, remember_notebooks,
+                   write_package_key)
 
 
 
@@ -280,10 +281,13 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     # (absolute: the kernels run in the job's folder, and papermill changes this process's folder)
     os.environ[BEAM_STORE_ENV] = str((jobdir / ".cache" / "beam").absolute())
     os.environ[SIZING_STORE_ENV] = str((jobdir / ".cache" / "sizing").absolute())  # searches, the same way
-    if opts.sheets:
+    cache = (jobdir / ".cache").absolute()  # the threads below run while papermill changes the folder
+    inputs = inputs_key(project.folder / "project.toml", project.schedule_path, data.hash)
+    if opts.sheets and (opts.force or not notebooks_kept(cache, inputs)):
         # started in the folder the sheets run in (sheet_tasks), after the store is named (a kernel keeps
         # the folder and environment it was launched with; another would be started for the first member)
-        # and before the design: it boots and imports in its own process while the members are designed
+        # and before the design: it boots and imports in its own process while the members are designed.
+        # Not when the last run with these very files found every notebook in the cache (run/keep.py)
         start_kernel(project.folder.resolve())
     designs = job.designs
     prev_label = previous_revision(jobdir, project.revision)
@@ -298,10 +302,11 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
                            data_errors=[str(e) for e in data.firm.errors] if data.firm else [])
         every = sheet_tasks(project, designs, data, stage, opts, extra)
         tasks = every if not opts.only else [t for t in every if t.mark in set(opts.only)]
+        if opts.sheets:
+            remember_notebooks(cache, inputs, every)
         if opts.sheets and will_typeset(tasks):  # xelatex reads the preamble while the run goes on
             warm_sheets()
         title = f"{project.fields['title']} rev {project.revision}: governing utilization"
-        cache = (jobdir / ".cache").absolute()  # the threads below run while papermill changes the folder
         chart = draw_ahead(chart_rows(designs), title, cache) if tasks and opts.sheets else None
 
         def results_now() -> tuple[dict, list]:
