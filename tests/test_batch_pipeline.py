@@ -20,7 +20,7 @@ from pypdf import PdfReader
 
 from conftest import failing_templates, member_row, write_job
 from timbersheets.cli import main
-from timbersheets.run.runner import RunOptions, run_job
+from timbersheets.run.runner import RunOptions, RunReport, run_job
 
 pytestmark = pytest.mark.pipeline
 
@@ -255,3 +255,33 @@ def test_the_seal_box_is_at_least_45_mm_square(batch_job):
     width = (27 + 165) - (seal_x / mm - 1.5)
     height = designed_y / mm - seal_y / mm + 9
     assert width >= 45 and height >= 45, (width, height)
+
+
+def test_a_rerun_with_every_notebook_cached_starts_no_kernel(tmp_path, monkeypatch):
+    """The run boots a kernel ahead of the design only when a notebook may have to run: not on a rerun
+    of the same files whose notebooks are all in the cache, again when a load changes or a cached
+    notebook is gone. The sheets come out the same either way."""
+    from timbersheets.run import runner
+
+    started = []
+    real = runner.start_kernel
+    monkeypatch.setattr(runner, "start_kernel", lambda cwd=None: (started.append(cwd), real(cwd)))
+    job = write_job(tmp_path / "job", [member_row("T-1", P_D="20", P_L="30"), member_row("T-2", P_D="10")])
+    out = tmp_path / "out"
+
+    def run() -> RunReport:
+        return run_job(job, RunOptions(out=out, jobs=1, progress=False))
+
+    first = run()
+    assert len(started) == 1 and first.executed
+    sheet = (out / "rev-A" / "sheets" / "T-1.pdf").read_bytes()
+    again = run()
+    assert len(started) == 1 and not again.executed  # nothing to run: no kernel
+    assert (out / "rev-A" / "sheets" / "T-1.pdf").read_bytes() == sheet
+    next((out / ".cache").glob("*.ipynb")).unlink()  # a notebook the record names is gone
+    third = run()
+    assert len(started) == 2 and len(third.executed) == 1
+    write_job(tmp_path / "job", [member_row("T-1", P_D="25", P_L="30"), member_row("T-2", P_D="10")])
+    fourth = run()
+    assert len(started) == 3 and fourth.executed == ["T-1"]
+    assert "T-1" in page_text(out / "rev-A" / "sheets" / "T-1.pdf", 1)
