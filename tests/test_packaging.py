@@ -82,10 +82,24 @@ def test_every_library_package_is_listed():
 
 
 def test_importing_the_library_builds_no_unit_registry():
-    code = ("import timbersheets.schedule.read, timbersheets.engineering.units as u; a = u.registry.cache_info().currsize; "
-            "u.convert(1.0, 'm', 'mm'); print(a, u.registry.cache_info().currsize)")
+    """Nor imports pint (0.3 s): the design's own conversions are exact SI factors; a unit that is
+    not one of them (feet) builds the registry."""
+    code = ("import sys, timbersheets.schedule.read, timbersheets.job.results, timbersheets.engineering.units as u; "
+            "a = u.registry.cache_info().currsize; u.convert(1.0, 'm', 'mm'); u.convert(2.0, 'kN*m', 'N*mm'); "
+            "print(a, u.registry.cache_info().currsize, 'pint' in sys.modules, round(u.convert(1.0, 'ft', 'mm'), 9), "
+            "u.registry.cache_info().currsize)")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout
-    assert out.split() == ["0", "1"]
+    assert out.split() == ["0", "0", "False", "304.8", "1"]  # 1 ft = 304.8 mm exactly (international foot)
+
+
+def test_the_exact_conversion_factors_are_pints():
+    """Each factor the design uses without pint is the one pint's definitions give (SI prefixes)."""
+    import math
+
+    from timbersheets.engineering.units import EXACT_FACTORS, registry, unit
+
+    for (a, b), factor in EXACT_FACTORS.items():
+        assert math.isclose(float(registry().Quantity(1.0, unit(a)).to(unit(b)).magnitude), factor, rel_tol=1e-12), (a, b)
 
 
 @pytest.mark.pipeline

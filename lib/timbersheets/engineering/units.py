@@ -14,8 +14,10 @@ import os
 import re
 from functools import lru_cache
 from pathlib import Path
+from typing import TYPE_CHECKING
 
-import pint
+if TYPE_CHECKING:
+    import pint
 
 
 @lru_cache(maxsize=1)
@@ -24,7 +26,11 @@ def registry() -> pint.UnitRegistry:
 
     Parsing pint's definitions takes about 0.18 s in every process (the run, its workers, each
     kernel); pint keeps the parsed definitions in a cache folder (keyed by the definition files),
-    read back in 0.02 s. Where that folder cannot be used, the registry is built from the files."""
+    read back in 0.02 s. Where that folder cannot be used, the registry is built from the files.
+    pint itself is imported here, on first use (0.3 s): a run whose cells are bare numbers converts
+    with EXACT_FACTORS alone and never needs it in its own process."""
+    import pint
+
     folder = None
     try:
         folder = _cache_folder()
@@ -40,6 +46,8 @@ def registry() -> pint.UnitRegistry:
 
 
 def _cache_folder() -> Path:
+    import pint
+
     base = os.environ.get("XDG_CACHE_HOME") or Path.home() / ".cache"
     return Path(base) / "timbersheets" / f"pint-{pint.__version__}"
 
@@ -188,9 +196,23 @@ def _dimension(default_unit: str) -> tuple[str, str]:
     return (f"quantity in {default_unit}", f"a number in {default_unit}") if default_unit else ("plain number", "4.5")
 
 
+#: The conversions the design itself makes, between the schedule's and the compute units and to the
+#: display units: SI prefixes, exact by definition (1 kN = 1000 N, 1 m = 1000 mm, 1 kPa = 0.001 MPa;
+#: kN/m = N/mm). tests/test_units.py holds each equal to pint's.
+EXACT_FACTORS = {
+    ("kN", "N"): 1e3, ("N", "kN"): 1e-3,
+    ("m", "mm"): 1e3, ("mm", "m"): 1e-3,
+    ("kN*m", "N*mm"): 1e6, ("N*mm", "kN*m"): 1e-6,
+    ("kN/m", "N/mm"): 1.0, ("N/mm", "kN/m"): 1.0,
+    ("kPa", "MPa"): 1e-3, ("MPa", "kPa"): 1e3,
+}
+
+
 @lru_cache(maxsize=256)
 def _factor(from_unit: str, to_unit: str) -> float:
-    """The multiplier from one unit to another (pint, once per pair)."""
+    """The multiplier from one unit to another (EXACT_FACTORS, else pint, once per pair)."""
+    if (from_unit, to_unit) in EXACT_FACTORS:
+        return EXACT_FACTORS[from_unit, to_unit]
     return float(registry().Quantity(1.0, unit(from_unit)).to(unit(to_unit)).magnitude)
 
 
