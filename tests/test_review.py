@@ -88,3 +88,19 @@ def test_the_checkers_comment_is_on_the_html_sheet():
              "review_comment": "RD, 2026-12-02, revise: Confirm the post base detail"}
     page = sheet_html(nbformat.v4.new_notebook(), block)
     assert "Checker\u2019s comment" in page and "revise: Confirm the post base detail" in page
+
+
+def test_a_review_after_the_schedule_changed_is_refused_until_the_run(job, capsys):
+    """A verdict is tied to the inputs the sheets show: the review refuses a member whose row changed
+    after the last run (whether the review reads the run's record of its files or designs again), takes
+    the others, and takes all once the files are back as the run read them."""
+    folder, out = job
+    schedule = folder / "schedule.csv"
+    ran = schedule.read_text()
+    write_job(folder, [member_row("OK-1", P_D="7"), *ROWS[1:]])  # OK-1's dead load changed, nothing else
+    assert review(job, "--mark", "OK-1", "--by", "RD", "--verdict", "ok") == 2
+    assert "OK-1" in capsys.readouterr().err and not (folder / "review.csv").exists()
+    assert review(job, "--mark", "OK-2", "--by", "RD", "--verdict", "ok") == 0  # its row is as the run read it
+    schedule.write_text(ran)
+    assert review(job, "--mark", "OK-1", "--by", "RD", "--verdict", "ok") == 0
+    assert "OK-1" in (folder / "review.csv").read_text()

@@ -304,11 +304,20 @@ def cmd_review(args: argparse.Namespace) -> int:
     unknown = [m for m in marks if m not in members]
     if unknown:
         raise UsageError(f"not in rev {project.revision}: {', '.join(unknown)}")
-    from .job.load import load_job
+    from .job.load import job_of, use_stores
+    from .run.inputs import INPUTS_KEY, inputs_key
 
-    # the inputs as the run hashed them: with the reactions each member carries
-    current = {mark: m.inputs_hash for mark, m in load_job(args.dir).members(marks).items()}
-    stale = [m for m in marks if current.get(m) != members[m].get("inputs_hash")]
+    job = job_of(project)
+    folder = job_dir(project, args.out)
+    ran = folder / f"rev-{project.revision}" / INPUTS_KEY
+    if ran.exists() and ran.read_text(encoding="utf-8") == inputs_key(project.folder / "project.toml",
+                                                                       project.schedule_path, job.data.hash):
+        stale = []  # the very files (and library) of the last run: every member's inputs are the ones it hashed
+    else:
+        use_stores(folder / ".cache")  # the run's beam analyses and sizing searches
+        # the inputs as the run hashed them: with the reactions each member carries
+        current = {mark: m.inputs_hash for mark, m in job.members(marks).items()}
+        stale = [m for m in marks if current.get(m) != members[m].get("inputs_hash")]
     if stale:
         raise UsageError(f"the schedule changed after the last run for {', '.join(stale)}; "
                          "run it again so the sheets show what you check")

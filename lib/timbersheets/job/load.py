@@ -6,13 +6,16 @@ design a job the same way (carried loads included).
 
 from __future__ import annotations
 
+import os
 from dataclasses import dataclass
 from functools import cached_property
 from pathlib import Path
 
+from ..engineering.beammodel import STORE_ENV as BEAM_STORE_ENV
 from ..engineering.data import DataSet
 from ..engineering.design import MemberDesign
 from ..engineering.loadpath import design_all
+from ..engineering.sizing import STORE_ENV as SIZING_STORE_ENV
 from ..schedule.read import Member, Schedule, load_schedule
 from .project import Project, load_project
 
@@ -63,3 +66,12 @@ def job_of(project: Project) -> Job:
     """The job of an already loaded `project` (e.g. one whose data file a command overrides)."""
     data = DataSet(project.materials)
     return Job(project, load_schedule(project.schedule_path, data), data)
+
+
+def use_stores(cache: Path) -> None:
+    """Keep beam-model analyses and sizing searches in the job's cache folder `cache`, for this process,
+    the kernels it starts and the next command: both are deterministic in their inputs, and reading one
+    back saves importing PyCBA (~2 s a process) or searching again (~50 ms a member). Absolute: the
+    kernels run in the job's folder, and papermill changes this process's folder."""
+    os.environ[BEAM_STORE_ENV] = str((cache / "beam").absolute())
+    os.environ[SIZING_STORE_ENV] = str((cache / "sizing").absolute())

@@ -21,15 +21,13 @@ from ..build.notebooks import start_kernel, templates_dir
 from ..build.sheetjobs import SheetOutcome, SheetTask, run_sheets, will_typeset
 from ..build.typeset import discard_waiting
 from ..constants import SHORT_CAUTION, TITLE_NOTE_CHARS
-from ..engineering.beammodel import STORE_ENV as BEAM_STORE_ENV
-from ..engineering.sizing import STORE_ENV as SIZING_STORE_ENV
 from ..engineering.data import DataSet
 from ..engineering.design import MemberDesign
 from ..engineering.membertypes import member_types
 from ..errors import ExitCode, UsageError
 from ..fileio import copy_atomic, remove_stale_parts, write_atomic
 from ..fileio import write_csv
-from ..job.load import load_job
+from ..job.load import load_job, use_stores
 from ..job.project import Project
 from ..job.results import chart_rows, results_doc, write_results
 from ..job.review import comment_text, latest, load_review_file, read_reviews, status, titleblock_text
@@ -37,8 +35,8 @@ from ..job.revisions import DIFF_HEADER, diff, diff_rows, load_results, previous
 from ..lifetime import pid_alive
 from ..sheet.charts import chart_in, draw_ahead, write_chart
 from ..sheet.tex import escape
-from .keep import (Carried, carry_package, carry_sheets, inputs_key, notebooks_kept, package_key, remember_notebooks,
-                   write_package_key)
+from .inputs import INPUTS_KEY, inputs_key, notebooks_kept, remember_notebooks
+from .keep import Carried, carry_package, carry_sheets, package_key, write_package_key
 
 
 
@@ -277,10 +275,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
     schedule.warnings += load_review_file(project.folder).problems
     check_only(project, schedule.entries, opts.only)
     jobdir = job_dir(project, opts.out)
-    # beam-model analyses are kept in the job's cache, for this run, its kernels and the next run
-    # (absolute: the kernels run in the job's folder, and papermill changes this process's folder)
-    os.environ[BEAM_STORE_ENV] = str((jobdir / ".cache" / "beam").absolute())
-    os.environ[SIZING_STORE_ENV] = str((jobdir / ".cache" / "sizing").absolute())  # searches, the same way
+    use_stores(jobdir / ".cache")  # beam analyses and sizing searches, for this run, its kernels and the next
     cache = (jobdir / ".cache").absolute()  # the threads below run while papermill changes the folder
     inputs = inputs_key(project.folder / "project.toml", project.schedule_path, data.hash)
     if opts.sheets and (opts.force or not notebooks_kept(cache, inputs)):
@@ -365,6 +360,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
             write_atomic(stage / "index.html", index_html(project, doc, stage))
         write_results(stage, doc)
         snapshot_inputs(project, stage)
+        write_atomic(stage / INPUTS_KEY, inputs)  # what the review compares the files with (run/inputs.py)
         counts = report.counts()
         report.log.insert(0, f"{project.name} rev {project.revision}: {len(designs)} members, "
                              f"{counts['pass']} pass, {counts['fail']} fail, {counts['error']} error; "
