@@ -18,7 +18,7 @@ import hashlib
 import json
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any
+from typing import Any, Callable
 
 from ..build.notebooks import templates_dir
 from ..build.package import FRONT_HINT
@@ -49,20 +49,27 @@ class Carried:
         return {"kept": self.kept, "out_of_date": self.out_of_date}
 
 
-def _current_files(task: SheetTask) -> list[tuple[str, Path]]:
-    """Each file a full run would give this member, by path in the revision folder, with its cache file."""
-    files = [(f"notebooks/{task.mark}.ipynb", task.cached_notebook)]
+def _as(task: SheetTask, fmt: str) -> SheetTask:
+    """The task as it would be for a sheet in `fmt` (itself when it is one: its keys are computed once)."""
+    return task if task.fmt == fmt else dataclasses.replace(task, fmt=fmt)
+
+
+def _current_files(task: SheetTask) -> list[tuple[str, Callable[[], Path]]]:
+    """Each file a full run would give this member, by path in the revision folder, with (a function
+    giving) its cache file: a key is computed only for a file there is to carry."""
+    files = [(f"notebooks/{task.mark}.ipynb", lambda: task.cached_notebook)]
     for fmt in FORMATS:
-        files.append((f"sheets/{task.mark}.{fmt}", dataclasses.replace(task, fmt=fmt).cached_sheet))
+        files.append((f"sheets/{task.mark}.{fmt}", lambda fmt=fmt: _as(task, fmt).cached_sheet))
     return files
 
 
 def carry_sheets(tasks: list[SheetTask], old: Path, stage: Path, carried: Carried) -> None:
     """Copy into `stage` every file of `old` that this run did not write and that is still current."""
     for task in tasks:
-        for rel, cached in _current_files(task):
+        for rel, cache_file in _current_files(task):
             if (stage / rel).exists() or not (old / rel).exists():
                 continue
+            cached = cache_file()
             if cached.exists():
                 copy_atomic(cached, stage / rel)
                 carried.kept.append(rel)
@@ -72,7 +79,7 @@ def carry_sheets(tasks: list[SheetTask], old: Path, stage: Path, carried: Carrie
 
 def package_key(doc: dict[str, Any], tasks: list[SheetTask]) -> str:
     """What package.pdf depends on: the results (not the time of the run), every PDF sheet, the layout."""
-    sheets = {t.mark: dataclasses.replace(t, fmt="pdf").sheet_key for t in tasks}
+    sheets = {t.mark: _as(t, "pdf").sheet_key for t in tasks}
     layout = file_hash(templates_dir() / "latex" / "package" / "package.tex.j2")
     blob = json.dumps({"doc": {k: v for k, v in doc.items() if k != "run_at"}, "sheets": sheets, "layout": layout},
                       sort_keys=True, default=str)
