@@ -282,7 +282,7 @@ def run_job(folder: Path, opts: RunOptions | None = None, **kw) -> RunReport:
         # started in the folder the sheets run in (sheet_tasks), after the store is named (a kernel keeps
         # the folder and environment it was launched with; another would be started for the first member)
         # and before the design: it boots and imports in its own process while the members are designed.
-        # Not when the last run with these very files found every notebook in the cache (run/keep.py)
+        # Not when the last run with these very files found every notebook in the cache (run/inputs.py)
         start_kernel(project.folder.resolve())
     designs = job.designs
     prev_label = previous_revision(jobdir, project.revision)
