@@ -257,7 +257,7 @@ def cmd_diff(args: argparse.Namespace) -> int:
     from .job.project import load_project
     from .job.revisions import DIFF_HEADER, diff, diff_rows, format_diff, load_results
     from .schedule.labels import label_problem
-    from .run.runner import job_dir
+    from .job.project import job_dir
 
     for option, label in (("--from", args.r1), ("--to", args.r2)):
         if label_problem(label):
@@ -278,7 +278,7 @@ def cmd_review(args: argparse.Namespace) -> int:
     from .job.review import (Review, append_reviews, comment_text, count_text, latest, load_review_file,
                          refuse_unexplained_ok, standing, status, today)
     from .job.revisions import load_results
-    from .run.runner import job_dir
+    from .job.project import job_dir
 
     project = load_project(args.dir)
     results = load_results(job_dir(project, args.out) / f"rev-{project.revision}")
@@ -304,17 +304,20 @@ def cmd_review(args: argparse.Namespace) -> int:
     unknown = [m for m in marks if m not in members]
     if unknown:
         raise UsageError(f"not in rev {project.revision}: {', '.join(unknown)}")
-    from .job.load import job_of, use_stores
+    from .engineering.data import DataSet
     from .run.inputs import INPUTS_KEY, inputs_key
 
-    job = job_of(project)
     folder = job_dir(project, args.out)
     ran = folder / f"rev-{project.revision}" / INPUTS_KEY
+    data = DataSet(project.materials)
     if ran.exists() and ran.read_text(encoding="utf-8") == inputs_key(project.folder / "project.toml",
-                                                                       project.schedule_path, job.data.hash):
+                                                                       project.schedule_path, data.hash):
         stale = []  # the very files (and library) of the last run: every member's inputs are the ones it hashed
     else:
+        from .job.load import job_of, use_stores
+
         use_stores(folder / ".cache")  # the run's beam analyses and sizing searches
+        job = job_of(project, data)
         # the inputs as the run hashed them: with the reactions each member carries
         current = {mark: m.inputs_hash for mark, m in job.members(marks).items()}
         stale = [m for m in marks if current.get(m) != members[m].get("inputs_hash")]
@@ -370,7 +373,7 @@ def cmd_data(args: argparse.Namespace) -> int:
         if project is None:
             raise UsageError("--sheet needs a job folder DIR")
         from .build.datasheet import write_sheet
-        from .run.runner import job_dir
+        from .job.project import job_dir
 
         pdf = write_sheet(project, data, items, job_dir(project, args.out))
         print(f"written: {pdf}")

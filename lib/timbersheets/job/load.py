@@ -62,9 +62,10 @@ def load_job(folder: Path) -> Job:
     return job_of(load_project(folder))
 
 
-def job_of(project: Project) -> Job:
-    """The job of an already loaded `project` (e.g. one whose data file a command overrides)."""
-    data = DataSet(project.materials)
+def job_of(project: Project, data: DataSet | None = None) -> Job:
+    """The job of an already loaded `project` (e.g. one whose data file a command overrides), with its
+    data set (`data`, when already read)."""
+    data = data if data is not None else DataSet(project.materials)
     return Job(project, load_schedule(project.schedule_path, data), data)
 
 

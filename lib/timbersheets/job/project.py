@@ -12,7 +12,7 @@ from ..errors import JobError
 from ..schedule.labels import label_problem
 
 PROJECT_FIELDS = ("title", "number", "client", "location", "engineer", "designer", "checker", "revision", "date")
-#: Where a job's outputs go (runner.job_dir), as the README and `run --help` say it.
+#: Where a job's outputs go (job_dir), as the README and `run --help` say it.
 OUTPUT_RULE = ("outputs/<job>/ beside the job folder, or beside calcsheets/ when the job folder is in one "
                "(as in this repository)")
 MAX_FIELD = 300  # characters in a title-block field
@@ -43,6 +43,19 @@ class Project:
             if (self.folder / name).exists():
                 return self.folder / name
         return self.folder / "schedule.csv"
+
+
+def job_dir(project: Project, out: Path | None) -> Path:
+    """The folder holding a job's rev-<R>/ folders: `out`, else project.OUTPUT_RULE.
+
+    The rule depends only on where the job folder is, never on where the command
+    is run from, so run, diff and review always agree.
+    """
+    if out is not None:
+        return out
+    folder = project.folder.resolve()
+    beside = folder.parent.parent if folder.parent.name == "calcsheets" else folder.parent
+    return beside / "outputs" / folder.name
 
 
 def load_project(folder: Path) -> Project:

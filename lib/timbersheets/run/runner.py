@@ -28,7 +28,7 @@ from ..errors import ExitCode, UsageError
 from ..fileio import copy_atomic, remove_stale_parts, write_atomic
 from ..fileio import write_csv
 from ..job.load import load_job, use_stores
-from ..job.project import Project
+from ..job.project import Project, job_dir
 from ..job.results import chart_rows, results_doc, write_results
 from ..job.review import comment_text, latest, load_review_file, read_reviews, status, titleblock_text
 from ..job.revisions import DIFF_HEADER, diff, diff_rows, load_results, previous_revision
@@ -88,19 +88,6 @@ class RunReport:
     def stamped(self) -> list[str]:
         """Members whose title-block stamp was laid on their body."""
         return [m for m, s in self.sheets.items() if s.stamped]
-
-
-def job_dir(project: Project, out: Path | None) -> Path:
-    """The folder holding a job's rev-<R>/ folders: `out`, else project.OUTPUT_RULE.
-
-    The rule depends only on where the job folder is, never on where the command
-    is run from, so run, diff and review always agree.
-    """
-    if out is not None:
-        return out
-    folder = project.folder.resolve()
-    beside = folder.parent.parent if folder.parent.name == "calcsheets" else folder.parent
-    return beside / "outputs" / folder.name
 
 
 def revision_dir(project: Project, out: Path | None) -> Path:
