@@ -35,6 +35,18 @@ def test_a_waiting_run_typesets_the_same_pages_as_a_fresh_one(tmp_path):
     assert not ts.is_warm(PREAMBLE)  # used once, then gone
 
 
+def test_a_waiting_run_leaves_the_labels_where_a_fresh_one_does(tmp_path):
+    """The package reads its bookmarks' pages from the .aux beside the PDF (\\newlabel): a waiting run
+    leaves it there too, with the same labels."""
+    doc = PREAMBLE + "\\begin{document}\nFirst.\\newpage\nIndex.\\label{ts-index}\n\\end{document}\n"
+    cold = ts.typeset(doc, tmp_path / "cold", "package", "test")
+    ts.warm_up(PREAMBLE)
+    warm = ts.typeset(doc, tmp_path / "warm", "package", "test")
+    assert warm.warm
+    labels = [(tmp_path / f / "package.aux").read_text() for f in ("cold", "warm")]
+    assert "\\newlabel{ts-index}{{}{2}" in labels[0] and labels[0] == labels[1]
+
+
 def test_a_waiting_run_serves_only_its_own_preamble(tmp_path):
     ts.warm_up(PREAMBLE)
     other = PREAMBLE + "\\usepackage{xcolor}\n"

@@ -153,6 +153,8 @@ def typeset(tex: str, work: Path, name: str, what: str, files: dict[str, bytes] 
             code, out, pdf = waiting.finish(rest, files or {})
             if code == 0 and pdf.exists():
                 shutil.move(pdf, work / f"{name}.pdf")
+                if pdf.with_suffix(".aux").exists():  # where a fresh run leaves it (the package reads its labels)
+                    shutil.move(pdf.with_suffix(".aux"), work / f"{name}.aux")
             else:
                 raise ConversionError(what, f"xelatex could not typeset the {name}", error_tail(out))
         finally:
