@@ -71,9 +71,9 @@ def _clear_namespace():
         gc.collect = collect
 _clear_namespace()
 """
-# What every sheet imports, run once when a kernel starts, before any member needs it. Not
-# matplotlib: only sheets with a diagram need it (0.3 s of a kernel's 1.0 s boot, measured), and a
-# rerun whose changed member is a tie or a column should not wait for it.
+# What every sheet imports, run once when a kernel starts, before any member needs it. No sheet
+# imports matplotlib (its diagrams are drawn with Pillow); PyCBA, which does, is read from the beam
+# store instead.
 WARM_UP = ("import timbersheets.sheet.sections, timbersheets.engineering.units, handcalcs.handcalcs\n"
            "timbersheets.engineering.units.registry()\n")
 ENGINE = "timbersheets"

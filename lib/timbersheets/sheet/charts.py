@@ -3,7 +3,8 @@
 Drawn directly with Pillow, not matplotlib: importing matplotlib and laying out a figure cost about
 1 s of the run's own process for one picture (measured on a 2-core machine: 0.6 s import, 0.4 s
 drawing), which every run that changes a result paid; the bars, axes and labels below take ~50 ms.
-The font is the DejaVu Sans that matplotlib ships (a dependency already: the sheets' diagrams).
+The font is the DejaVu Sans that matplotlib ships (found, not imported); the sheets' diagrams are
+drawn the same way (`diagrams.py`).
 """
 
 from __future__ import annotations
