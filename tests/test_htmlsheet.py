@@ -147,3 +147,14 @@ def test_a_long_table_that_breaks_across_pages_reads_as_one_table():
     page = Converter().blocks(latex)
     assert page.count("<table>") == 1 and page.count("</th>") == 3 and "kN·m" in page
     assert page.count("<tr>") == 21 and "1.19D" in page and "0.019" in page
+
+
+@pytest.mark.parametrize("mark", ["J-1", "PU-1"])
+def test_page_break_hints_leave_nothing_on_the_html_sheet(mark):
+    """The PDF's \\tsneedspace{room} before the "Every combination" table is layout only: the HTML shows
+    no stray paragraph holding its argument (it once printed "9" above the heading)."""
+    nb, tb = demo_notebook(mark)
+    latex = "".join(o["data"]["text/latex"] for c in nb.cells for o in c.outputs)
+    assert "\\tsneedspace" in latex and "Every combination" in latex
+    page = sheet_html(nb, tb)
+    assert re.findall(r"<p>\s*[\d.]+\s*</p>", page) == []

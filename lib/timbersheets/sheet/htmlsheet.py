@@ -210,6 +210,9 @@ class Converter:
             head, i = _group(tex, _skip_space(tex, i))
             body, i = _group(tex, _skip_space(tex, i))
             return "<block>" + self.table(_columns(spec), head + "\\midrule" + body), i
+        if name == "tsneedspace":  # a page-break hint: {room}; nothing to show
+            _, i = _group(tex, i)
+            return "", i
         if name == "tsvalue":
             number, i = _group(tex, i)
             unit, i = _group(tex, i)
