@@ -9,7 +9,9 @@ whole process tree (main process, workers, kernels, xelatex):
 - pages per member by type;
 - the naive loop on 20 of the same members, spread over the schedule and extrapolated to all (papermill CLI, then
   ``jupyter nbconvert --to pdf``, one member after another);
-- a 2,000-member ``--no-pdf`` run, and the full run projected to 2,000 members.
+- a 2,000-member ``--no-pdf`` run, and the full run projected to 2,000 members;
+- the cold package's floor: the CPU a notebook of empty cells takes through papermill, nbclient and
+  the reused kernel, plus xelatex's time a member, over the CPUs.
 
 ``--baseline DIR`` runs the same scenarios with the library of another checkout
 (e.g. an older commit unpacked with ``git archive``), under the same load.
@@ -235,6 +237,60 @@ TARGETS = {"cold package": 20.0, "one load changed": 3.0, "new revision, one cha
 PAGE_TARGETS = {"tension": 2, "compression": 2, "bending": 4, "beam-column": 5, "tension-bending": 5}
 
 
+FLOOR_NOTEBOOKS = 30  # trivial notebooks run through the machinery for its floor
+
+
+def machinery_floor(root: Path, count: int = FLOOR_NOTEBOOKS) -> tuple[float, float, int]:
+    """CPU seconds a notebook takes in the run's machinery alone: the axial template's parameters cell
+    and as many code cells as it has, each doing nothing, run with papermill into the reused kernel as
+    a sheet is (`build.notebooks.execute`). Returns (kernel CPU, main-process CPU, cells) a notebook.
+    No sheet of that template can take less: its cells only add work."""
+    import nbformat
+    import psutil
+
+    from timbersheets.build import notebooks
+
+    template = json.loads((notebooks.templates_dir() / "axial.ipynb").read_text(encoding="utf-8"))
+    code = [c for c in template["cells"] if c["cell_type"] == "code"]
+    nb = nbformat.v4.new_notebook(metadata=template["metadata"])
+    for c in code:
+        tags = c.get("metadata", {}).get("tags", [])
+        nb.cells.append(nbformat.v4.new_code_cell("".join(c["source"]) if "parameters" in tags else "pass",
+                                                  metadata={"tags": tags}))
+    root.mkdir(parents=True)
+    empty = root / "empty.ipynb"
+    nbformat.write(nb, empty)
+    parameters = {name: None for name in notebooks.template_parameters(empty)}
+    notebooks.start_kernel(root)
+    assert notebooks.execute(empty, root / "first.ipynb", parameters, root) is None  # the kernel is up
+    kernel = psutil.Process(notebooks._Kernel.km.provisioner.process.pid)
+
+    def kernel_cpu() -> float:
+        return sum(sum(p.cpu_times()[:2]) for p in [kernel, *kernel.children(recursive=True)])
+
+    k0, m0 = kernel_cpu(), time.process_time()
+    for i in range(count):
+        assert notebooks.execute(empty, root / f"n{i}.ipynb", parameters, root) is None
+    k1, m1 = kernel_cpu(), time.process_time()
+    notebooks._Kernel.shutdown()
+    return (k1 - k0) / count, (m1 - m0) / count, len(code)
+
+
+def floor_lines(root: Path, members: int, cold_phases: str) -> list[str]:
+    """The cold package's floor on this machine: the machinery's CPU a notebook and the typesetting a
+    member (from the cold run's run.log), over the CPUs; what the engineering, design and package add
+    comes on top."""
+    kernel, main, cells = machinery_floor(root)
+    found = re.search(r"typeset ([\d.]+) s", cold_phases)
+    typeset = float(found.group(1)) / members if found else 0.0
+    cpus = os.cpu_count() or 1
+    floor = members * (kernel + main + typeset) / cpus
+    return [f"  floor of the cold package: papermill + nbclient + ipykernel {1000 * (kernel + main):.0f} ms CPU a "
+            f"notebook of {cells} empty cells (kernel {1000 * kernel:.0f}, main {1000 * main:.0f}), xelatex "
+            f"{1000 * typeset:.0f} ms a member: {floor:.1f} s for {members} members on {cpus} CPUs, "
+            "before any sheet's own cells, the design or the package"]
+
+
 def phase_line(out: Path, rev: str) -> str:
     """The phase times a run wrote to the first line of its run.log."""
     line = (out / f"rev-{rev}" / "run.log").read_text().splitlines()[0]
@@ -352,6 +408,7 @@ def main() -> int:
         print("\n".join(sizing_times(job)))
         print("\n".join(beam_times()))
         cold = mine[0][1]
+        print("\n".join(floor_lines(root / "floor", args.members, mine[0][3])))
         if args.naive:
             naive, n = naive_loop(job, root / "naive", args.naive)
             per = naive / n
