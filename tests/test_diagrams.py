@@ -137,3 +137,9 @@ def test_a_beam_model_picture_keeps_inside_its_frame():
     assert image.shape == (round(diagrams.MODEL_IN[1] * diagrams.DPI), round(diagrams.MODEL_IN[0] * diagrams.DPI))
     for edge in (image[:3], image[-3:], image[:, :3], image[:, -3:]):
         assert edge.min() == 255
+
+
+def test_labels_print_a_true_minus_and_never_a_negative_zero():
+    # common practice in typeset numbers: U+2212 for minus; a value that rounds to zero prints as 0.0
+    assert diagrams._number(-2.54, 1) == "\u22122.5" and diagrams._number(-0.04, 1) == "0.0"
+    assert diagrams._number(0.04, 1) == "0.0" and diagrams._number(12.0, 0) == "12"

@@ -64,6 +64,7 @@ def _font(face: str, points: float):
 
 
 def _number(value: float, decimals: int) -> str:
+    value = value if round(value, decimals) != 0 else 0.0  # never "−0.0"
     return f"{value:.{decimals}f}".replace("-", MINUS)
 
 
@@ -274,7 +275,7 @@ def shear_moment_png(span: SpanDiagram) -> bytes:
     pen.text(x + _pt(5) / SS, y - up * _pt(2) / SS, [("V", "i", False), ("f", "i", True), (f" = {_number(v0, 1)}", "r", False)],
              SIZE, "left", "bottom" if up > 0 else "top")
     dx, dy = ax_v.at(d, vd)
-    lx, ly = ax_v.at(0.08 * length, -0.5 * v0)
+    lx, ly = ax_v.at(0.08 * length, -0.5 * (v0 or reach))  # unloaded: below the line, clear of V_f
     box = pen.text(lx, ly, [("V", "i", False), ("fd", "i", True), (f" = {_number(vd, 1)}", "r", False)], SIZE, "left", "center")
     reach_x, reach_y = lx + 0.2 * (box[2] - box[0]), box[1] - _pt(1) / SS if up > 0 else box[3] + _pt(1) / SS
     shorten = _pt(2.5) / SS / max(math.hypot(reach_x - dx, reach_y - dy), 1e-9)
