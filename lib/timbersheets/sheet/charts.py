@@ -9,7 +9,6 @@ drawn the same way (`diagrams.py`).
 
 from __future__ import annotations
 
-import importlib.util
 import io
 import math
 import textwrap
@@ -36,12 +35,10 @@ def _px(points: float) -> int:
 def _font(points: float):
     from PIL import ImageFont
 
-    spec = importlib.util.find_spec("matplotlib")  # found, not imported
-    for folder in (spec.submodule_search_locations or []) if spec else []:
-        path = Path(folder) / "mpl-data" / "fonts" / "ttf" / "DejaVuSans.ttf"
-        if path.exists():
-            return ImageFont.truetype(str(path), _px(points))
-    return ImageFont.load_default(_px(points))
+    from .diagrams import bundled_font
+
+    path = bundled_font("DejaVuSans.ttf")
+    return ImageFont.truetype(path, _px(points)) if path else ImageFont.load_default(_px(points))
 
 
 def utilization_chart(members: list[dict[str, Any]], title: str) -> bytes:
@@ -90,12 +87,10 @@ def _finite(value: Any) -> bool:
 
 
 def _ticks(low: float, high: float, most: int = 10) -> list[float]:
-    """Round tick values from `low` to `high`, at most `most` of them (steps of 1, 2, 2.5 or 5 times a power of ten)."""
-    span = max(high - low, 1e-9)
-    power = 10 ** math.floor(math.log10(span / most))
-    step = next(power * k for k in (1, 2, 2.5, 5, 10, 20) if span / (power * k) <= most)
-    first = math.ceil(low / step - 1e-9)
-    return [round(i * step, 10) for i in range(first, math.floor(high / step + 1e-9) + 1)]
+    """Round tick values from `low` to `high`, at most `most` of them (the diagrams' rule)."""
+    from .diagrams import ticks
+
+    return ticks(low, high, most)[0]
 
 
 def _tick_text(value: float) -> str:

@@ -40,6 +40,16 @@ def _pt(points: float) -> float:
     return points * DPI * SS / 72
 
 
+def bundled_font(name: str) -> str | None:
+    """The path of one of the DejaVu fonts matplotlib ships (found, not imported), or None."""
+    spec = importlib.util.find_spec("matplotlib")
+    for folder in (spec.submodule_search_locations or []) if spec else []:
+        path = Path(folder) / "mpl-data" / "fonts" / "ttf" / name
+        if path.exists():
+            return str(path)
+    return None
+
+
 @lru_cache(maxsize=None)
 def _face_path(face: str) -> str | None:
     latin_modern, dejavu = FACES[face]
@@ -47,12 +57,7 @@ def _face_path(face: str) -> str | None:
         for folder in sorted(glob.glob(pattern)):
             if (Path(folder) / latin_modern).exists():
                 return str(Path(folder) / latin_modern)
-    spec = importlib.util.find_spec("matplotlib")  # its fonts, found, not imported
-    for folder in (spec.submodule_search_locations or []) if spec else []:
-        path = Path(folder) / "mpl-data" / "fonts" / "ttf" / dejavu
-        if path.exists():
-            return str(path)
-    return None
+    return bundled_font(dejavu)
 
 
 @lru_cache(maxsize=32)
@@ -166,7 +171,7 @@ class _Pen:
         return buffer.getvalue()
 
 
-def _ticks(low: float, high: float, most: int) -> tuple[list[float], int]:
+def ticks(low: float, high: float, most: int) -> tuple[list[float], int]:
     """Round tick values within [low, high], at most `most` (steps of 1, 2, 2.5 or 5 times a power of
     ten), and the decimals that print them all alike (as matplotlib's default axis does)."""
     span = max(high - low, 1e-12)
@@ -207,7 +212,7 @@ class _Axes:
         self.pen.line([(l, y), (r, y)], 0.6)
 
     def frame(self, xticks, yticks, x_labels: bool = True) -> None:
-        """Left and bottom edges with outward ticks and their labels; `xticks`, `yticks` as _ticks gives."""
+        """Left and bottom edges with outward ticks and their labels; `xticks`, `yticks` as ticks gives."""
         l, t, r, b = self.box
         tick, gap = _pt(2) / SS, _pt(1.5) / SS
         self.pen.line([(l, t), (l, b), (r, b)], 0.6)
@@ -222,8 +227,8 @@ class _Axes:
             self.pen.text(l - tick - gap, y, _number(value, yticks[1]), SIZE, "right", "center")
 
 
-def _y_ticks(ylim, height_px: float):
-    return _ticks(*ylim, most=max(3, min(8, round(height_px / 45))))
+def _yticks(ylim, height_px: float):
+    return ticks(*ylim, most=max(3, min(8, round(height_px / 45))))
 
 
 def _tick_label_width(pen: _Pen, ticks) -> float:
@@ -251,8 +256,8 @@ def shear_moment_png(span: SpanDiagram) -> bytes:
     pad = 0.3 * em
     top = pad + _pt(3) / SS + 1.25 * em  # the title's line and its gap
     bottom = pen.height - (pad + _pt(3.5) / SS + 1.2 * em + _pt(1) / SS + 1.2 * em)  # ticks, labels, x label
-    yticks = [_y_ticks(lim, bottom - top) for lim in limits]
-    xticks = _ticks(0.0, length, 7)
+    yticks = [_yticks(lim, bottom - top) for lim in limits]
+    xticks = ticks(0.0, length, 7)
     lefts = [_tick_label_width(pen, t) + _pt(3.5) / SS for t in yticks]
     right_overhang = pen.text_width(_number(xticks[0][-1], xticks[1]), SIZE) / 2 if abs(xticks[0][-1] - length) < 1e-9 else 0.0
     gap = 2.0 * em
@@ -313,9 +318,9 @@ def beam_model_png(geometry, loads: dict, x, v_env: tuple, m_env: tuple, d: floa
     below = _pt(3.5) / SS + 1.2 * em + _pt(1) / SS + 1.2 * em
     plot_h = pen.height - 2 * pad - title_h - below - 2 * 0.6 * em
     heights = [plot_h * k / 3.0 for k in (0.9, 1.05, 1.05)]
-    yticks = [_y_ticks(lim, heights[1]) for _, _, lim in envelopes]
+    yticks = [_yticks(lim, heights[1]) for _, _, lim in envelopes]
     left = pad + 1.3 * em + max(_tick_label_width(pen, t) for t in yticks) + _pt(3.5) / SS
-    xticks = _ticks(0.0, total, 9)
+    xticks = ticks(0.0, total, 9)
     right = pen.width - pad - max(0.0, pen.text_width(_number(xticks[0][-1], xticks[1]), SIZE) / 2
                                   - (xlim[1] - xticks[0][-1]) / (xlim[1] - xlim[0]) * (pen.width - left))
     top = pad + title_h
