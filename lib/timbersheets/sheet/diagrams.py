@@ -68,6 +68,13 @@ def _font(face: str, points: float):
     return ImageFont.truetype(path, round(_pt(points))) if path else ImageFont.load_default(round(_pt(points)))
 
 
+def _symbol(letter: str, sub: str = "", after: str = "", before: str = "") -> list[tuple[str, str, bool]]:
+    """A label's runs: roman `before`, the italic `letter` with its italic subscript, roman `after`."""
+    runs = [(before, "r", False), (GAP, "g", False)] if before else []
+    runs += [(letter, "i", False)] + ([(sub, "i", True)] if sub else [])
+    return runs + ([(after, "r", False)] if after else [])
+
+
 def _number(value: float, decimals: int) -> str:
     value = value if round(value, decimals) != 0 else 0.0  # never "−0.0"
     return f"{value:.{decimals}f}".replace("-", MINUS)
@@ -259,38 +266,41 @@ def shear_moment_png(span: SpanDiagram) -> bytes:
     yticks = [_yticks(lim, bottom - top) for lim in limits]
     xticks = ticks(0.0, length, 7)
     lefts = [_tick_label_width(pen, t) + _pt(3.5) / SS for t in yticks]
-    right_overhang = pen.text_width(_number(xticks[0][-1], xticks[1]), SIZE) / 2 if abs(xticks[0][-1] - length) < 1e-9 else 0.0
+    last = xticks[0][-1]
+    right_overhang = pen.text_width(_number(last, xticks[1]), SIZE) / 2 if abs(last - length) < 1e-9 else 0.0
     gap = 2.0 * em
     width = (pen.width - 2 * pad - lefts[0] - lefts[1] - gap - 2 * right_overhang) / 2
     x_v = pad + lefts[0]
     x_m = x_v + width + right_overhang + gap + lefts[1]
     panels = []
-    for x0, ys, lim, yt, title in ((x_v, shear, limits[0], yticks[0], [("Shear", "r", False), (GAP, "g", False), ("V", "i", False), (" (kN)", "r", False)]),
-                                   (x_m, moment, limits[1], yticks[1], [("Moment", "r", False), (GAP, "g", False), ("M", "i", False), (" (kN\u00b7m)", "r", False)])):
+    titles = (_symbol("V", after=" (kN)", before="Shear"), _symbol("M", after=" (kN\u00b7m)", before="Moment"))
+    for x0, ys, lim, yt, title in ((x_v, shear, limits[0], yticks[0], titles[0]),
+                                   (x_m, moment, limits[1], yticks[1], titles[1])):
         ax = _Axes(pen, (x0, top, x0 + width, bottom), (0.0, length), lim)
         ax.area(xs, ys)
         ax.curve(xs, ys, 0.9)
         ax.zero()
         ax.frame(xticks, yt)
         pen.text(x0 + width / 2, top - _pt(3) / SS, title, SIZE, "center", "bottom")
-        pen.text(x0 + width / 2, pen.height - pad, [("x", "i", False), (" (m)", "r", False)], SIZE, "center", "bottom")
+        pen.text(x0 + width / 2, pen.height - pad, _symbol("x", after=" (m)"), SIZE, "center", "bottom")
         panels.append(ax)
     ax_v, ax_m = panels
     x, y = ax_v.at(0.0, v0)
-    pen.text(x + _pt(5) / SS, y - up * _pt(2) / SS, [("V", "i", False), ("f", "i", True), (f" = {_number(v0, 1)}", "r", False)],
-             SIZE, "left", "bottom" if up > 0 else "top")
+    pen.text(x + _pt(5) / SS, y - up * _pt(2) / SS, _symbol("V", "f", f" = {_number(v0, 1)}"), SIZE, "left",
+             "bottom" if up > 0 else "top")
     dx, dy = ax_v.at(d, vd)
     lx, ly = ax_v.at(0.08 * length, -0.5 * (v0 or reach))  # unloaded: below the line, clear of V_f
-    box = pen.text(lx, ly, [("V", "i", False), ("fd", "i", True), (f" = {_number(vd, 1)}", "r", False)], SIZE, "left", "center")
+    box = pen.text(lx, ly, _symbol("V", "fd", f" = {_number(vd, 1)}"), SIZE, "left", "center")
     reach_x, reach_y = lx + 0.2 * (box[2] - box[0]), box[1] - _pt(1) / SS if up > 0 else box[3] + _pt(1) / SS
     shorten = _pt(2.5) / SS / max(math.hypot(reach_x - dx, reach_y - dy), 1e-9)
     pen.line([(dx + (reach_x - dx) * shorten, dy + (reach_y - dy) * shorten), (reach_x, reach_y)], 0.5)
     pen.dot(dx, dy, 2.5)
     ex, ey = ax_v.at(length, shear[-1])  # beside the line's end, on the side the line leaves free
-    pen.text(ex - _pt(6) / SS, ey + up * _pt(2) / SS, _number(shear[-1], 1), SIZE, "right", "top" if up > 0 else "bottom")
+    pen.text(ex - _pt(6) / SS, ey + up * _pt(2) / SS, _number(shear[-1], 1), SIZE, "right",
+             "top" if up > 0 else "bottom")
     mx, my = ax_m.at(length / 2, peak)
-    pen.text(mx, my + (_pt(10) if peak >= 0 else -_pt(10)) / SS, [("M", "i", False), ("f", "i", True), (f" = {_number(peak, 1)}", "r", False)],
-             SIZE, "center", "top" if peak >= 0 else "bottom")
+    pen.text(mx, my + (_pt(10) if peak >= 0 else -_pt(10)) / SS, _symbol("M", "f", f" = {_number(peak, 1)}"), SIZE,
+             "center", "top" if peak >= 0 else "bottom")
     return pen.png()
 
 
@@ -324,12 +334,12 @@ def beam_model_png(geometry, loads: dict, x, v_env: tuple, m_env: tuple, d: floa
     right = pen.width - pad - max(0.0, pen.text_width(_number(xticks[0][-1], xticks[1]), SIZE) / 2
                                   - (xlim[1] - xticks[0][-1]) / (xlim[1] - xlim[0]) * (pen.width - left))
     top = pad + title_h
-    pen.text(left, pad, "Model to scale: supports R1\u2026 from the left; line loads in kN/m, point loads in kN (specified)",
-             7.0, "left", "top")
+    title = "Model to scale: supports R1\u2026 from the left; line loads in kN/m, point loads in kN (specified)"
+    pen.text(left, pad, title, 7.0, "left", "top")
     model_box = (left, top, right, top + heights[0])
     _draw_model(pen, model_box, xlim, geometry, loads)
     y = model_box[3] + 0.6 * em
-    names = ([("V", "i", False), (" (kN)", "r", False)], [("M", "i", False), (", sagging + (kN\u00b7m)", "r", False)])
+    names = (_symbol("V", after=" (kN)"), _symbol("M", after=", sagging + (kN\u00b7m)"))
     for k, ((upper, lower, lim), yt, name) in enumerate(zip(envelopes, yticks, names)):
         ax = _Axes(pen, (left, y, right, y + heights[1 + k]), xlim, lim)
         ax.area(xs, upper)
@@ -356,8 +366,8 @@ def beam_model_png(geometry, loads: dict, x, v_env: tuple, m_env: tuple, d: floa
                 pen.text(px, py, f"{_number(values[j], 1)} at {xs[j]:.2f} m", SMALL, side,
                          "bottom" if values[j] >= 0 else "top")
         y += heights[1 + k] + 0.6 * em
-    pen.text((left + right) / 2, pen.height - pad, [("x", "i", False), (" from the left end (m)", "r", False)], SIZE,
-             "center", "bottom")
+    pen.text((left + right) / 2, pen.height - pad, _symbol("x", after=" from the left end (m)"), SIZE, "center",
+             "bottom")
     return pen.png()
 
 
@@ -376,7 +386,8 @@ def _draw_model(pen: _Pen, box, xlim, geometry, loads: dict) -> None:
     for j, s in enumerate(geometry.supports):
         x, y = ax.at(s / 1000, 0.0)
         h = _pt(5) / SS
-        pen.polygon([(x, y + _pt(1.2) / SS), (x - 0.6 * h, y + h + _pt(1.2) / SS), (x + 0.6 * h, y + h + _pt(1.2) / SS)], INK)
+        apex = y + _pt(1.2) / SS  # just below the beam line
+        pen.polygon([(x, apex), (x - 0.6 * h, apex + h), (x + 0.6 * h, apex + h)], INK)
         pen.text(x, y + h + _pt(4) / SS, f"R{j + 1}", SMALL, "center", "top")
     arrows = [ax.at(ld[2] / 1000, 0.0)[0] for t, _ in levels for ld in loads[t] if ld[0] == "point"]
     for t, level in levels:
