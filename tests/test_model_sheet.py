@@ -5,6 +5,8 @@ from __future__ import annotations
 
 from importlib.metadata import version
 
+import pytest
+
 from conftest import write_schedule
 from timbersheets.engineering.loadpath import design_all
 from timbersheets.schedule.read import load_schedule
@@ -55,3 +57,21 @@ def test_simple_span_sheet_gives_the_reactions_a_carrier_takes(tmp_path, data):
     assert r"M_{f} &= w_{f} \cdot \frac{ \left( L \right) ^{ 2 } }{ 8 }" in sheet.checks_section().latex
     assert "for $w_f$: D 3.6, S 9.0 kN" in forces
     assert "R1 = R2 = w L / 2 by load type: D 3.6, S 9.0 kN" in sheet.combinations_section().markdown
+
+
+def test_a_model_sheet_tables_the_own_weight_it_adds_to_d(tmp_path, data):
+    """The loads table of a beam model gives each type's total F; the own weight the tool adds to D has
+    its own row there, as on every other sheet, so the table's D plus that row is the D of 1.4D in
+    section 3. Hand arithmetic: the row is the worked line w_sw times the member's 7.2 m."""
+    import re
+
+    sheet = sheet_for(tmp_path, data, "J-1")
+    loads = sheet.loads_section().latex
+    row = re.search(r"Own weight \(in D\) & \$D\$ & \$([\d.]+)\$", loads)
+    assert row, loads
+    w_sw = sheet.design.context.own_weight.value  # N/mm = kN/m
+    assert float(row.group(1)) == pytest.approx(w_sw * 7.2, rel=5e-3)
+    combos = sheet.combinations_section().latex
+    d_total = float(re.search(r"Dead & \$D\$ & \$([\d.]+)\$", loads).group(1)) + float(row.group(1))
+    first = re.search(r"1\.4D & \$?([\d.]+)", combos)
+    assert first and float(first.group(1)) == pytest.approx(1.4 * d_total, rel=5e-3), combos[:400]

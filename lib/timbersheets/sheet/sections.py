@@ -169,10 +169,17 @@ class Sheet:
         return out + self.own_weight_block(weight) + loads_block(m)
 
     def own_weight_rows(self, effects: list[str]) -> list[list[object]]:
-        weight = self.design.context.own_weight if self.design.context else None
-        if weight is None or weight.effect not in effects:
+        """The own weight's row: what it adds to each effect the table shows, as the design took it (the
+        member with its own weight against the schedule's row): its w on a beam, its P on an axial member,
+        its share of the total F on a beam model."""
+        ctx = self.design.context
+        if ctx is None or ctx.own_weight is None:
             return []
-        cells = [q(weight.value, EFFECT_UNITS[e]) if e == weight.effect else "" for e in effects]
+        with_weight, schedule = effects_of(ctx.member), effects_of(self.m)
+        added = {e: with_weight.get(e, "D") - schedule.get(e, "D") for e in effects}
+        if not any(added.values()):
+            return []
+        cells = [q(v, EFFECT_UNITS[e]) if v else "" for e, v in added.items()]
         return [["Own weight (in D)", Cell.math("D"), *cells, "long term"]]
 
     def own_weight_block(self, weight) -> Block:
