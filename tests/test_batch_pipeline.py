@@ -169,6 +169,43 @@ def test_sheets_restamped_while_another_executes_keep_relative_paths(tmp_path, m
         assert re.search(r"(^|\s)B(\s|,|$)", block), (row["mark"], block)
 
 
+def test_cached_notebooks_copied_while_another_executes_land_in_the_revision(tmp_path, monkeypatch):
+    """The unchanged members' notebooks are copied into the revision in a thread while the changed
+    member executes, and papermill moves the process into the job's folder meanwhile: with `--out`
+    relative, each copy must still land in the revision folder under where the run started (not in
+    an `out/` inside the job's folder), whole, with the member's result record."""
+    import os
+    import time
+
+    from timbersheets.build import sheetjobs
+
+    monkeypatch.chdir(tmp_path)
+    rows = [dict(r) for r in ROWS[:2]]
+    write_job(tmp_path / "job", rows)
+    assert main(["run", "job", "--out", "out", "--jobs", "1"]) in (0, 1)
+    take = sheetjobs._take_notebook
+    moved = []
+
+    def take_once_moved(task, outcome, base=Path()):
+        deadline = time.monotonic() + 20
+        while Path(os.getcwd()) == tmp_path and time.monotonic() < deadline:
+            time.sleep(0.005)
+        moved.append(Path(os.getcwd()) != tmp_path)
+        return take(task, outcome, base)
+
+    monkeypatch.setattr(sheetjobs, "_take_notebook", take_once_moved)
+    rows[1]["P_L"] = "9"
+    write_job(tmp_path / "job", rows)
+    second = run_job(Path("job"), RunOptions(out=Path("out"), progress=False, jobs=1))
+    assert second.executed == ["BA-2"]
+    assert moved and moved[0], "the copy was meant to run while papermill had moved the process"
+    assert not (tmp_path / "job" / "out").exists()
+    kept = tmp_path / "out" / "rev-A" / "notebooks" / "BA-1.ipynb"
+    cached = [f.read_bytes() for f in (tmp_path / "out" / ".cache").glob("*.ipynb")]
+    assert kept.read_bytes() in cached, "the revision's copy is the cached notebook, whole"
+    assert second.sheets["BA-1"].record is not None and second.sheets["BA-1"].error is None
+
+
 def test_a_sheet_that_cannot_be_typeset_leaves_the_batch_standing(tmp_path, monkeypatch):
     import nbformat
 

@@ -156,16 +156,19 @@ def _record_file(notebook: Path) -> Path:
     return notebook.with_name(notebook.name + ".record")
 
 
-def _take_notebook(task: SheetTask, outcome: SheetOutcome) -> None:
+def _take_notebook(task: SheetTask, outcome: SheetOutcome, base: Path = Path()) -> None:
     """The cached notebook into the revision, with its result record: read from the notebook when it
-    was just executed (a few hundred kB of JSON), else from the small record file kept beside it."""
-    copy_atomic(task.cached_notebook, task.notebook)
-    kept = _record_file(task.cached_notebook)
+    was just executed (a few hundred kB of JSON), else from the small record file kept beside it.
+    `base` is the folder relative paths are under (a thread's copy: papermill moves the process's
+    folder while a batch runs)."""
+    notebook, cached = base / task.notebook, base / task.cached_notebook
+    copy_atomic(cached, notebook)
+    kept = _record_file(cached)
     if kept.exists() and not outcome.executed:
         saved = json.loads(kept.read_text(encoding="utf-8"))
         outcome.record, outcome.error = saved["record"], saved["error"]
         return
-    outcome.record, outcome.error = read_record(task.notebook)
+    outcome.record, outcome.error = read_record(notebook)
     if not outcome.error:
         write_atomic(kept, json.dumps({"record": outcome.record, "error": outcome.error}))
 
@@ -293,14 +296,17 @@ def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool,
     # kernel while its batch executes
     early = _stale_stamps(cached, outcomes)
     stamping = _stamp_ahead(early, jobs) if early else None
-    for task in cached:
-        _take_notebook(task, outcomes[task.mark])
-        step(task.mark)
+    # and the cached notebooks are copied into the revision meanwhile, in another (100 files with
+    # their fsyncs: about half a second, while this process mostly waits on its kernel)
+    taking = _take_ahead(cached, outcomes)
     if jobs == 1 or total <= 1:
         while pending:
             collect(_safe_batch(pending.popleft()))
     else:
         _share_batches(pending, min(jobs - 1, total - 1), collect)
+    taking.result()
+    for task in cached:
+        step(task.mark)
     bar.close()
     started = time.monotonic()  # stamp: what is left of the stamping once the batches are done
     if stamping is not None:
@@ -373,6 +379,17 @@ def _stamp_ahead(stamps: list[Stamp], jobs: int):
 
     pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="stamps")
     future = pool.submit(stamp_sheets, stamps, max(1, jobs - 1))  # the batches keep the other CPUs busy
+    pool.shutdown(wait=False)
+    return future
+
+
+def _take_ahead(tasks: list[SheetTask], outcomes: dict[str, SheetOutcome]):
+    """_take_notebook for every one of `tasks`, in a thread; its future re-raises what stopped it."""
+    from concurrent.futures import ThreadPoolExecutor
+
+    here = Path.cwd()  # relative paths (--out given relative) are under this folder, wherever papermill goes
+    pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="notebooks")
+    future = pool.submit(lambda: [_take_notebook(t, outcomes[t.mark], here) for t in tasks])
     pool.shutdown(wait=False)
     return future
 
