@@ -35,7 +35,7 @@ from ..constants import RESULT_MIME
 from ..fileio import copy_atomic, file_hash, library_fingerprint, write_atomic
 from ..lifetime import die_with_parent
 from .batch import Body, Stamp, fixed_fields, stamp_sheets, stamped_fields, typeset_bodies, warm_sheets
-from .notebooks import execute, start_kernel, templates_dir, to_html
+from .notebooks import execute, latex_ahead, start_kernel, templates_dir, to_html
 
 BATCH = 20  # members per xelatex run at most: the ~0.7 s of preamble and fonts spread over 20 sheets
 STAMP_LAYOUTS = ("stamp.tex.j2", "stampfields.tex.j2")  # a stamped sheet's key covers both
@@ -183,6 +183,8 @@ def run_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, flo
     if will_typeset(tasks):
         warm_sheets()  # xelatex reads the preamble while the notebooks execute
     started = time.monotonic()
+    executing = [t for t in tasks if t.force or not t.cached_notebook.exists()]
+    exporter = latex_ahead() if executing and any(t.fmt == "pdf" and t.sheet is not None for t in tasks) else None
     for task in tasks:
         outcome = outcomes[task.mark]
         try:
@@ -206,6 +208,8 @@ def run_batch(tasks: list[SheetTask]) -> tuple[list[SheetOutcome], dict[str, flo
             outcomes[task.mark].converted = True
         times["typeset"] = time.monotonic() - started
         return list(outcomes.values()), times
+    if exporter is not None:
+        exporter.join()
     # each body's stamp is typeset in the same run; the main process stamps only what changed since
     bodies = [Body(t.mark, t.notebook, fixed_fields(t.titleblock), t.cached_body, stamped_fields(t.titleblock),
                    t.cached_sheet) for t in ready if _needs_body(t) or outcomes[t.mark].executed]
