@@ -23,7 +23,7 @@ WORST = 20  # members named in a summary
 MAX_TITLE = 180  # characters of the title drawn: two lines of the figure's width
 DPI = 150
 WIDTH = round(6.3 * DPI)  # px: 6.3 in, the width of a page's text
-GREY, EDGE, HATCH_STEP = (191, 191, 191), (38, 38, 38), 9  # bar fill, bar edge, px between hatch lines
+GREY, EDGE, HATCH_STEP = 191, 38, 9  # bar fill, bar edge (grey levels), px between hatch lines
 
 
 def _px(points: float) -> int:
@@ -56,7 +56,7 @@ def utilization_chart(members: list[dict[str, Any]], title: str) -> bytes:
     title = title if len(title) <= MAX_TITLE else title[:MAX_TITLE - 3].rstrip() + "..."
     detail = len(rows) <= DETAIL_LIMIT
     height = round((min(max(1.6, 0.22 * len(rows) + 0.9), 9.0) if detail else 9.0) * DPI)
-    image = Image.new("RGB", (WIDTH, height), "white")
+    image = Image.new("L", (WIDTH, height), "white")  # grey levels only: a third of an RGB PNG to make
     draw = ImageDraw.Draw(image)
     top = 12
     for line in textwrap.wrap(title, 90) or [""]:
@@ -104,7 +104,7 @@ def _bar(image, box: tuple[float, float, float, float], hatched: bool) -> None:
     x0, y0, x1, y1 = (round(v) for v in box)
     if x1 - x0 < 1 or y1 - y0 < 1:
         return
-    tile = Image.new("RGB", (x1 - x0 + 1, y1 - y0 + 1), "white" if hatched else GREY)
+    tile = Image.new("L", (x1 - x0 + 1, y1 - y0 + 1), "white" if hatched else GREY)
     pen = ImageDraw.Draw(tile)
     w, h = tile.size
     if hatched:
@@ -191,7 +191,7 @@ def _vertical_text(image, text: str, at: tuple[float, float]) -> None:
 
     font = _font(8)
     w = round(ImageDraw.Draw(image).textlength(text, font=font)) + 4
-    tile = Image.new("RGB", (w, _px(8) + 6), "white")
+    tile = Image.new("L", (w, _px(8) + 6), "white")
     ImageDraw.Draw(tile).text((2, 1), text, fill="black", font=font)
     tile = tile.rotate(90, expand=True)
     image.paste(tile, (round(at[0]), round(at[1] - tile.height / 2)))
