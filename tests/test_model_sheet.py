@@ -75,3 +75,21 @@ def test_a_model_sheet_tables_the_own_weight_it_adds_to_d(tmp_path, data):
     d_total = float(re.search(r"Dead & \$D\$ & \$([\d.]+)\$", loads).group(1)) + float(row.group(1))
     first = re.search(r"1\.4D & \$?([\d.]+)", combos)
     assert first and float(first.group(1)) == pytest.approx(1.4 * d_total, rel=5e-3), combos[:400]
+
+
+def test_a_model_sheet_works_the_own_weight_s_row_out(tmp_path, data):
+    """The own-weight row of a beam model's loads table (an F, kN) is worked on the sheet from the line
+    load worked above it: F_sw = w_sw L, L the model's whole length (J-1: spans 3.6 + 3.6 m = 7.2 m),
+    so a checker reproduces the row with a calculator (common practice: a line load's total is w L)."""
+    import re
+
+    sheet = sheet_for(tmp_path, data, "J-1")
+    loads = sheet.loads_section().latex
+    worked = re.search(r"F_\{sw\} &= w_\{sw\} \\cdot L\s*= ([\d.]+)\\ \\mathrm\{kN/m\} \\cdot ([\d.]+)\\ "
+                       r"\\mathrm\{mm\} &= ([\d.]+)\\ \\mathrm\{kN\}", loads)
+    assert worked, loads
+    w_sw, length, total = (float(g) for g in worked.groups())
+    assert length == pytest.approx(7200.0)
+    assert total == pytest.approx(w_sw * length / 1000, rel=5e-3)  # kN/m x m
+    row = re.search(r"Own weight \(in D\) & \$D\$ & \$([\d.]+)\$", loads)
+    assert float(row.group(1)) == pytest.approx(total, rel=5e-3)

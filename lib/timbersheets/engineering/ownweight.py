@@ -37,6 +37,12 @@ def own_weight_total(w_sw, L):
     return locals()
 
 
+@calc(units={"w_sw": "N/mm", "L": "mm", "F_sw": "N"}, clause="own weight (common practice)")
+def own_weight_on_model(w_sw, L):
+    F_sw = w_sw * L
+    return locals()
+
+
 @dataclass(frozen=True)
 class OwnWeight:
     """The own weight the tool adds: as a line load (effect 'w') or axial load at the base ('P')."""

@@ -166,7 +166,7 @@ class Sheet:
         from .modelsheet import loads_block
 
         out = heading("Specified loads") + intro + table(Table(header, rows, "ll" + "r" * len(effects) + "l", units))
-        return out + self.own_weight_block(weight) + loads_block(m)
+        return out + self.own_weight_block(weight, "F" in effects) + loads_block(m)
 
     def own_weight_rows(self, effects: list[str]) -> list[list[object]]:
         """The own weight's row: what it adds to each effect the table shows, as the design took it (the
@@ -182,10 +182,12 @@ class Sheet:
         cells = [q(v, EFFECT_UNITS[e]) if v else "" for e, v in added.items()]
         return [["Own weight (in D)", Cell.math("D"), *cells, "long term"]]
 
-    def own_weight_block(self, weight) -> Block:
+    def own_weight_block(self, weight, totalled: bool = False) -> Block:
+        """The own weight worked out: its line load, then what the loads table gives of it (an axial
+        member's P at the base; with `totalled`, a beam model's F: the line over the model's length)."""
         if weight is None:
             return Block("", "")
-        from ..engineering.ownweight import own_weight_line, own_weight_total
+        from ..engineering.ownweight import own_weight_line, own_weight_on_model, own_weight_total
 
         d = weight.density
         where = ("a uniform line load on the span" if weight.effect == "w" else
@@ -197,6 +199,12 @@ class Sheet:
         out += math_block(own_weight_line.latex(weight.line))
         if weight.total is not None:
             out += math_block(own_weight_total.latex(weight.total))
+        elif totalled and weight.effect == "w":
+            from ..engineering.beamdesign import geometry_of
+
+            length = geometry_of(self.design.context.member).length
+            out += para("On the whole model, ends and overhangs included ($L$), the own weight's row of the table:")
+            out += math_block(own_weight_on_model.latex(own_weight_on_model(w_sw=weight.value, L=length)))
         return out
 
     # 3 -------------------------------------------------------------------------
