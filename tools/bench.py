@@ -11,7 +11,11 @@ whole process tree (main process, workers, kernels, xelatex):
   ``jupyter nbconvert --to pdf``, one member after another);
 - a 2,000-member ``--no-pdf`` run, and the full run projected to 2,000 members;
 - the cold package's floor: the CPU a notebook of empty cells takes through papermill, nbclient and
-  the reused kernel, plus xelatex's time a member, over the CPUs.
+  the reused kernel, plus xelatex's time a member, over the CPUs;
+- a rerun's floor: the program's imports and a kernel's boot (no notebook runs sooner), and the
+  imports of papermill, nbconvert and jupyter_client the main process needs meanwhile.
+
+Each scenario's phases end with the CPU seconds of the command's processes (that it waited for).
 
 The commands run with Python's default of keeping compiled modules (PYTHONDONTWRITEBYTECODE
 unset), as on a user's machine.
@@ -283,6 +287,56 @@ def machinery_floor(root: Path, count: int = FLOOR_NOTEBOOKS) -> tuple[float, fl
     return (k1 - k0) / count, (m1 - m0) / count, len(code)
 
 
+def children_cpu() -> float:
+    """CPU seconds of this process's ended children and what they waited for (a command's main process,
+    its workers and xelatex runs; a kernel it killed at exit is not waited for)."""
+    import resource
+
+    used = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return used.ru_utime + used.ru_stime
+
+
+def _cpu_of(code: str) -> float:
+    """CPU seconds `code` takes in a fresh interpreter (compiled modules kept, as a user's machine keeps them)."""
+    env = {k: v for k, v in os.environ.items() if k != "PYTHONDONTWRITEBYTECODE"}
+    probe = f"import time\nstart = time.process_time()\n{code}\nprint(time.process_time() - start)"
+    for _ in range(2):  # the first may write the compiled modules
+        done = subprocess.run([str(BIN / "python"), "-c", probe], capture_output=True, text=True, env=env, check=True)
+    return float(done.stdout.split()[-1])
+
+
+def kernel_boot(root: Path) -> tuple[float, float]:
+    """Wall seconds from starting a sheet kernel to its being ready for a member (build.notebooks), and
+    the kernel process's own CPU seconds in that time."""
+    import psutil
+
+    from timbersheets.build import notebooks
+
+    root.mkdir(parents=True, exist_ok=True)
+    os.environ.pop("PYTHONDONTWRITEBYTECODE", None)  # the kernel keeps compiled modules, as the runs' did
+    start = time.monotonic()
+    notebooks.start_kernel(root)
+    notebooks._Kernel.get("python3", str(root))
+    took = time.monotonic() - start
+    kernel = psutil.Process(notebooks._Kernel.km.provisioner.process.pid)
+    cpu = sum(sum(p.cpu_times()[:2]) for p in [kernel, *kernel.children(recursive=True)])
+    notebooks._Kernel.shutdown()
+    return took, cpu
+
+
+def rerun_floor_lines(root: Path) -> list[str]:
+    """What a rerun with one notebook to run pays before its own work: the imports of the tools the
+    design card names (in the main process), the program's own imports, and a kernel's boot (its own
+    process, on another CPU, while the main process designs)."""
+    tools = _cpu_of("import papermill, nbconvert, jupyter_client")
+    own = _cpu_of("import timbersheets.cli, timbersheets.run.runner")
+    wall, cpu = kernel_boot(root)
+    return [f"  floor of a rerun with one notebook to run: the program's imports {own:.2f} s CPU, then a kernel's "
+            f"boot {wall:.2f} s (launch to ready; {cpu:.2f} s CPU of its own): no notebook runs before "
+            f"{own + wall:.1f} s; meanwhile the main process imports papermill, nbconvert and jupyter_client "
+            f"({tools:.2f} s CPU) and designs the members. The sheet, its typesetting and the package come after"]
+
+
 def floor_lines(root: Path, members: int, cold_phases: str) -> list[str]:
     """The cold package's floor on this machine: the machinery's CPU a notebook and the typesetting a
     member (from the cold run's run.log), over the CPUs; what the engineering, design and package add
@@ -320,8 +374,10 @@ def scenarios(root: Path, lib: Path, members: int) -> tuple[list[tuple[str, floa
     rows = []
 
     def step(name: str, rev: str, before: float = 0.0) -> None:
+        used = children_cpu()
         took, peak = timed(run, lib)
-        rows.append((name, before + took, peak, phase_line(out, rev)))
+        cpu = children_cpu() - used
+        rows.append((name, before + took, peak, f"{phase_line(out, rev)}; CPU {cpu:.1f} s"))
         print(f"  ... {lib.parent.name}: {name} {before + took:.1f} s", file=sys.stderr, flush=True)
 
     step("cold package", "A")
@@ -401,7 +457,7 @@ def main() -> int:
             target = TARGETS.get(name)
             line += f"   <= {target:.0f} s: {'met' if took <= target else 'NOT met'}" if target else ""
             print(line)
-        print("  phases (run.log; sheet work is summed over the workers):")
+        print("  phases (run.log; sheet work is summed over the workers; CPU: the command's processes it waited for):")
         for name, _, _, phases in mine:
             if phases:
                 print(f"    {name:<28} {phases}")
@@ -416,6 +472,7 @@ def main() -> int:
         print("\n".join(beam_times()))
         cold = mine[0][1]
         print("\n".join(floor_lines(root / "floor", args.members, mine[0][3])))
+        print("\n".join(rerun_floor_lines(root / "rerun-floor")))
         if args.naive:
             naive, n = naive_loop(job, root / "naive", args.naive)
             per = naive / n
