@@ -206,6 +206,38 @@ def test_cached_notebooks_copied_while_another_executes_land_in_the_revision(tmp
     assert second.sheets["BA-1"].record is not None and second.sheets["BA-1"].error is None
 
 
+def test_an_interrupted_run_leaves_no_staging_folder_behind_its_copies(tmp_path, monkeypatch):
+    """The cached notebooks are still being copied into the staging folder when the changed member's
+    batch is interrupted (Ctrl-C): the run removes its staging folder, and no copy may recreate it
+    afterwards (an orphan `.rev-A.staging-<pid>` beside the revisions)."""
+    import time
+
+    from timbersheets.build import sheetjobs
+
+    rows = [dict(r) for r in ROWS[:2]]
+    job = write_job(tmp_path / "job", rows)
+    out = tmp_path / "out"
+    assert main(["run", str(job), "--out", str(out), "--jobs", "1"]) in (0, 1)
+    take = sheetjobs._take_notebook
+
+    def slow_take(task, outcome, base=Path()):
+        time.sleep(1.0)
+        return take(task, outcome, base)
+
+    def interrupted(tasks):
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(sheetjobs, "_take_notebook", slow_take)
+    monkeypatch.setattr(sheetjobs, "_safe_batch", interrupted)
+    rows[1]["P_L"] = "9"
+    write_job(tmp_path / "job", rows)
+    with pytest.raises(KeyboardInterrupt):
+        run_job(job, RunOptions(out=out, progress=False, jobs=1))
+    time.sleep(1.5)  # what a copy still under way would have written by now
+    assert not list(out.glob(".rev-*")), list(out.glob(".rev-*"))
+    assert (out / "rev-A" / "notebooks" / "BA-1.ipynb").exists()  # the revision as it was
+
+
 def test_a_sheet_that_cannot_be_typeset_leaves_the_batch_standing(tmp_path, monkeypatch):
     import nbformat
 

@@ -25,7 +25,7 @@ import time
 import queue
 import traceback
 from collections import deque
-from concurrent.futures import ProcessPoolExecutor
+from concurrent.futures import ProcessPoolExecutor, wait
 from dataclasses import dataclass, field
 from functools import cached_property
 from pathlib import Path
@@ -303,11 +303,14 @@ def run_sheets(tasks: list[SheetTask], jobs: int | None, progress: bool,
     # and the cached notebooks are copied into the revision meanwhile, in another (100 files with
     # their fsyncs: about half a second, while this process mostly waits on its kernel)
     taking = _take_ahead(cached, outcomes)
-    if jobs == 1 or total <= 1:
-        while pending:
-            collect(_safe_batch(pending.popleft()))
-    else:
-        _share_batches(pending, min(jobs - 1, total - 1), collect)
+    try:
+        if jobs == 1 or total <= 1:
+            while pending:
+                collect(_safe_batch(pending.popleft()))
+        else:
+            _share_batches(pending, min(jobs - 1, total - 1), collect)
+    finally:  # an interrupted run removes its staging folder: the copies must have stopped by then
+        wait([taking])
     taking.result()
     for task in cached:
         step(task.mark)
