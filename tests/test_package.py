@@ -142,3 +142,26 @@ def test_a_forecast_that_a_sheet_proves_wrong_is_not_used(tmp_path, monkeypatch)
     lines = index.splitlines()
     at = next(i for i, ln in enumerate(lines) if ln.lstrip().startswith("FB-2"))
     assert " NOT" in lines[at] and "DESIGNED" in lines[at + 1], lines[at:at + 2]  # the verdict, in two lines
+
+
+@pytest.mark.pipeline
+def test_the_rerun_after_a_first_run_takes_the_package_from_the_cache(tmp_path, monkeypatch):
+    """The demo's front matter is 4 pages, not a first run's guess of 2: its package must still be
+    found by the next run with nothing changed (it was kept under the first guess's key, and the
+    rerun, guessing 4 from the revision folder, built all of it again: 1.2 s of 100 members)."""
+    from conftest import DEMO
+    from timbersheets.build import package
+
+    job = tmp_path / "kestrel-cove-boathouse"
+    shutil.copytree(DEMO, job)
+    out = tmp_path / "out"
+    first = run_job(job, RunOptions(out=out, progress=False))
+    assert first.package is not None
+    before = (out / "rev-A" / "package.pdf").read_bytes()
+    assert (out / "rev-A" / package.FRONT_HINT).read_text() != "2"  # the case this test is about
+    laid = []
+    monkeypatch.setattr(package, "prepare", lambda page: laid.append(page))
+    again = run_job(job, RunOptions(out=out, progress=False))
+    assert again.package is not None and not again.executed
+    assert not laid, "the package was built again, page by page"
+    assert (out / "rev-A" / "package.pdf").read_bytes() == before
