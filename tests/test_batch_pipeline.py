@@ -132,29 +132,41 @@ def test_a_new_revision_with_one_change_typesets_one_body_and_restamps_all(batch
     assert re.search(r"Live \(use and occupancy\)\s+L\s+9\.0\s", body)  # the new body, not the old
 
 
+def relative_first_run(tmp_path, monkeypatch) -> list[dict[str, str]]:
+    """Two members run once from `tmp_path` with `--out out` given relative; their rows."""
+    monkeypatch.chdir(tmp_path)
+    rows = [dict(r) for r in ROWS[:2]]
+    write_job(tmp_path / "job", rows)
+    assert main(["run", "job", "--out", "out", "--jobs", "1"]) in (0, 1)
+    return rows
+
+
+def wait_until_moved(start: Path) -> bool:
+    """Wait (20 s at most) until papermill has moved the process out of `start`; whether it did."""
+    import os
+    import time
+
+    deadline = time.monotonic() + 20
+    while Path(os.getcwd()) == start and time.monotonic() < deadline:
+        time.sleep(0.005)
+    return Path(os.getcwd()) != start
+
+
 def test_sheets_restamped_while_another_executes_keep_relative_paths(tmp_path, monkeypatch):
     """A new revision stamps the unchanged sheets in a thread while the changed member executes, and
     papermill changes the process's folder while it executes: with `--out` given relative, a stamp
     once opened a cached body by a relative path in the wrong folder and the run stopped (seen when
     the execution outlasted the stamps' typesetting). The stamps handed to the thread name their
     files by absolute paths, and this run stamps while the execution is in the job's folder."""
-    import os
-    import time
-
     from timbersheets.build import sheetjobs
 
-    monkeypatch.chdir(tmp_path)
-    rows = [dict(r) for r in ROWS[:2]]
-    write_job(tmp_path / "job", rows)
-    assert main(["run", "job", "--out", "out", "--jobs", "1"]) in (0, 1)
+    rows = relative_first_run(tmp_path, monkeypatch)
     stamp = sheetjobs.stamp_sheets
     handed = []
 
     def stamp_once_moved(stamps, runs=1):
         handed.extend((s.body, s.pdf) for s in stamps)
-        deadline = time.monotonic() + 20
-        while Path(os.getcwd()) == tmp_path and time.monotonic() < deadline:
-            time.sleep(0.005)
+        wait_until_moved(tmp_path)
         return stamp(stamps, runs)
 
     monkeypatch.setattr(sheetjobs, "stamp_sheets", stamp_once_moved)
@@ -174,23 +186,14 @@ def test_cached_notebooks_copied_while_another_executes_land_in_the_revision(tmp
     member executes, and papermill moves the process into the job's folder meanwhile: with `--out`
     relative, each copy must still land in the revision folder under where the run started (not in
     an `out/` inside the job's folder), whole, with the member's result record."""
-    import os
-    import time
-
     from timbersheets.build import sheetjobs
 
-    monkeypatch.chdir(tmp_path)
-    rows = [dict(r) for r in ROWS[:2]]
-    write_job(tmp_path / "job", rows)
-    assert main(["run", "job", "--out", "out", "--jobs", "1"]) in (0, 1)
+    rows = relative_first_run(tmp_path, monkeypatch)
     take = sheetjobs._take_notebook
     moved = []
 
     def take_once_moved(task, outcome, base=Path()):
-        deadline = time.monotonic() + 20
-        while Path(os.getcwd()) == tmp_path and time.monotonic() < deadline:
-            time.sleep(0.005)
-        moved.append(Path(os.getcwd()) != tmp_path)
+        moved.append(wait_until_moved(tmp_path))
         return take(task, outcome, base)
 
     monkeypatch.setattr(sheetjobs, "_take_notebook", take_once_moved)
