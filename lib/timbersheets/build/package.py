@@ -274,6 +274,7 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
     chart_path = chart.resolve().as_posix() if chart.exists() else ""
     front_pages = _first_guess(hint)
     tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
+    guessed_tex = tex
     cached = cache / f"{_package_key(tex, outdir, rows)}.package.pdf" if cache is not None else None
     if cached is not None and cached.exists():
         copy_atomic(cached, target)
@@ -342,6 +343,7 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
         # kept under the key of the front matter as it settled: the next run's first guess is that
         # length (FRONT_HINT), so the same parts find it (under the first guess's key, a first run
         # whose front matter was not 2 pages long missed the cache on its next rerun: 1.2 s of 100 members)
-        copy_atomic(target, cache / f"{_package_key(tex, outdir, rows)}.package.pdf")
+        settled = cached if tex == guessed_tex else cache / f"{_package_key(tex, outdir, rows)}.package.pdf"
+        copy_atomic(target, settled)
     return target
 
