@@ -20,6 +20,21 @@ SPANS = [(7200, 30.4), (6000, 5.0), (3000, -2.0), (12000, 80.0), (4200, 0.8), (2
          (1500, -900.0), (30000, 0.01), (4000, 16.0), (10000, 6.4)]
 
 
+@pytest.fixture(autouse=True, params=["Latin Modern", "DejaVu Serif"])
+def face(request, monkeypatch):
+    """Every picture test runs in both faces the pictures use: Latin Modern where TeX's copy is found,
+    DejaVu Serif (wider) where it is not, as on a machine that has not installed TeX yet."""
+    if request.param == "DejaVu Serif":
+        monkeypatch.setattr(diagrams, "LM_FOLDERS", ())
+    elif diagrams._face_path("r") is None or "lmroman" not in diagrams._face_path("r"):
+        pytest.skip("Latin Modern is not installed here (TeX's fonts-lmodern)")
+    diagrams._face_path.cache_clear()
+    diagrams._font.cache_clear()
+    yield request.param
+    diagrams._face_path.cache_clear()
+    diagrams._font.cache_clear()
+
+
 def pixels(png: bytes) -> np.ndarray:
     return np.asarray(Image.open(io.BytesIO(png)).convert("L"), dtype=int)
 
@@ -92,17 +107,18 @@ def test_nothing_runs_off_the_picture(length, w):
 
 @pytest.mark.parametrize("length, w", [(3400, 2.65), (7200, 30.4), (5000, -40.0)])
 def test_the_moment_is_drawn_to_scale(length, w):
-    """M(0.35 L) / M(0.15 L) = (0.35 x 0.65) / (0.15 x 0.85) = 1.784 (beam formula above); uplift draws it
-    downwards alike. Columns clear of the M_f label and the title."""
+    """M(0.30 L) / M(0.15 L) = (0.30 x 0.70) / (0.15 x 0.85) = 1.647 (beam formula above); uplift draws it
+    downwards alike. Columns clear of the M_f label and the title in either face (DejaVu Serif's label,
+    used where TeX is not installed, is wider and reaches in to 0.35 L)."""
     image = pixels(diagrams.shear_moment_png(span_diagram(w, length, 240.0)))
     right = image[:, image.shape[1] // 2:]
     _, first, last = panel_extent(right)
     lines = [r for r in range(right.shape[0]) if np.sum(right[r, first:last] < 110) > 0.9 * (last - first)]
     zero, step = (max(lines), -1) if w > 0 else (min(lines), 1)  # sagging: the bottom edge is the zero line
     at = lambda k: right[:, round(first + k * (last - first))]  # noqa: E731
-    near, far = curve_height(at(0.15), zero, step), curve_height(at(0.35), zero, step)
+    near, far = curve_height(at(0.15), zero, step), curve_height(at(0.30), zero, step)
     assert near > 30
-    assert far / near == pytest.approx(1.784, rel=0.02)
+    assert far / near == pytest.approx(1.647, rel=0.02)
 
 
 def test_the_shear_changes_sign_at_midspan_and_is_drawn_to_scale():
