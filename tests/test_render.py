@@ -98,21 +98,54 @@ def test_rendered_numbers(tmp_path, data):
 
 
 def test_remembered_line_parses_render_the_same():
-    """Parsing each source line once per process (calc._remember_parsed_lines) changes nothing on
-    the sheet: every calc, rendered twice with different values, gives handcalcs' own output."""
+    """Parsing each source line once per process and the shallow copy in get_function_name
+    (calc._remember_parsed_lines) change nothing on the sheet: every calc, rendered twice with
+    different values, gives handcalcs' own output."""
     from handcalcs import handcalcs
 
     c_first = [c.latex(sample_inputs(c)) for c in CALCS]  # the remembered parser is in place now
-    remembered = handcalcs.expr_parser
-    assert remembered.remembers_lines
+    remembered, named = handcalcs.expr_parser, handcalcs.get_function_name
+    assert remembered.remembers_lines and named.original is not named
     try:
-        handcalcs.expr_parser = remembered.original
+        handcalcs.expr_parser, handcalcs.get_function_name = remembered.original, named.original
         own = [c.latex(sample_inputs(c)) for c in CALCS]
         twice = [c.latex({k: v * 2 for k, v in sample_inputs(c).items()}) for c in CALCS]
     finally:
-        handcalcs.expr_parser = remembered
+        handcalcs.expr_parser, handcalcs.get_function_name = remembered, named
     assert c_first == own
     assert [c.latex({k: v * 2 for k, v in sample_inputs(c).items()}) for c in CALCS] == twice
+
+
+def test_the_shallow_function_name_lookup_answers_as_handcalcs_own():
+    """calc._remember_parsed_lines replaces handcalcs' get_function_name (which deep-copies its
+    deque only to drop the first item) with a shallow copy: the same answer for every deque of
+    lines with functions, nested or not, and for deques built to reach each of its branches."""
+    from collections import deque
+
+    from handcalcs import handcalcs
+
+    CALCS[0].latex(sample_inputs(CALCS[0]))  # puts the replacement in place
+    shallow = handcalcs.get_function_name
+    own = shallow.original
+    lines = ["y = -sqrt(x)", "y = a*(-log10(b/c))", "y = max(1.0 - 0.5*log10(a/b), 0.65)",
+             "y = (sqrt(a) + 1)**2", "y = -min(a, b) * exp(c)", *[c.source for c in CALCS]]
+    seen = 0
+
+    def each(d):
+        nonlocal seen
+        if isinstance(d, deque):
+            if d:
+                assert shallow(d) == own(d), d
+                seen += 1
+            for item in d:
+                each(item)
+
+    for source in lines:
+        for line in source.splitlines():
+            each(handcalcs.expr_parser.original(line))
+    built = [deque(["\\left(", "sqrt", "x"]), deque(["sqrt", deque(["a", "+", "b"])]), deque(["a", "+", "b"])]
+    assert [shallow(d) for d in built] == [own(d) for d in built] == ["sqrt", "sqrt", ""]
+    assert seen > 100  # the walk reached the nested deques (188 when written)
 
 
 def test_weak_axis_after_the_strong_gives_numbers_and_results_only():

@@ -22,6 +22,7 @@ import inspect
 import math
 import re
 import textwrap
+from collections import deque
 from collections.abc import Callable, Mapping
 from functools import cached_property
 from typing import Any
@@ -134,12 +135,13 @@ def _remember_parsed_lines() -> None:
     handcalcs' ``expr_parser(line)`` builds its pyparsing grammar anew on every call and is
     called several times per line: about 60 % of a sheet's execution. A line's parse depends
     only on its text (the values are substituted later), and our equations are the same few
-    hundred lines on every sheet, so the parse is kept by line and a deep copy handed out (the
-    callers consume the deques they get). ``tests/test_render.py`` checks that the rendering
-    is the same with and without it.
+    hundred lines on every sheet, so the parse is kept by line and a copy handed out (the
+    callers consume the deques they get): nested deques copied, their strings shared, as
+    ``copy.deepcopy`` would give but without its bookkeeping. handcalcs' ``get_function_name``
+    deep-copies every deque it is asked about only to drop its first item; a shallow copy does
+    that alike (what it returns is a string either way). ``tests/test_render.py`` checks that the
+    rendering is the same with and without both.
     """
-    import copy
-
     from handcalcs import handcalcs
 
     global _parses_remembered
@@ -152,11 +154,43 @@ def _remember_parsed_lines() -> None:
     def expr_parser(line: str):
         if line not in parsed:
             parsed[line] = parse(line)
-        return copy.deepcopy(parsed[line])
+        return _copy_parsed(parsed[line])
 
     expr_parser.remembers_lines = True  # type: ignore[attr-defined]
     expr_parser.original = parse  # type: ignore[attr-defined]
     handcalcs.expr_parser = expr_parser
+
+    is_function = handcalcs.test_for_function_name
+    original = handcalcs.get_function_name
+
+    def get_function_name(d: deque) -> str:
+        rest = deque(d)
+        rest.popleft()
+        if is_function(d):
+            return d[0]
+        if is_function(rest):
+            return rest[0]
+        return ""
+
+    get_function_name.original = original  # type: ignore[attr-defined]
+    handcalcs.get_function_name = get_function_name
+
+
+_SHARED = (str, int, float, bool, type(None))
+
+
+def _copy_parsed(item: Any) -> Any:
+    """A parsed line's deques copied, as deep as they nest; strings and numbers shared (they cannot
+    change); anything else deep-copied."""
+    if type(item) is deque:
+        return deque(_copy_parsed(e) for e in item)
+    if type(item) is list:
+        return [_copy_parsed(e) for e in item]
+    if type(item) in _SHARED:
+        return item
+    import copy
+
+    return copy.deepcopy(item)
 
 
 def calc(units: Mapping[str, str], clause: str = "") -> Callable[[Callable[..., dict]], Calc]:
