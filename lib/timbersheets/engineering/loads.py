@@ -67,7 +67,15 @@ class Combination:
 
 
 def combinations(data: DataSet) -> list[Combination]:
-    """All ULS combinations of the data file, in its order."""
+    """All ULS combinations of the data file, in its order (read once per data set: a sizing search
+    applies them to every section it tries)."""
+    memo = data.__dict__.get("_combinations")
+    if memo is None:
+        memo = data.__dict__["_combinations"] = _read_combinations(data)
+    return list(memo)
+
+
+def _read_combinations(data: DataSet) -> list[Combination]:
     out = []
     file = data.files["nbc2020_uls_combinations.csv"]
     for row in data.combination_rows:
@@ -192,16 +200,17 @@ def storage_companions(comb: Combination) -> Combination:
     return replace(comb, factors={**comb.factors, "L": high})
 
 
-def _senses(comb: Combination, effects: Effects, both_senses: bool) -> list[Combination]:
-    """The combination as the schedule gives it, and reversed when it carries wind or earthquake."""
-    carries = any(comb.factors[t] and effects.get(e, t) for t in REVERSIBLE for e in ALL_EFFECTS)
+def _senses(comb: Combination, carried: set[str], both_senses: bool) -> list[Combination]:
+    """The combination as the schedule gives it, and reversed when it carries wind or earthquake
+    (a load type in `carried`, those some effect of the member has)."""
+    carries = any(comb.factors[t] for t in REVERSIBLE if t in carried)
     return [comb, comb.reversed()] if both_senses and carries else [comb]
 
 
-def _opposes_dead(comb: Combination, effects: Effects) -> bool:
-    """Some load of this combination (in its sense) acts against the dead load (NBC 4.1.3.2.(5))."""
-    return any(effects.get(e, "D") * comb.factors[t] * effects.get(e, t) < 0 for e in ALL_EFFECTS
-               for t in LOAD_TYPES[1:])
+def _opposes_dead(comb: Combination, values: dict[str, dict[str, float]]) -> bool:
+    """Some load of this combination (in its sense) acts against the dead load (NBC 4.1.3.2.(5));
+    `values` the member's effects that are not all zero, by effect and load type."""
+    return any(x["D"] * comb.factors[t] * x[t] < 0 for x in values.values() for t in LOAD_TYPES[1:])
 
 
 def apply_combinations(effects: Effects, data: DataSet, used: list[Datum],
@@ -223,14 +232,20 @@ def apply_combinations(effects: Effects, data: DataSet, used: list[Datum],
     cases: list[LoadCase] = []
     seen: set[tuple] = set()
     resists = effects.dead_resists()
+    # the effects that are not all zero, each load type's value (a sizing search comes here per section)
+    nonzero = {e: {t: effects.get(e, t) for t in LOAD_TYPES} for e in ALL_EFFECTS}
+    nonzero = {e: x for e, x in nonzero.items() if any(x.values())}
+    carried = {t for t in LOAD_TYPES if any(x[t] for x in nonzero.values())}
     table = [storage_companions(c) for c in combinations(data)] if storage else combinations(data)
-    senses = [c for comb in table for c in _senses(comb, effects, both_senses)]
+    senses = [c for comb in table for c in _senses(comb, carried, both_senses)]
     for comb in senses:
-        if comb.principal != "D" and not any(effects.get(e, comb.principal) for e in ALL_EFFECTS):
+        if comb.principal != "D" and comb.principal not in carried:
             continue
-        if comb.reduced_dead and not (resists or least_tension or _opposes_dead(comb, effects)):
+        if comb.reduced_dead and not (resists or least_tension or _opposes_dead(comb, nonzero)):
             continue
-        factored = {e: sum(comb.factors[t] * effects.get(e, t) for t in LOAD_TYPES) for e in ALL_EFFECTS}
+        factored = dict.fromkeys(ALL_EFFECTS, 0.0)  # an effect that is zero under every load sums to 0.0
+        for e, x in nonzero.items():
+            factored[e] = sum(comb.factors[t] * x[t] for t in LOAD_TYPES)
         if all(abs(v) < 1e-9 for v in factored.values()):
             continue
         kd, basis, values, effect = load_duration(comb, effects, data, used, override, storage)
