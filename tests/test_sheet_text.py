@@ -162,3 +162,14 @@ def test_a_caption_keeps_with_the_equations_it_introduces(demo_members):
     assert len(captions) >= 8, captions
     for line in captions:
         assert line.rstrip().endswith("\\par\\nopagebreak"), line
+
+
+def test_the_standard_term_rule_is_named_only_where_it_can_apply(demo_members):
+    # CSA O86-14 5.3.2.3 reduces K_D where the long-term load exceeds the standard-term (live and snow)
+    # load: it can apply only to a combination with L or S principal (O86 5.3.2.3; NBC Table 4.1.3.2.-A).
+    # T-4 carries dead and wind only; C-1 and T-1 carry snow.
+    rule = "tested by 5.3.2.3"
+    wind_only = sheet_of(demo_members["T-4"]).combinations_section().latex
+    assert rule not in wind_only and "one per combination." in wind_only
+    for mark in ("C-1", "T-1"):
+        assert rule in sheet_of(demo_members[mark]).combinations_section().latex

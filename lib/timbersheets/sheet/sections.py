@@ -218,12 +218,14 @@ class Sheet:
         for case in d.cases:
             rows.append([case.combination.id, case.label, *[q(case.factored[e], EFFECT_UNITS[e]) for e in effects],
                          Cell(f"${format_number(case.K_D)}$", format_number(case.K_D)), basis_cell(case.basis)])
+        # the 5.3.2.3 rule is named where it can apply: a combination with L or S principal
+        standard = any(case.combination.principal in ("L", "S") for case in d.cases)
         intro = para(f"ULS combinations of NBC {escape(self.codes.get('nbc', '2020'))} Table 4.1.3.2.-A by its "
                      "case numbers: each principal load with and without companions, 0.9D only where a load "
                      "opposes the dead load, repeats left out. $K_D$ by the principal load's duration class "
-                     "(CSA O86-14 5.3.2, Table 5.1), one per combination; with L or S principal, each effect that "
-                     "carries L or S is tested by 5.3.2.3 and the lowest value used (dead load alone is checked "
-                     "in 1.4D, $K_D = 0.65$).",
+                     "(CSA O86-14 5.3.2, Table 5.1), one per combination" + (
+                         "; with L or S principal, each effect that carries L or S is tested by 5.3.2.3 and the "
+                         "lowest value used (dead load alone is checked in 1.4D, $K_D = 0.65$)." if standard else "."),
                      "ULS load combinations of NBC Table 4.1.3.2.-A; K_D by the principal load (CSA O86 5.3.2), one "
                      "value per combination.")
         if self.m.live_use == "storage" and any(self.m.values[f"{e}_L"] for e in EFFECTS):
