@@ -338,10 +338,10 @@ def rerun_floor_lines(root: Path) -> list[str]:
 
 
 ASSEMBLY = """
-import resource, sys, tempfile, pikepdf
+import os, sys, tempfile, pikepdf
 sheets = sys.argv[1:]
 half = len(sheets) // 2
-rss = lambda: resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+rss = lambda: int(open("/proc/self/statm").read().split()[1]) * os.sysconf("SC_PAGE_SIZE") / 2**20
 with pikepdf.new() as package:
     sources = [pikepdf.open(s) for s in sheets]
     for src in sources[:half]:
@@ -357,8 +357,8 @@ with pikepdf.new() as package:
 
 def assembly_memory(sheets: list[Path]) -> tuple[float, float]:
     """The package's assembly as build/package.py does it (every sheet's pages into one pikepdf
-    document, then saved), in a process of its own: (MB before any sheet, MB a sheet), from its peak
-    memory at half and at all of `sheets`."""
+    document, then saved), in a process of its own: (MB before any sheet, MB a sheet), from its
+    resident memory with half and with all of `sheets` copied in (Linux's /proc)."""
     done = subprocess.run([str(BIN / "python"), "-c", ASSEMBLY, *map(str, sheets)], capture_output=True,
                           text=True, check=True)
     half, first, count, last = (float(v) for v in done.stdout.split())
