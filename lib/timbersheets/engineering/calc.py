@@ -184,8 +184,6 @@ def _copy_parsed(item: Any) -> Any:
     change); anything else deep-copied."""
     if type(item) is deque:
         return deque(_copy_parsed(e) for e in item)
-    if type(item) is list:
-        return [_copy_parsed(e) for e in item]
     if type(item) in _SHARED:
         return item
     import copy
