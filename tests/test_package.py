@@ -160,8 +160,8 @@ def test_the_rerun_after_a_first_run_takes_the_package_from_the_cache(tmp_path, 
     before = (out / "rev-A" / "package.pdf").read_bytes()
     assert (out / "rev-A" / package.FRONT_HINT).read_text() != "2"  # the case this test is about
     laid = []
-    monkeypatch.setattr(package, "prepare", lambda page: laid.append(page))
+    monkeypatch.setattr(package, "PdfWriter", lambda path: laid.append(path))
     again = run_job(job, RunOptions(out=out, progress=False))
     assert again.package is not None and not again.executed
-    assert not laid, "the package was built again, page by page"
+    assert not laid, "the package was built again, sheet by sheet"
     assert (out / "rev-A" / "package.pdf").read_bytes() == before

@@ -1,7 +1,7 @@
 """Laying a page of one PDF over a page of another, as page content.
 
-A sheet's title-block stamp and a package's page numbers are typeset as pages of their own and laid
-over the pages they belong to. qpdf's overlay (pikepdf's `add_overlay`) turns each layer page into a
+A sheet's title-block stamp is typeset as pages of its own and laid over the pages it belongs to
+(the package's page numbers are drawn by `pdfwrite` as it copies the sheets). qpdf's overlay (pikepdf's `add_overlay`) turns each layer page into a
 form XObject; writing a package of 400 pages laid that way took 0.37 s against 0.16 s for the same
 pages with the layer's few operators appended to each page's content (measured, 100 sheets, 2-core
 machine), and the sheets look the same either way. So the layer page's content is appended here,

@@ -3,9 +3,9 @@ chart), the changes since the previous revision, then every sheet.
 
 The front matter is typeset (``templates/latex/package/package.tex.j2``) with
 its page numbers computed from the sheets' page counts; the member sheets are
-then appended as typeset on their own, each page stamped with a continuous
-package page number, with a PDF bookmark per member. Appending with pypdf
-instead of re-typesetting every sheet page keeps a rerun after one change fast.
+then copied in as typeset on their own (one at a time, straight to the file: `pdfwrite`), each page
+stamped with a continuous package page number, with a PDF bookmark per member. Copying instead of
+re-typesetting every sheet page keeps a rerun after one change fast.
 Everything comes from the run's results document, so package and results.json agree.
 """
 
@@ -29,7 +29,7 @@ from ..job.review import count_text, standing, titleblock_text
 from ..job.revisions import MemberChange
 from ..sheet.symbols import ACTION_WORDS
 from ..sheet.tex import escape
-from .layers import lay, prepare
+from .pdfwrite import Outline, PdfWriter
 from .notebooks import templates_dir
 from .typeset import layout_environment, typeset
 
@@ -289,55 +289,54 @@ def build_package(project: Project, doc: dict[str, Any], data: DataSet, outdir: 
         stamps = ahead.submit(_stamps, project, guessed + 1, guessed + sheet_pages, work, cache) if sheet_pages else None
         first_front = ahead.submit(_front, tex, chart, work / "front", cache)
         sheets = [r for r in rows if r["sheet"]]
-        with pikepdf.new() as package:
-            sources = [pikepdf.open(r["sheet"]) for r in sheets]  # kept open until the package is saved
-            for src in sources:
-                package.pages.extend(src.pages)
+        staged = target.with_name(".package.pdf.part")
+        writer = PdfWriter(staged)
+        try:
+            slots: list[int] = []  # each sheet page's package stamp, written once the front matter settles
+            for r in sheets:  # beside the front matter's typesetting: one sheet open at a time
+                with pikepdf.open(r["sheet"]) as src:
+                    mine = [writer.stamp_slot() for _ in src.pages]
+                    writer.add_pages(src, stamps=mine)
+                    slots += mine
             front, aux = first_front.result()
             for attempt in range(4):  # the front matter's length sets the page numbers it prints
-                with pikepdf.open(front) as typeset:
-                    actual = len(typeset.pages)
+                actual = page_count(front)
                 if actual == front_pages:
                     break
                 front_pages = actual
                 tex, rows = package_tex(project, doc, data, outdir, changes, chart_path, front_pages, pages)
                 front, aux = _front(tex, chart, work / f"front-{attempt}", cache)
-            with pikepdf.open(front) as typeset:
-                front_pages = len(typeset.pages)  # the last one typeset, if it never settled
+            front_pages = page_count(front)  # the last one typeset, if it never settled
             total = front_pages + sum(r["pages"] for r in rows)
             labels = {k: int(v) - 1 for k, v in re.findall(r"\\newlabel\{ts-(\w+)\}\{\{[^}]*\}\{(\d+)\}", aux)}
             sheets = [r for r in rows if r["sheet"]]
-            if sheets:
+            if slots:
                 made = stamps.result() if stamps is not None else None
                 if made is None or front_pages != guessed:
                     made = _stamps(project, front_pages + 1, total, work, cache)
-                overlay = pikepdf.open(made)
-                sources.append(overlay)
-                layers = [prepare(page) for page in overlay.pages]
-                for k, page in enumerate(package.pages):
-                    lay(package, page, layers[k])
-            cover = pikepdf.open(front)
-            sources.append(cover)
-            for i, page in enumerate(cover.pages):  # the few front pages go before the many sheet pages
-                package.pages.insert(i, page)
-            with package.open_outline() as outline:
-                outline.root.append(pikepdf.OutlineItem("Cover", 0))
-                outline.root.append(pikepdf.OutlineItem("Index of members", labels.get("index", 1)))
-                if "changes" in labels:
-                    outline.root.append(pikepdf.OutlineItem(f"Changes since rev {doc.get('previous_revision')}",
-                                                            labels["changes"]))
-                if sheets:
-                    parent = pikepdf.OutlineItem("Member sheets", front_pages)
-                    parent.children.extend(pikepdf.OutlineItem(f"{r['plain']} — {r['verdict_word']}", r["start"] - 1)
-                                           for r in sheets)
-                    outline.root.append(parent)
-            package.docinfo["/Title"] = f"{project.fields['title']} - calculation package rev {project.revision}"
-            package.docinfo["/Creator"] = f"timbersheets {__version__}"
-            write_atomic(outdir / FRONT_HINT, str(front_pages))
-            staged = target.with_name(".package.pdf.part")
-            package.save(staged)
-            for src in sources:
-                src.close()
+                with pikepdf.open(made) as overlay:
+                    if len(overlay.pages) != len(slots):
+                        raise RuntimeError(f"the sheets have {len(slots)} pages, the index counted "
+                                           f"{len(overlay.pages)}: a sheet changed while the package was made")
+                    memo: dict = {}  # the stamps' font, written once for all of them
+                    for slot, page in zip(slots, overlay.pages):
+                        writer.stamp(slot, overlay, page, memo)
+            with pikepdf.open(front) as cover:
+                writer.add_pages(cover)  # the few front pages go before the many sheet pages
+            outline = [Outline("Cover", 0), Outline("Index of members", labels.get("index", 1))]
+            if "changes" in labels:
+                outline.append(Outline(f"Changes since rev {doc.get('previous_revision')}", labels["changes"]))
+            if sheets:
+                outline.append(Outline("Member sheets", front_pages, [
+                    Outline(f"{r['plain']} — {r['verdict_word']}", r["start"] - 1) for r in sheets]))
+            order = list(range(len(slots), len(slots) + front_pages)) + list(range(len(slots)))
+            writer.close(order, outline, {
+                "Title": f"{project.fields['title']} - calculation package rev {project.revision}",
+                "Creator": f"timbersheets {__version__}", "Producer": f"timbersheets {__version__}"})
+        except BaseException:
+            writer.abandon()
+            raise
+        write_atomic(outdir / FRONT_HINT, str(front_pages))
         os.replace(staged, target)
     if cached is not None:
         # kept under the key of the front matter as it settled: the next run's first guess is that
