@@ -9,7 +9,9 @@ whole process tree (main process, workers, kernels, xelatex):
 - pages per member by type;
 - the naive loop on 20 of the same members, spread over the schedule and extrapolated to all (papermill CLI, then
   ``jupyter nbconvert --to pdf``, one member after another);
-- a 2,000-member ``--no-pdf`` run, and the full run projected to 2,000 members;
+- a 2,000-member ``--no-pdf`` run, and the same job's full run (PDFs and package; about 5 min on
+  2 CPUs, ``--no-large-full`` skips it) with its phases and whole-tree peak memory, its time against
+  the cold package's time a member, and the package writer's memory a sheet;
 - the cold package's floor: the CPU a notebook of empty cells takes through papermill, nbclient and
   the reused kernel, plus xelatex's time a member, over the CPUs;
 - a rerun's floor: the program's imports and a kernel's boot (no notebook runs sooner), and the
@@ -31,7 +33,7 @@ Beam models: the analysis time of each demo member analysed as a beam model (PyC
 and the sizing time of the two-span continuous floor joist FJ-1 (size = auto); targets <= 50 ms a
 member's analysis, <= 0.5 s the joist's sizing. `--beams` reports only these.
 
-    python tools/bench.py [--members 100] [--naive 20] [--large 2000] [--baseline DIR] [--beams]
+    python tools/bench.py [--members 100] [--naive 20] [--large 2000] [--no-large-full] [--baseline DIR] [--beams]
 """
 
 from __future__ import annotations
@@ -339,30 +341,31 @@ def rerun_floor_lines(root: Path) -> list[str]:
 
 ASSEMBLY = """
 import os, sys, tempfile, pikepdf
+from pathlib import Path
+from timbersheets.build.pdfwrite import PdfWriter
 sheets = sys.argv[1:]
 half = len(sheets) // 2
 rss = lambda: int(open("/proc/self/statm").read().split()[1]) * os.sysconf("SC_PAGE_SIZE") / 2**20
-with pikepdf.new() as package:
-    sources = [pikepdf.open(s) for s in sheets]
-    for src in sources[:half]:
-        package.pages.extend(src.pages)
-    first = rss()
-    for src in sources[half:]:
-        package.pages.extend(src.pages)
-    with tempfile.TemporaryFile() as out:
-        package.save(out)
+with tempfile.TemporaryDirectory() as tmp:
+    writer = PdfWriter(Path(tmp) / "package.pdf")
+    for k, sheet in enumerate(sheets):
+        if k == half:
+            first = rss()
+        with pikepdf.open(sheet) as src:
+            writer.add_pages(src)
+    writer.close()
     print(half, first, len(sheets), rss())
 """
 
 
-def assembly_memory(sheets: list[Path]) -> tuple[float, float]:
-    """The package's assembly as build/package.py does it (every sheet's pages into one pikepdf
-    document, then saved), in a process of its own: (MB before any sheet, MB a sheet), from its
-    resident memory with half and with all of `sheets` copied in (Linux's /proc)."""
+def assembly_memory(sheets: list[Path], lib: Path) -> tuple[float, float]:
+    """The package's assembly as build/package.py does it (each sheet's pages copied to the file by
+    pdfwrite, one sheet open at a time), in a process of its own: (MB before any sheet, MB a sheet),
+    from its resident memory with half and with all of `sheets` copied (Linux's /proc)."""
     done = subprocess.run([str(BIN / "python"), "-c", ASSEMBLY, *map(str, sheets)], capture_output=True,
-                          text=True, check=True)
+                          text=True, check=True, env={**os.environ, "PYTHONPATH": str(lib)})
     half, first, count, last = (float(v) for v in done.stdout.split())
-    per = (last - first) / (count - half)
+    per = max(0.0, (last - first) / (count - half))
     return first - per * half, per
 
 
@@ -459,6 +462,8 @@ def main() -> int:
                         help=f"members in the naive loop, spread over the schedule; its time is extrapolated to "
                              f"--members (default {NAIVE_SAMPLE}; 0 skips it)")
     parser.add_argument("--large", type=int, default=2000, help="members in the --no-pdf run (0 skips it)")
+    parser.add_argument("--large-full", action=argparse.BooleanOptionalAction, default=True,
+                        help="also the full run of the --large job, with PDFs (about 5 min for 2,000 on 2 CPUs)")
     parser.add_argument("--baseline", type=Path, help="a checkout whose library runs the same scenarios")
     parser.add_argument("--beams", action="store_true", help="only the beam-model analysis and sizing figures")
     args = parser.parse_args()
@@ -515,16 +520,21 @@ def main() -> int:
                                 "--no-pdf"])
             print(f"  {args.large} members --no-pdf   {took:8.1f} s, peak {peak:.0f} MB   target <= 30 s: "
                   f"{'met' if took <= 30 else 'NOT met'}")
-            base_mb, per_mb = assembly_memory(sorted((out / "rev-B" / "sheets").glob("*.pdf")))
-            assembly = base_mb + per_mb * args.large
-            whole = assembly + peak  # on the safe side: the step plus the rest of a run as the --no-pdf run used it
-            print(f"  {args.large} members full run, projected linearly from the cold package: "
-                  f"{cold / args.members * args.large:.0f} s. Memory: the sheets' batches are of a fixed size "
-                  f"(the --no-pdf peak above; {mine[0][2]:.0f} MB for {args.members} members with PDFs), but the "
-                  f"package is assembled in one pikepdf document: {per_mb:.2f} MB a sheet, measured on the "
-                  f"{args.members}-member package, {assembly:.0f} MB for {args.large} sheets in that step alone; "
-                  f"with the --no-pdf run's peak, {whole:.0f} MB   target whole run <= 1500 MB: "
-                  f"{'met' if whole <= 1500 else 'NOT met'}")
+            base_mb, per_mb = assembly_memory(sorted((out / "rev-B" / "sheets").glob("*.pdf")), REPO / "lib")
+            print(f"  package writer             {base_mb:.0f} MB, {per_mb:.3f} MB more a sheet (measured on the "
+                  f"{args.members}-member package's sheets, one open at a time): {base_mb + per_mb * args.large:.0f} MB "
+                  f"for {args.large} sheets")
+            if args.large_full:
+                took, peak = timed([str(BIN / "timbersheets"), "run", str(large), "--out",
+                                    str(root / "large" / "full")])
+                per = took / args.large
+                print(f"  {args.large} members full run {took:8.1f} s ({1000 * per:.0f} ms a member; the cold "
+                      f"package {1000 * cold / args.members:.0f} ms a member), peak {peak:.0f} MB   target whole "
+                      f"run <= 1500 MB: {'met' if peak <= 1500 else 'NOT met'}")
+                print(f"    {phase_line(root / 'large' / 'full', 'A')}")
+            else:
+                print(f"  {args.large} members full run, projected linearly from the cold package: "
+                      f"{cold / args.members * args.large:.0f} s (--no-large-full: memory not measured)")
     return 0
 
 
