@@ -4,12 +4,12 @@ The package holds every sheet's pages. Gathered into one pikepdf document, each 
 in memory until the document is saved (and each source stays open with it): about 1.2 MB a sheet,
 2.7 GB for 2,000 sheets (measured). Here each source is opened, its pages and what they use are
 written straight to the file, and the source is closed: the memory is that of one sheet, whatever
-the number of sheets. What stays is a file offset a written object and the page numbers.
+the number of sheets. What stays is a file offset for each object written and the page numbers.
 
 An object is copied from its unparsed text (qpdf's, so it reads as qpdf writes it), with every
-reference `n g R` in it renumbered to the object's number in this file; a literal string's
-parentheses are escaped in that text and hex strings have no spaces before `R`, so a reference
-cannot be mistaken inside a string. Stream data is copied as it is stored (still compressed).
+reference `n g R` in it renumbered to the object's number in this file. In that text a literal
+string's parentheses are escaped and a hex string holds only hex digits, so a string is read as one
+token and text in it that looks like a reference is left alone (tests/test_pdfwrite.py). Stream data is copied as it is stored (still compressed).
 
 A page can carry a stamp: a form XObject named /TsLStamp, drawn over the page's own content, whose
 object is written later (`stamp`). The package's page numbers are typeset while the sheets are
