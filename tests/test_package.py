@@ -165,3 +165,29 @@ def test_the_rerun_after_a_first_run_takes_the_package_from_the_cache(tmp_path, 
     assert again.package is not None and not again.executed
     assert not laid, "the package was built again, sheet by sheet"
     assert (out / "rev-A" / "package.pdf").read_bytes() == before
+
+
+@pytest.mark.pipeline
+def test_a_package_that_cannot_be_written_leaves_the_last_one_whole(tmp_path):
+    """Nothing already written is lost or half-written (common practice for any output a seal goes
+    on): a sheet that is no PDF stops the package; the package before it stays as it was, and the
+    unfinished file is removed."""
+    import pikepdf
+
+    from timbersheets.build.package import build_package
+
+    job = write_job(tmp_path / "job", [member_row("A-1"), member_row("A-2", type="tension")])
+    out = tmp_path / "out"
+    run_job(job, RunOptions(out=out, progress=False))
+    rev = out / "rev-A"
+    before = (rev / "package.pdf").read_bytes()
+    doc = json.loads((rev / "results.json").read_text())
+    pages = {}
+    for mark in ("A-1", "A-2"):
+        with pikepdf.open(rev / "sheets" / f"{mark}.pdf") as pdf:
+            pages[mark] = len(pdf.pages)
+    (rev / "sheets" / "A-2.pdf").write_bytes(b"%PDF-1.7\nnot a sheet\n")  # found once A-1 is written
+    with pytest.raises(pikepdf.PdfError):
+        build_package(load_project(job), doc, DataSet(), rev, [], pages=pages)
+    assert (rev / "package.pdf").read_bytes() == before
+    assert not list(rev.glob(".package.pdf.part*"))
