@@ -12,7 +12,7 @@ from conftest import DEMO, write_schedule
 from timbersheets.engineering.data import DataSet
 from timbersheets.engineering.sizing import design_sized
 from timbersheets.schedule.read import COLUMNS, load_schedule
-from timbersheets.sheet.sections import Sheet
+from timbersheets.sheet.sections import SHEET_RUNNERS_UP, Sheet
 
 CODES = {"nbc": "2020", "o86": "2019"}
 
@@ -125,7 +125,25 @@ def test_prefer_square_still_lists_runners_up(tmp_path):
     band = [c for c in [sizing.chosen, *sizing.runners_up] if c.section.A <= 1.1 * lightest.section.A]
     assert square(sizing.chosen) == min(square(c) for c in band)
     table = Sheet(design, DataSet(), CODES).sizing_section().latex
-    assert table.count("runner-up") + table.count("passed over") == len(sizing.runners_up)
+    lighter = [c for c in sizing.runners_up if c.section.A < sizing.chosen.section.A]
+    heavier = len(sizing.runners_up) - len(lighter)
+    assert table.count("passed over") == len(lighter)  # every option the choice rejected
+    assert table.count("runner-up") == min(heavier, SHEET_RUNNERS_UP)
+    assert f"the next {min(heavier, SHEET_RUNNERS_UP)} that pass" in table
+
+
+def test_a_sized_member_lists_the_next_lightest_that_pass_in_order(tmp_path):
+    """T-4 (sized tension brace): the sheet lists the chosen section, then the next few heavier
+    sections that pass, lightest first, as the search ordered them (common practice: the chosen
+    section is the lightest that passes; the alternatives are the nearest above it)."""
+    design = design_sized(demo_variant(tmp_path, "T-4"), DataSet())
+    sizing = design.sizing
+    assert len(sizing.runners_up) > SHEET_RUNNERS_UP  # the case this test is about
+    table = Sheet(design, DataSet(), CODES).sizing_section().latex
+    shown = [c.label for c in sizing.runners_up[:SHEET_RUNNERS_UP]]
+    at = [table.index(f"{label} &") for label in [sizing.chosen.label, *shown]]
+    assert at == sorted(at)
+    assert all(f"{c.label} &" not in table for c in sizing.runners_up[SHEET_RUNNERS_UP:])
 
 
 def test_deflection_limits_only_where_deflection_is_checked(demo_members):

@@ -29,6 +29,10 @@ from .tex import Cell, Table, escape, md_escape
 
 LOAD_NAMES = {"D": "Dead", "L": "Live (use and occupancy)", "S": "Snow (with rain)", "W": "Wind", "E": "Earthquake"}
 EFFECT_NAMES = {"P": "P", "w": "w", "M": "M", "V": "V", "F": "F"}
+# Heavier sections that also pass, listed on a sheet below the chosen one (results.json and `size` give
+# all the search kept): they are alternatives, not part of the chosen section's check, and two more
+# rows pushed a sized tension member's last lines onto a third page.
+SHEET_RUNNERS_UP = 3
 
 
 class Sheet:
@@ -121,15 +125,19 @@ class Sheet:
         rows = []
         if sz.chosen is not None:
             rows.append(row(sz.chosen, "chosen"))
-        rows += [row(c, f"lighter; passed over for prefer = {self.m.prefer}"
-                      if sz.chosen is not None and c.section.A < sz.chosen.section.A else "runner-up")
-                 for c in sz.runners_up]
+        heavier = 0  # the sheet lists the next SHEET_RUNNERS_UP that pass; results.json has them all
+        for c in sz.runners_up:
+            if sz.chosen is not None and c.section.A < sz.chosen.section.A:
+                rows.append(row(c, f"lighter; passed over for prefer = {self.m.prefer}"))
+            elif heavier < SHEET_RUNNERS_UP:
+                rows.append(row(c, "runner-up"))
+                heavier += 1
         if sz.chosen is None and sz.best is not None:
             rows.append(row(sz.best, "best reached; does not pass"))
-        words = (f"The schedule asks for the size (size = auto). The catalogue of standard sections "
-                 f"({escape(self.m.material)} {escape(self.m.grade)}) was searched lightest first, least area then "
-                 f"least depth, with every check under every combination; {sz.searched} sections were tried"
-                 f"{'; constraints: ' + escape(sz.constraints) if sz.constraints else ''}.")
+        words = (f"Size = auto: the catalogue's standard sections ({escape(self.m.material)} {escape(self.m.grade)}) "
+                 f"were searched lightest first (least area, then least depth) under every check and combination; "
+                 f"{sz.searched} were tried{'; constraints: ' + escape(sz.constraints) if sz.constraints else ''}."
+                 f"{f' Below, the chosen one and the next {heavier} that pass.' if heavier else ''}")
         if sz.chosen is None:
             words += " No standard section passes; the sheet shows the best one found."
         return heading("Sizing", 2) + para(words) + table(Table(
