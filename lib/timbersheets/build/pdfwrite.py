@@ -76,11 +76,12 @@ class PdfWriter:
 
     # -- copying from another PDF --------------------------------------------------------------
 
-    def add_pages(self, src, pages=None, stamps: list[int] | None = None) -> list[int]:
-        """Copy `pages` of the pikepdf document `src` (all when None) and every object they use; a
-        page given a stamp (its number from `stamp_slot`, in `stamps`) gets it drawn over it.
-        Returns the new pages' object numbers. Once this returns, `src` may be closed."""
-        pages = list(src.pages if pages is None else pages)
+    def add_pages(self, src, stamps: list[int] | None = None) -> list[int]:
+        """Copy every page of the pikepdf document `src` and every object they use; a page given a
+        stamp (its number from `stamp_slot`, in `stamps`) gets it drawn over it. Returns the new
+        pages' object numbers. Once this returns, `src` may be closed. (Only whole documents: a link
+        from a page copied to one left out would pull in the source's page tree.)"""
+        pages = list(src.pages)
         memo: dict[tuple[int, int], int] = {}
         numbers = []
         for page in pages:  # numbered first, so a link to a page lands on its copy
@@ -90,12 +91,15 @@ class PdfWriter:
         for k, page in enumerate(pages):
             stamp = stamps[k] if stamps is not None else None
             self._object(numbers[k], self._page(page.obj, stamp, memo, queue))
-        while queue:
-            objgen = queue.pop()
-            obj = src.get_object(objgen)
-            self._object(memo[objgen], self._body(obj, memo, queue))
+        self._drain(src, memo, queue)
         self.pages.extend(numbers)
         return numbers
+
+    def _drain(self, src, memo: dict, queue: list) -> None:
+        """Write every object of `src` that `queue` names, and those they name in turn."""
+        while queue:
+            objgen = queue.pop()
+            self._object(memo[objgen], self._body(src.get_object(objgen), memo, queue))
 
     def _renumber(self, text: bytes, memo: dict, queue: list) -> bytes:
         def new(match: re.Match) -> bytes:
@@ -154,7 +158,8 @@ class PdfWriter:
         return self.reserve()
 
     def stamp(self, slot: int, src, page, memo: dict) -> None:
-        """Write stamp `slot`: page `page` of the pikepdf document `src` as a form XObject. `memo` is one dict for all the stamps of that document (its fonts copied once)."""
+        """Write stamp `slot`: page `page` of the pikepdf document `src` as a form XObject. `memo` is
+        one dict for all the stamps of that document (its fonts copied once)."""
         import pikepdf
 
         page.contents_coalesce()
@@ -166,9 +171,7 @@ class PdfWriter:
         if resources is not None:
             entries += b"/Resources " + self._renumber(resources.unparse(), memo, queue) + b" "
         self._stream(content, entries, slot)
-        while queue:
-            objgen = queue.pop()
-            self._object(memo[objgen], self._body(src.get_object(objgen), memo, queue))
+        self._drain(src, memo, queue)
 
     # -- the end -------------------------------------------------------------------------------
 
