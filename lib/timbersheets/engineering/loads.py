@@ -181,8 +181,8 @@ def load_duration(comb: Combination, effects: Effects, data: DataSet, used: list
                 best = (values["K_D"], values, effect)
     kd, values, effect = best
     if values:
-        part = "dead and storage" if storage else "dead"
-        return kd, f"standard-term, long-term ({part}) part X_lt > X_st (5.3.2.3, on {effect})", values, effect
+        part = " (dead and storage L)" if storage else ""
+        return kd, f"{comb.principal} principal; X_lt{part} > X_st on {effect}, 5.3.2.3", values, effect
     return kd, f"standard-term ({comb.principal} principal), Table 5.1", {}, ""
 
 

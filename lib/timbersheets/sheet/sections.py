@@ -255,10 +255,18 @@ class Sheet:
             words = "; ".join(f"${symbol_latex(k)}$ is {v}" for k, v in KD_SYMBOLS.items())
             out += para("Where the long-term (dead) part exceeds the standard-term part, $K_D$ follows CSA O86-14 "
                         f"5.3.2.3 ({words}; named anew, as O86's letters are the schedule's load columns).")
+        # combinations with the same parts on the same effect have the same K_D: worked once for them all
+        alike: dict[tuple, list] = {}
         for case in reduced:
+            key = (case.kd_effect, case.kd_values["X_lt"], case.kd_values["X_st"])
+            alike.setdefault(key, []).append(case)
+        for same in alike.values():
+            case = same[0]
             unit = EFFECT_UNITS[case.kd_effect]
             latex = kd_permanent.latex(case.kd_values, units={"X_lt": unit, "X_st": unit})
-            out += para(f"For {escape(case.label)}, on ${case.kd_effect}$:")
+            labels = [escape(c.label) for c in same]
+            named = labels[0] if len(labels) == 1 else ", ".join(labels[:-1]) + " and " + labels[-1]
+            out += para(f"For {named}{' (the same parts)' if len(same) > 1 else ''}, on ${case.kd_effect}$:")
             out += math_block(latex)
         if self.kind.shows("forces"):
             from .beamsheet import forces_block
@@ -559,7 +567,9 @@ def branches(name: str, results: list[CheckResult]) -> list[CheckResult]:
 
 def basis_cell(basis: str) -> Cell:
     """The K_D basis with its symbols set as maths."""
-    latex = escape(basis).replace(r"X\_lt \textgreater{} X\_st", "$X_{lt} > X_{st}$")
+    latex = re.sub(r"X\\_lt( \(dead and storage L\))? \\textgreater\{\} X\\_st on (\w)",
+                   lambda g: f"$X_{{lt}}${g[1]} $> X_{{st}}$ on ${g[2]}$" if g[1] else f"$X_{{lt}} > X_{{st}}$ on ${g[2]}$",
+                   escape(basis))
     return Cell(latex, md_escape(basis))
 
 
