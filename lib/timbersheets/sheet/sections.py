@@ -68,7 +68,7 @@ class Sheet:
         if section is not None and m.size == "auto":
             size = Cell("chosen by the search (schedule size = auto): " + size.latex, "auto: " + size.markdown)
         rows: list[list[object]] = [
-            ["Type", f"{m.type} member"],
+            ["Type", f"{m.type} member (schedule row {m.row})"],
             ["Material", d.context.strengths.description if d.context else f"{m.species} {m.grade} {m.material}"],
             ["Size", size],
             ["Service condition", Cell(f"{m.service}; $K_T = {format_number(m.K_T)}$, $K_H = {format_number(m.K_H)}$ "
@@ -85,7 +85,6 @@ class Sheet:
             rows.append(["As entered", entered_cell(m)])
         if len(m.note or "") > TITLE_NOTE_CHARS:  # a shorter note is whole in the title block
             rows.append(["Note", m.note])
-        rows.append(["Schedule", f"row {m.row}"])
         return heading("Member") + table(Table(["Item", "Value"], rows, "lX"))
 
     @staticmethod
@@ -165,12 +164,12 @@ class Sheet:
                 rows += self.own_weight_rows(effects)
         sense = ("Line loads act downward, negative values upward (uplift); moments and shears are the frame "
                  "model's." if self.kind.axial is None else
-                 "Positive axial force acts in the member's sense (tension for a tension member, else compression).")
+                 "Positive $P$ acts in the member's sense: tension for a tension member, else compression.")
         weight = self.design.context.own_weight if self.design.context else None
-        own = ("The member's own weight is added to D as its own line (worked below)." if weight else
-               "The schedule's dead load includes the member's own weight (self_weight = no); the tool adds none.")
-        intro = para("Specified loads from the schedule by load type, importance factors included (NBC "
-                     f"{escape(self.codes.get('nbc', '2020'))} Part 4). {escape(own)} {sense}")
+        own = ("the own weight is added to D as its own line (worked below)." if weight else
+               "the schedule's dead load includes the member's own weight (self_weight = no); the tool adds none.")
+        intro = para("Specified loads from the schedule, importance factors included (NBC "
+                     f"{escape(self.codes.get('nbc', '2020'))} Part 4); {escape(own)} {sense}")
         from .modelsheet import loads_block
 
         out = heading("Specified loads") + intro + table(Table(header, rows, "ll" + "r" * len(effects) + "l", units))
@@ -308,9 +307,9 @@ class Sheet:
         named = [(f"${symbol_latex(n)}$ ({meaning(n)})", f"${symbol_latex(n)}$ ({meaning(n)})") for n, _ in given]
         words = ", ".join(t for t, _ in named[:-1]) + " and " + named[-1][0]
         intro = para(f"Strengths for {escape(d.context.strengths.description) if d.context else ''} and the "
-                     "factors the checks use, each with its source; " + words + " are the schedule's "
+                     "factors the checks use, with their sources; " + words + " are the schedule's "
                      "(section 1). Unverified values were recorded from memory or secondary sources "
-                     "(lib/timbersheets/data/README.md) and await checking against a licensed copy of the standard.")
+                     "(lib/timbersheets/data/README.md), to be checked against the standard.")
         return heading("Material and modification factors") + intro + table(
             Table(["Symbol", "Value", "Meaning", "Source", "Data status"], rows, "lrWNl"))
 
