@@ -93,3 +93,25 @@ def test_a_model_sheet_works_the_own_weight_s_row_out(tmp_path, data):
     assert total == pytest.approx(w_sw * length / 1000, rel=5e-3)  # kN/m x m
     row = re.search(r"Own weight \(in D\) & \$D\$ & \$([\d.]+)\$", loads)
     assert float(row.group(1)) == pytest.approx(total, rel=5e-3)
+
+
+def test_a_model_check_table_gives_each_combination_at_its_governing_place(tmp_path, data):
+    # Common practice for a beam's calc sheet: a check's table gives each load combination once, at the place
+    # that governs it; the other places are checked all the same (results.json keeps every one). J-1 bears on
+    # three supports, so every combination has three bearing checks and its row is the worst of them.
+    from timbersheets.sheet.sections import governing_places
+
+    sheet = sheet_for(tmp_path, data, "J-1")
+    bearing = [c for c in sheet.design.checks if c.check == "bearing"]
+    rows = governing_places(bearing)
+    combinations = list(dict.fromkeys(c.combination for c in bearing))
+    assert [c.combination for c in rows] == combinations and len(bearing) >= 3 * len(rows)
+    for row in rows:
+        assert row.utilization == max(c.utilization for c in bearing if c.combination == row.combination)
+    checks = sheet.checks_section().latex
+    assert f"{len(bearing)} places and combinations were checked" in checks
+    # a moment's two sides are kept apart: the negative moment over the interior support has its own rows
+    bending = [c for c in sheet.design.checks if c.check == "bending"]
+    kept = governing_places(bending)
+    assert any(c.demand < 0 for c in kept) and any(c.demand > 0 for c in kept)
+    assert len(kept) == len({(c.combination, c.demand < 0) for c in bending})

@@ -399,13 +399,20 @@ class Sheet:
         if name == "interaction":
             header[2:4] = [Cell(f"Interaction ${gov.demand_symbol_latex}$", "Interaction"), "Limit"]
         units = ["", "", unit_text(unit), unit_text(unit), ""]
+        placed = any(c.where for c in all_cases)
+        listed = governing_places(all_cases) if placed else all_cases
         rows = [[c.combination, kd_cell(c), num(c.demand, unit), num(c.resistance, unit), util_cell(c.utilization)]
-                for c in all_cases]
-        if any(c.where for c in all_cases):  # a beam model: one row per place and combination
+                for c in listed]
+        if placed:  # a beam model: each combination at the place that governs it (a moment: of each sign)
             header.insert(1, "Where")
             units.insert(1, "")
-            for row, c in zip(rows, all_cases):
+            for row, c in zip(rows, listed):
                 row.insert(1, c.where)
+            if len(listed) < len(all_cases):
+                sign = " (positive and negative moment apart)" if name == "bending" else ""
+                out += caption_para(f"Each combination at the place that governs it{sign}; "
+                                    f"{len(all_cases)} places and combinations were checked, and results.json "
+                                    "lists every one:")
             return out + table(Table(header, rows, "lXrrrr", units))
         return out + table(Table(header, rows, "lrrrr", units))
 
@@ -562,6 +569,18 @@ def branches(name: str, results: list[CheckResult]) -> list[CheckResult]:
         return [max(results, key=lambda c: c.utilization)]
     groups = [[c for c in results if (c.demand < 0) == negative] for negative in (False, True)]
     return sorted((max(g, key=lambda c: c.utilization) for g in groups if g), key=lambda c: -c.utilization)
+
+
+def governing_places(results: list[CheckResult]) -> list[CheckResult]:
+    """A beam model's check at every place under every combination, cut to the place that governs each
+    combination (the highest utilization; a moment's positive and negative sides each keep theirs), in
+    the order the combinations were checked."""
+    worst: dict[tuple[str, bool], CheckResult] = {}
+    for c in results:
+        key = (c.combination, c.check == "bending" and c.demand < 0)
+        if key not in worst or c.utilization > worst[key].utilization:
+            worst[key] = c
+    return list(worst.values())
 
 
 def basis_cell(basis: str) -> Cell:
