@@ -463,9 +463,11 @@ class Sheet:
             lines = [f"Governing check: {ACTION_WORDS.get(gov.check, gov.check).lower()}",
                      f"Combination: {gov.combination}",
                      f"Utilization: {round_utilization(gov.utilization):.3f}"]
-        body = "\\quad\n".join(f"\\mbox{{{escape(x)}}}" for x in lines)  # on one line under the verdict if they fit
+        # the utilization beside the verdict, the governing check and combination on one line under it if they fit
+        beside = f"\\quad\\mbox{{{escape(lines[-1])}}}" if not d.errors else ""
+        body = "\\quad\n".join(f"\\mbox{{{escape(x)}}}" for x in (lines if d.errors else lines[:-1]))
         return out + Block(
-            f"\\begin{{verdictbox}}\n{{\\Large {verdict}}}\\\\[2pt]\n{body}\n\\end{{verdictbox}}\n",
+            f"\\begin{{verdictbox}}\n{{\\Large {verdict}}}{beside}\\\\[2pt]\n{body}\n\\end{{verdictbox}}\n",
             f"> **{verdict}**  \n> " + "  \n> ".join(md_escape(x) for x in lines) + "\n")
 
     def cautions(self) -> Block:
