@@ -13,6 +13,7 @@ from timbersheets.engineering.data import DataSet
 from timbersheets.engineering.sizing import design_sized
 from timbersheets.schedule.read import COLUMNS, load_schedule
 from timbersheets.sheet.sections import SHEET_RUNNERS_UP, Sheet
+from timbersheets.sheet.tex import escape
 
 CODES = {"nbc": "2020", "o86": "2019"}
 
@@ -191,3 +192,25 @@ def test_the_standard_term_rule_is_named_only_where_it_can_apply(demo_members):
     assert rule not in wind_only and "one per combination." in wind_only
     for mark in ("C-1", "T-1"):
         assert rule in sheet_of(demo_members[mark]).combinations_section().latex
+
+
+def test_the_interaction_is_a_column_of_the_every_combination_table(demo_members):
+    # CSA O86-14 6.5.10 / 6.5.11: the interaction value is compared with 1.0, so its utilization is the value
+    # itself; common practice: one row per combination reads across every check, the interaction last.
+    # S-2 (beam-column with wind) and TC-1 (tension and bending): no table of their own for the interaction.
+    for mark in ("S-2", "TC-1"):
+        sheet = sheet_of(demo_members[mark])
+        checks = sheet.checks_section().latex
+        assert "Every combination" in checks and "Limit" not in checks, mark
+        block = checks[checks.index("Every combination"):]
+        header = block[:block.index("\\\\")]
+        assert header.rstrip().endswith(f"${sheet.design.governing_by_check()['interaction'].demand_symbol_latex}$"), header
+        rows: dict[str, str] = {}
+        for line in block.splitlines():  # the first table's rows (a second one follows on S-2: bearing)
+            if " & " in line:
+                rows.setdefault(line.split(" & ")[0].strip(), line)
+        interaction = [c for c in sheet.design.checks if c.check == "interaction"]
+        assert interaction, mark
+        for c in interaction:  # each combination's row ends with its interaction value
+            row = rows[escape(c.combination)]
+            assert row.split(" & ")[-1].startswith(f"${c.utilization:.3f}$"), row

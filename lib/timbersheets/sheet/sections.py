@@ -24,7 +24,7 @@ from ..engineering.units import to_display
 from ..schedule.read import Member
 from .blocks import Block, caption_para, heading, math_block, para, q, table
 from .symbols import ACTION_WORDS, meaning, symbol_latex, symbol_unit
-from .tabled import SHARED_TABLE_CHECKS, checks_by_name, serviceability, shared_table_checks
+from .tabled import SHARED_TABLE_CHECKS, checks_by_name, interaction_joins, serviceability, shared_table_checks
 from .tex import Cell, Table, escape, md_escape
 
 LOAD_NAMES = {"D": "Dead", "L": "Live (use and occupancy)", "S": "Snow (with rain)", "W": "Wind", "E": "Earthquake"}
@@ -332,19 +332,24 @@ class Sheet:
                 if name == "deflection-live":
                     out += self._deflection_block(pair[0][0], pair[1][0])
                 continue
-            out += self._check_block(name, gov, cases[name], tabled=name not in shared)
+            joins = name == "interaction" and interaction_joins(cases, shared)
+            out += self._check_block(name, gov, cases[name], tabled=name not in shared and not joins)
         if shared:
             # the heading keeps with the table's header and first rows (a breaking table starts on a new
             # page when those do not fit, which would leave the heading alone)
             out += Block("\\tsneedspace{9\\baselineskip}\n", "") + heading("Every combination", 2)
             names = list(shared)
+            interaction = cases["interaction"] if interaction_joins(cases, shared) else None
             for k in range(0, len(names), SHARED_TABLE_CHECKS):
-                out += self._shared_table([cases[n] for n in names[k:k + SHARED_TABLE_CHECKS]], governing)
+                out += self._shared_table([cases[n] for n in names[k:k + SHARED_TABLE_CHECKS]], governing,
+                                          interaction if k == 0 else None)
         return out
 
     @staticmethod
-    def _shared_table(columns: list[list[CheckResult]], governing: dict[str, CheckResult]) -> Block:
-        """One row per combination: K_D, then each check's effect, resistance and utilization."""
+    def _shared_table(columns: list[list[CheckResult]], governing: dict[str, CheckResult],
+                      interaction: list[CheckResult] | None = None) -> Block:
+        """One row per combination: K_D, then each check's effect, resistance and utilization (with
+        `interaction`, its value last: the utilization of a limit of 1.0)."""
         header: list[object] = ["Combination", Cell.math("K_D")]
         units: list[object] = ["", ""]
         for results in columns:
@@ -354,6 +359,11 @@ class Sheet:
                             f"{gov.demand_symbol}/{gov.resistance_symbol}")]
             units += [unit_text(gov.unit), unit_text(gov.unit), ""]
         by_check = [{c.combination: c for c in results} for results in columns]
+        combined = {c.combination: c for c in interaction or []}
+        if interaction:
+            gov = governing[interaction[0].check]
+            header.append(Cell(f"${gov.demand_symbol_latex}$", gov.demand_symbol))
+            units.append("")
         rows = []
         for label in dict.fromkeys(c.combination for results in columns for c in results):
             row = [checked.get(label) for checked in by_check]
@@ -361,6 +371,8 @@ class Sheet:
             for c in row:  # a check not made under this combination (no uplift at a bearing): a dash
                 cells += ([num(c.demand, c.unit), num(c.resistance, c.unit), util_cell(c.utilization)]
                           if c is not None else [Cell("--", "–")] * 3)
+            if interaction:  # not made where the combination gives no moment or no axial force
+                cells.append(util_cell(combined[label].utilization) if label in combined else Cell("--", "–"))
             rows.append(cells)
         return table(Table(header, rows, "l" + "r" * (len(header) - 1), units))
 

@@ -37,6 +37,18 @@ def shared_table_checks(cases: dict[str, list[CheckResult]]) -> list[str]:
     return names if len(names) > 1 else []
 
 
+def interaction_joins(cases: dict[str, list[CheckResult]], shared: list[str]) -> bool:
+    """The interaction of axial force and bending is one more column, its value, of the first shared table,
+    when there is one and the interaction has one row per combination with the K_D the other checks have
+    there (its limit, 1.0, is not a resistance: it takes no columns of its own)."""
+    results = cases.get("interaction", [])
+    if not shared or not results or any(c.where for c in results) \
+            or len({c.combination for c in results}) != len(results):
+        return False
+    kd = {c.combination: c.K_D for name in shared for c in cases[name]}
+    return all(kd.get(c.combination, c.K_D) == c.K_D for c in results)
+
+
 def checks_by_name(design) -> dict[str, list[CheckResult]]:
     """A design's results grouped by check, in the order the sheet works the checks."""
     out: dict[str, list[CheckResult]] = {}
