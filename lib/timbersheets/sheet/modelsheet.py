@@ -50,7 +50,10 @@ def loads_block(m) -> Block:
                                     "and carried loads), the load on which the long-term ratio for ") + "$K_D$"
                     + escape(" is taken (CSA O86 5.3.2.3)."))
     elif v.get("carried"):
-        out += para(escape("P includes the axial loads this member carries from other members (listed below)."))
+        out += para("$P$ " + escape("includes the axial loads this member carries from other members, listed below: "
+                                    "each the named member's specified reaction of that type, unfactored and with "
+                                    "its own weight as its design includes it; this member combines them under its "
+                                    "own combinations."))
     if v.get("trib") is not None and any(v[f"q_{t}"] for t in "DLSWE"):
         parts = [f"{t}: {format_number(v[f'q_{t}'] * 1000)} kPa × {format_number(v['trib'] / 1000)} m = "
                  f"{format_number(v[f'q_{t}'] * v['trib'])} kN/m" for t in "DLSWE" if v[f"q_{t}"]]
@@ -70,11 +73,12 @@ def loads_block(m) -> Block:
             if p:
                 at = Cell(f"${_m(c.at)}$", _m(c.at)) if c.at is not None else "axial"
                 rows.append([t, "carried", q(p, "N"), at, f"{c.label}: {how} {c.source}, support {c.reaction}"])
-    if rows:
+    if rows and is_model(m):  # an axial member's carried loads are introduced above
         out += para("The loads on the member (specified, by load type; positions from the member's left "
                     "end). A carried load is the named member's specified reaction of that type, unfactored and "
                     "with its own weight as its design includes it; this member combines it under its own "
                     "combinations.")
+    if rows:
         out += table(Table(["Type", "Kind", "Value", "At", "Source"], rows, "llrrX",
                            ["", "", "kN or kN/m", "m", ""]))
     return out
