@@ -45,6 +45,8 @@ def on_sheet(rows: dict[str, list[list[str]]], check: dict) -> bool:
     Whole numbers in one row, not substrings anywhere: '1.0' or '20' occur on every sheet.
     """
     def shows(row: list[str]) -> bool:
+        if check["check"] == "interaction":  # its value is its utilization; the limit 1.0 is worked above the table
+            return f"{check['utilization']:.3f}" in row
         return (any(printed_as(t, check["demand"]) for t in row) and any(printed_as(t, check["resistance"]) for t in row)
                 and f"{check['utilization']:.3f}" in row)
 
@@ -106,9 +108,19 @@ def test_every_check_value_in_results_is_on_the_sheet(demo_run):
     for member in results["members"]:
         text = pdf_text(report.outdir / "sheets" / f"{member['mark']}.pdf")
         rows = table_rows(text)
+        def shown(check):
+            return on_sheet(rows, check) or worked_on_sheet(text, check)
+
         for check in member["checks"]:
-            assert on_sheet(rows, check) or worked_on_sheet(text, check), \
-                (member["mark"], check["check"], check["combination"])
+            if shown(check):
+                continue
+            # a beam model's table gives each combination at the place that governs it (a moment's two
+            # sides apart), as the sheet says: a place it leaves out is bounded by the row it shows
+            assert "where" in check, (member["mark"], check["check"], check["combination"])
+            alike = [c for c in member["checks"] if (c["check"], c["combination"]) == (check["check"], check["combination"])
+                     and (check["check"] != "bending" or (c["demand"] < 0) == (check["demand"] < 0))]
+            bounds = [c["utilization"] for c in alike if shown(c)]
+            assert bounds and check["utilization"] <= max(bounds), (member["mark"], check["check"], check["where"])
         verdict = "DOES NOT PASS" if member["status"] == "fail" else "PASSES"
         assert verdict in text
 
@@ -287,10 +299,11 @@ def test_no_page_holds_only_a_verdict_or_ends_with_a_heading(demo_run):
 #: checks on four, a member that combines axial force and bending on five.
 PAGE_LIMITS = {"axial": 2, "bending": 4, "combined": 5}
 #: Routines whose demo sheets are still longer (the most pages any demo member of the routine takes,
-#: measured: axial 4 (P-3, P-5: compression with bearing), bending 8 (GR-1: a beam model, every place
-#: and combination tabled), combined 6 (S-2)): every equation is shown with its numbers and every
+#: measured: axial 3 (the compression members: both axes' buckling, bearing, the combinations and the
+#: factor table), bending 7 (GR-1, CN-1: beam models, each combination tabled at its governing place),
+#: combined 6 (S-2: 17 combinations with wind)): every equation is shown with its numbers and every
 #: combination is tabled, which is what a checker needs; the next step would be fewer words, not fewer checks.
-OVER_LIMIT = {"axial": 4, "bending": 8, "combined": 6}
+OVER_LIMIT = {"axial": 3, "bending": 7, "combined": 6}
 
 
 @pytest.mark.parametrize("routine", sorted(OVER_LIMIT))
